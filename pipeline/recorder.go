@@ -1,0 +1,88 @@
+package pipeline
+
+import (
+	"context"
+	"time"
+)
+
+// RunID identifies one run of a configuration.
+type RunID string
+
+// RunStatus is the state of a run.
+type RunStatus string
+
+// Run states.
+const (
+	RunRunning   RunStatus = "running"
+	RunSucceeded RunStatus = "succeeded"
+	RunFailed    RunStatus = "failed" // at least one node failed
+)
+
+// NodeStatus is the state of a recorded node.
+type NodeStatus string
+
+// Node states. Only NodeOK rows are results; a failed node carries its error
+// and no outputs, and is never reused.
+const (
+	NodeOK     NodeStatus = "ok"
+	NodeFailed NodeStatus = "failed"
+)
+
+// Action says what a run did with a node.
+type Action string
+
+// Actions.
+const (
+	Computed Action = "computed"
+	Reused   Action = "reused"
+	Failed   Action = "failed"
+)
+
+// RunInfo describes a run when it begins.
+type RunInfo struct {
+	ID          RunID
+	Started     time.Time
+	ToolVersion string
+	ConfigPath  string // as given by the user; informational
+	ConfigText  string // the exact bytes of the configuration
+	ConfigHash  string // prefixed SHA-256 of ConfigText
+}
+
+// NodeRecord is everything stored about one node.
+type NodeRecord struct {
+	Key         KeyID
+	Stage       string
+	Version     int
+	Params      Values
+	Inputs      []InputRef
+	Description string // the text Key is the hash of
+	Outputs     Values // nil for a failed node
+	OutputHash  OutputID
+	Status      NodeStatus
+	Error       string
+	Duration    time.Duration
+}
+
+// ResultRef marks a node as one of a run's results, under a label.
+type ResultRef struct {
+	Ordinal int
+	Label   string
+	Key     KeyID
+}
+
+// Recorder is the storage the engine writes through; the ledger implements
+// it. Each method is one transaction: a node's rows are written together or
+// not at all.
+type Recorder interface {
+	// BeginRun records a run as running.
+	BeginRun(ctx context.Context, info RunInfo) error
+	// Lookup returns the successful node with this key, if recorded.
+	Lookup(ctx context.Context, key KeyID) (NodeRecord, bool, error)
+	// RecordNode stores a node (unless already stored, for Reused) and
+	// links it to the run with the action taken and the time it took.
+	RecordNode(ctx context.Context, run RunID, node NodeRecord, action Action) error
+	// RecordResults stores which nodes are the run's results.
+	RecordResults(ctx context.Context, run RunID, results []ResultRef) error
+	// FinishRun closes a run with its final status.
+	FinishRun(ctx context.Context, run RunID, status RunStatus, finished time.Time, errText string) error
+}

@@ -1,0 +1,171 @@
+package pipeline
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+)
+
+// Kind is the type of a Value.
+type Kind uint8
+
+// The kinds of Value.
+const (
+	KindFloat  Kind = iota + 1 // a float64 with a unit
+	KindString                 // a string
+)
+
+// Unit labels used across inflatrace. Physics runs in reduced Planck units
+// (M_p = 1); GeV and Mpc^-1 appear at the edges and are always labelled.
+const (
+	UnitNone   = "1"      // dimensionless
+	UnitMp     = "M_p"    // reduced Planck mass (field values, scales)
+	UnitMp4    = "M_p^4"  // energy density
+	UnitGeV    = "GeV"    // energies at the edges
+	UnitPerMpc = "Mpc^-1" // comoving wavenumbers
+	UnitKelvin = "K"      // temperatures of the photon bath today
+)
+
+// Value is one typed datum: a parameter of a node or one of its outputs.
+type Value struct {
+	Kind  Kind
+	Float float64
+	Str   string
+	Unit  string // for floats; "1" when dimensionless
+}
+
+// Float returns a float value with its unit.
+func Float(x float64, unit string) Value { return Value{Kind: KindFloat, Float: x, Unit: unit} }
+
+// String returns a string value.
+func String(s string) Value { return Value{Kind: KindString, Str: s} }
+
+// Values is a named set of values: a node's parameters or its outputs.
+type Values map[string]Value
+
+// Names returns the names in sorted order.
+func (vs Values) Names() []string {
+	names := make([]string, 0, len(vs))
+	for n := range vs {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	return names
+}
+
+// Num returns the float named n, or an error naming what is missing.
+func (vs Values) Num(n string) (float64, error) {
+	v, ok := vs[n]
+	if !ok {
+		return 0, fmt.Errorf("missing value %q", n)
+	}
+	if v.Kind != KindFloat {
+		return 0, fmt.Errorf("value %q is not a number", n)
+	}
+	return v.Float, nil
+}
+
+// Text returns the string named n, or an error naming what is missing.
+func (vs Values) Text(n string) (string, error) {
+	v, ok := vs[n]
+	if !ok {
+		return "", fmt.Errorf("missing value %q", n)
+	}
+	if v.Kind != KindString {
+		return "", fmt.Errorf("value %q is not a string", n)
+	}
+	return v.Str, nil
+}
+
+func validName(s string) bool {
+	if s == "" {
+		return false
+	}
+	for _, r := range s {
+		if r <= ' ' || r == '"' || r == 0x7f {
+			return false
+		}
+	}
+	return true
+}
+
+// FormatFloat writes x in the shortest form that parses back to the same
+// float64 (strconv 'g', precision -1). This is the float text used in keys.
+func FormatFloat(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+
+// line writes the canonical one-line form of a named value:
+//
+//	<name> f <shortest float> <unit>
+//	<name> s <Go-quoted string>
+func (v Value) line(name string) (string, error) {
+	if !validName(name) {
+		return "", fmt.Errorf("invalid value name %q", name)
+	}
+	switch v.Kind {
+	case KindFloat:
+		if math.IsNaN(v.Float) || math.IsInf(v.Float, 0) {
+			return "", fmt.Errorf("value %q is %g: not finite", name, v.Float)
+		}
+		if !validName(v.Unit) {
+			return "", fmt.Errorf("value %q has invalid unit %q (use %q when dimensionless)", name, v.Unit, UnitNone)
+		}
+		return name + " f " + FormatFloat(v.Float) + " " + v.Unit, nil
+	case KindString:
+		return name + " s " + strconv.Quote(v.Str), nil
+	}
+	return "", fmt.Errorf("value %q has no kind", name)
+}
+
+// Encode writes the canonical text of vs: one line per value, sorted by
+// name, each ending in a newline. It fails on non-finite floats, so a NaN
+// can never become a recorded result.
+func (vs Values) Encode() ([]byte, error) {
+	var b strings.Builder
+	for _, n := range vs.Names() {
+		l, err := vs[n].line(n)
+		if err != nil {
+			return nil, err
+		}
+		b.WriteString(l)
+		b.WriteByte('\n')
+	}
+	return []byte(b.String()), nil
+}
+
+// DecodeValues parses the canonical text written by Encode.
+func DecodeValues(data []byte) (Values, error) {
+	vs := Values{}
+	for i, l := range strings.Split(string(data), "\n") {
+		if l == "" {
+			continue
+		}
+		name, rest, ok1 := strings.Cut(l, " ")
+		kind, body, ok2 := strings.Cut(rest, " ")
+		if !ok1 || !ok2 {
+			return nil, fmt.Errorf("line %d: malformed value %q", i+1, l)
+		}
+		switch kind {
+		case "f":
+			num, unit, ok := strings.Cut(body, " ")
+			if !ok {
+				return nil, fmt.Errorf("line %d: float without unit %q", i+1, l)
+			}
+			x, err := strconv.ParseFloat(num, 64)
+			if err != nil {
+				return nil, fmt.Errorf("line %d: %v", i+1, err)
+			}
+			vs[name] = Float(x, unit)
+		case "s":
+			s, err := strconv.Unquote(body)
+			if err != nil {
+				return nil, fmt.Errorf("line %d: bad string %q: %v", i+1, body, err)
+			}
+			vs[name] = String(s)
+		default:
+			return nil, fmt.Errorf("line %d: unknown kind %q", i+1, kind)
+		}
+	}
+	return vs, nil
+}

@@ -1,0 +1,123 @@
+package canonical
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/inflatrace/inflatrace/stages/model"
+	"github.com/inflatrace/inflatrace/stages/num"
+)
+
+// Settings controls Verify. Nil means the defaults.
+type Settings struct {
+	// Tol is the largest accepted deviation, relative to max(1, |phi|) for
+	// the map and to |V|, |V'| for the potential; default 1e-9.
+	Tol float64
+	// Quad controls the quadrature of sqrt(K); default relative 1e-13.
+	Quad *num.QuadSettings
+}
+
+// Report is what Verify measured.
+type Report struct {
+	Canonical  bool    // the model's kinetic term is already canonical
+	Field      string  // the native field's name ("phi" when canonical)
+	MapFormula string  // the analytic map, in words
+	Points     int     // field values checked
+	MapDev     float64 // max |phi_quad - phi_analytic| / max(1, |phi|)
+	InverseDev float64 // max |x(phi(x)) - x| / max(1, |x|)
+	PotDev     float64 // max relative deviation of V(x) from V(phi(x))
+	SlopeDev   float64 // max relative deviation of V_x/sqrt(K) from dV/dphi
+}
+
+// sampleFractions are the positions, as fractions of the canonical range,
+// at which the map is checked.
+var sampleFractions = []float64{0.01, 0.03, 0.07, 0.12, 0.2, 0.3, 0.4, 0.5}
+
+// Verify checks the analytic canonical map of m numerically. For a
+// canonical model it reports the identity. Otherwise, at field values
+// spread over the canonical range, it compares
+//   - phi(x) with the quadrature of sqrt(K) from the origin to x,
+//   - the inverse map's round trip,
+//   - V(x) with the canonical V(phi(x)), and V_x/sqrt(K) with dV/dphi,
+//
+// and fails when any deviation exceeds the tolerance.
+func Verify(m *model.Model, s *Settings) (Report, error) {
+	if m.Native == nil {
+		return Report{Canonical: true, Field: "phi", MapFormula: "phi (canonical kinetic term)"}, nil
+	}
+	tol := 1e-9
+	quad := &num.QuadSettings{RelTol: 1e-13, AbsTol: 1e-14}
+	if s != nil {
+		if s.Tol > 0 {
+			tol = s.Tol
+		}
+		if s.Quad != nil {
+			quad = s.Quad
+		}
+	}
+	nf := m.Native
+	rep := Report{Field: nf.Name, MapFormula: nf.MapFormula}
+	sqrtK := func(x float64) float64 { return math.Sqrt(nf.Kinetic(x)) }
+	phi0 := nf.ToCanonical(nf.Origin)
+	hi := m.Hi
+	for _, t := range sampleFractions {
+		phi := m.Lo + (hi-m.Lo)*t
+		x := nf.FromCanonical(phi)
+		if !(x >= nf.Lo && x <= nf.Hi) {
+			return rep, fmt.Errorf("%s: the map sends phi = %g to %s = %g, outside its domain (%g, %g)", m.Describe(), phi, nf.Name, x, nf.Lo, nf.Hi)
+		}
+		// Close to a pole of K (or on it, by rounding), x itself carries too
+		// few digits to test the map to the tolerance; such points are
+		// skipped.
+		if edgeGap(x, nf.Lo, nf.Hi) < 1e-6 {
+			continue
+		}
+		k := nf.Kinetic(x)
+		if !(k > 0) || math.IsInf(k, 0) {
+			return rep, fmt.Errorf("%s: kinetic function K(%s = %g) = %g, want a positive finite value", m.Describe(), nf.Name, x, k)
+		}
+		q, err := num.Integrate(sqrtK, nf.Origin, x, quad)
+		if err != nil {
+			return rep, fmt.Errorf("%s: quadrature of sqrt(K) to %s = %g: %w", m.Describe(), nf.Name, x, err)
+		}
+		pa := nf.ToCanonical(x) - phi0
+		rep.MapDev = math.Max(rep.MapDev, math.Abs(q.Value-pa)/math.Max(1, math.Abs(pa)))
+		rep.InverseDev = math.Max(rep.InverseDev, math.Abs(nf.FromCanonical(nf.ToCanonical(x))-x)/math.Max(1, math.Abs(x)))
+		vn := nf.V(num.Var(x))
+		vc := m.At(pa)
+		rep.PotDev = math.Max(rep.PotDev, relDev(vn.V, vc.V))
+		rep.SlopeDev = math.Max(rep.SlopeDev, relDev(vn.D1/math.Sqrt(k), vc.D1))
+		rep.Points++
+	}
+	if rep.Points == 0 {
+		return rep, fmt.Errorf("%s: no field value in the range could be checked", m.Describe())
+	}
+	for _, d := range []struct {
+		what string
+		v    float64
+	}{{"canonical map against the quadrature of sqrt(K)", rep.MapDev}, {"inverse map", rep.InverseDev},
+		{"potential in the two fields", rep.PotDev}, {"potential slope in the two fields", rep.SlopeDev}} {
+		if !(d.v <= tol) {
+			return rep, fmt.Errorf("%s: %s deviates by %.3g (tolerance %g)", m.Describe(), d.what, d.v, tol)
+		}
+	}
+	return rep, nil
+}
+
+func edgeGap(x, lo, hi float64) float64 {
+	g := math.Inf(1)
+	if !math.IsInf(lo, 0) {
+		g = math.Min(g, (x-lo)/math.Max(1, math.Abs(lo)+math.Abs(x)))
+	}
+	if !math.IsInf(hi, 0) {
+		g = math.Min(g, (hi-x)/math.Max(1, math.Abs(hi)+math.Abs(x)))
+	}
+	return g
+}
+
+func relDev(a, b float64) float64 {
+	if a == b {
+		return 0
+	}
+	return math.Abs(a-b) / math.Max(math.Abs(a), math.Abs(b))
+}

@@ -1,0 +1,105 @@
+package compare
+
+import (
+	"fmt"
+	"math"
+)
+
+// HalfNormal95 is the 95% quantile of a half-normal distribution in units
+// of its sigma, sqrt(2) erfinv(0.95) = 1.959964: a one-sided 95% upper
+// limit r95 on a parameter bounded below by zero, with its likelihood
+// peaked at zero, corresponds to sigma_r = r95/1.959964 (common practice).
+var HalfNormal95 = math.Sqrt2 * math.Erfinv(0.95)
+
+// Gaussian is a bivariate Gaussian approximation of a published (n_s, r)
+// constraint, with r restricted to r >= 0.
+type Gaussian struct {
+	Name     string
+	Citation string
+	MeanNs   float64
+	SigmaNs  float64
+	MeanR    float64
+	SigmaR   float64
+	Rho      float64 // correlation coefficient of n_s and r, in (-1, 1)
+}
+
+// Check refuses a malformed constraint, naming the field.
+func (g Gaussian) Check() error {
+	switch {
+	case !(g.SigmaNs > 0) || math.IsInf(g.SigmaNs, 0):
+		return fmt.Errorf("constraint %s: sigma of n_s = %g, want > 0", g.Name, g.SigmaNs)
+	case !(g.SigmaR > 0) || math.IsInf(g.SigmaR, 0):
+		return fmt.Errorf("constraint %s: sigma of r = %g, want > 0", g.Name, g.SigmaR)
+	case !(g.Rho > -1 && g.Rho < 1):
+		return fmt.Errorf("constraint %s: correlation %g, want -1 < rho < 1", g.Name, g.Rho)
+	case math.IsNaN(g.MeanNs) || math.IsInf(g.MeanNs, 0) || math.IsNaN(g.MeanR) || math.IsInf(g.MeanR, 0):
+		return fmt.Errorf("constraint %s: means must be finite", g.Name)
+	}
+	return nil
+}
+
+// chi2 is the quadratic form d^T C^-1 d.
+func (g Gaussian) chi2(ns, r float64) float64 {
+	x := (ns - g.MeanNs) / g.SigmaNs
+	y := (r - g.MeanR) / g.SigmaR
+	return (x*x - 2*g.Rho*x*y + y*y) / (1 - g.Rho*g.Rho)
+}
+
+// DeltaChi2 returns chi^2(n_s, r) minus its minimum over the allowed region
+// r >= 0. When the mean has r < 0 the minimum lies on r = 0, where the
+// conditional minimum of the quadratic form is (mean_r/sigma_r)^2.
+func (g Gaussian) DeltaChi2(ns, r float64) float64 {
+	min := 0.0
+	if g.MeanR < 0 {
+		y := g.MeanR / g.SigmaR
+		min = y * y
+	}
+	return g.chi2(ns, r) - min
+}
+
+// Sigmas converts Delta chi^2 for k = 2 parameters to the number of
+// standard deviations of a one-dimensional Gaussian with the same tail
+// probability: p = exp(-Delta chi^2/2) (the chi^2 survival function for two
+// degrees of freedom), n = sqrt(2) erfcinv(p). Delta chi^2 = 2.30 and 6.18
+// give 1 and 2 sigma (68.27% and 95.45%). For p below the smallest float64
+// the asymptotic expansion of erfc is inverted instead.
+func Sigmas(dchi2 float64) float64 {
+	if !(dchi2 > 0) {
+		return 0
+	}
+	p := math.Exp(-dchi2 / 2)
+	if p > 1e-300 {
+		return math.Sqrt2 * math.Erfcinv(p)
+	}
+	// erfc(x) ~ exp(-x^2)/(x sqrt(pi)) for large x: solve
+	// x^2 + ln x + ln sqrt(pi) = dchi2/2 by fixed-point iteration.
+	target := dchi2 / 2
+	x := math.Sqrt(target)
+	for i := 0; i < 50; i++ {
+		x = math.Sqrt(target - math.Log(x) - 0.5*math.Log(math.Pi))
+	}
+	return math.Sqrt2 * x
+}
+
+// Comparison is the result of comparing one prediction with a constraint.
+type Comparison struct {
+	DeltaChi2 float64
+	Sigmas    float64
+	Inside68  bool // Delta chi^2 <= 2.2958 (68.27% for two parameters)
+	Inside95  bool // Delta chi^2 <= 6.1801 (95.45% for two parameters)
+}
+
+// Chi2Level returns the Delta chi^2 enclosing probability P for two
+// parameters, -2 ln(1 - P).
+func Chi2Level(P float64) float64 { return -2 * math.Log(1-P) }
+
+// Compare evaluates the prediction (n_s, r) against g.
+func (g Gaussian) Compare(ns, r float64) Comparison {
+	d := g.DeltaChi2(ns, r)
+	return Comparison{
+		DeltaChi2: d,
+		Sigmas:    Sigmas(d),
+		Inside68:  d <= Chi2Level(math.Erf(1/math.Sqrt2)),
+		Inside95:  d <= Chi2Level(math.Erf(2/math.Sqrt2)),
+	}
+}

@@ -1,0 +1,174 @@
+package model
+
+import (
+	"math"
+
+	"github.com/inflatrace/inflatrace/stages/num"
+)
+
+var inf = math.Inf(1)
+var noDefault = math.NaN()
+
+func init() {
+	register(tModel)
+	register(eModel)
+	register(starobinsky)
+	register(powerLaw)
+	register(natural)
+	register(hilltop)
+}
+
+var alphaParam = Param{Name: "alpha", Unit: "1", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
+	Doc: "alpha-attractor parameter; the Kähler curvature is R_K = -2/(3 alpha)"}
+var nParam = Param{Name: "n", Unit: "1", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: 1,
+	Doc: "power of the potential's monomial in the native field"}
+
+// tModel is the alpha-attractor T-model, V = V0 tanh^(2n)(phi/sqrt(6 alpha)).
+// It is V0 (chi^2/(6 alpha))^n on the Poincaré disk chi^2 < 6 alpha with
+// kinetic function K(chi) = 1/(1 - chi^2/(6 alpha))^2, whose canonical map
+// is chi = sqrt(6 alpha) tanh(phi/sqrt(6 alpha)) (Kallosh & Linde 2013,
+// arXiv:1306.5220; Kallosh, Linde & Roest 2013, arXiv:1311.0472).
+var tModel = &Family{
+	Name:      "t-model",
+	Formula:   "V = V0 tanh^(2n)(phi/sqrt(6 alpha)) = V0 (chi^2/(6 alpha))^n on the disk chi^2 < 6 alpha",
+	Reference: "Kallosh & Linde 2013, JCAP 07 (2013) 002, arXiv:1306.5220; Kallosh, Linde & Roest 2013, JHEP 11 (2013) 198, arXiv:1311.0472",
+	Params:    []Param{alphaParam, nParam},
+	build: func(p map[string]float64) *Model {
+		alpha, n := p["alpha"], p["n"]
+		s := math.Sqrt(6 * alpha)
+		return &Model{
+			Family: "t-model", Params: p,
+			V: func(phi num.Jet) num.Jet {
+				return num.PowConst(num.Tanh(num.Scale(1/s, phi)), 2*n)
+			},
+			Lo: 0, Hi: math.Max(14*s, 60*math.Sqrt(n)),
+			Native: &NativeField{
+				Name: "chi", Lo: -s, Hi: s, Origin: 0,
+				Kinetic: func(x float64) float64 {
+					q := 1 - x*x/(6*alpha)
+					return 1 / (q * q)
+				},
+				V: func(x num.Jet) num.Jet {
+					return num.PowConst(num.Scale(1/(6*alpha), num.Mul(x, x)), n)
+				},
+				ToCanonical:   func(x float64) float64 { return s * math.Atanh(x/s) },
+				FromCanonical: func(phi float64) float64 { return s * math.Tanh(phi/s) },
+				MapFormula:    "chi = sqrt(6 alpha) tanh(phi/sqrt(6 alpha))",
+			},
+		}
+	},
+}
+
+// eModel is the alpha-attractor E-model,
+// V = V0 (1 - exp(-sqrt(2/(3 alpha)) phi))^(2n). Its native variable is the
+// half-plane coordinate y > 0 with K(y) = 3 alpha/(2 y^2) (from the Kähler
+// potential -3 alpha ln(T + conj T) at real T = y/2), so that
+// y = exp(sqrt(2/(3 alpha)) phi) and V = V0 (1 - 1/y)^(2n)
+// (Kallosh, Linde & Roest 2013, arXiv:1311.0472). For alpha = 1, n = 1 it
+// is the Starobinsky potential.
+var eModel = &Family{
+	Name:      "e-model",
+	Formula:   "V = V0 (1 - exp(-sqrt(2/(3 alpha)) phi))^(2n) = V0 (1 - 1/y)^(2n) on the half-plane y > 0",
+	Reference: "Kallosh, Linde & Roest 2013, JHEP 11 (2013) 198, arXiv:1311.0472",
+	Params:    []Param{alphaParam, nParam},
+	build: func(p map[string]float64) *Model {
+		alpha, n := p["alpha"], p["n"]
+		b := math.Sqrt(2 / (3 * alpha))
+		return &Model{
+			Family: "e-model", Params: p,
+			V:  func(phi num.Jet) num.Jet { return plateauExp(phi, b, 2*n) },
+			Lo: 0, Hi: math.Max(30/b, 60*math.Sqrt(n)),
+			Native: &NativeField{
+				Name: "y", Lo: 0, Hi: inf, Origin: 1,
+				Kinetic: func(y float64) float64 { return 3 * alpha / (2 * y * y) },
+				V: func(y num.Jet) num.Jet {
+					return num.PowConst(num.Sub(num.Const(1), num.Recip(y)), 2*n)
+				},
+				ToCanonical:   func(y float64) float64 { return math.Log(y) / b },
+				FromCanonical: func(phi float64) float64 { return math.Exp(b * phi) },
+				MapFormula:    "y = exp(sqrt(2/(3 alpha)) phi)",
+			},
+		}
+	},
+}
+
+// plateauExp returns (1 - exp(-b phi))^q.
+func plateauExp(phi num.Jet, b, q float64) num.Jet {
+	return num.PowConst(num.Sub(num.Const(1), num.Exp(num.Scale(-b, phi))), q)
+}
+
+// starobinsky is the Einstein-frame potential of R + R^2/(6 M^2) gravity,
+// V = V0 (1 - exp(-sqrt(2/3) phi))^2 (Starobinsky 1980, PLB 91, 99).
+var starobinsky = &Family{
+	Name:      "starobinsky",
+	Formula:   "V = V0 (1 - exp(-sqrt(2/3) phi))^2",
+	Reference: "Starobinsky 1980, Phys. Lett. B 91, 99",
+	build: func(p map[string]float64) *Model {
+		b := math.Sqrt(2.0 / 3)
+		return &Model{
+			Family: "starobinsky", Params: p,
+			V:  func(phi num.Jet) num.Jet { return plateauExp(phi, b, 2) },
+			Lo: 0, Hi: 30 / b,
+		}
+	},
+}
+
+// powerLaw is chaotic inflation V = V0 phi^p (Linde 1983, PLB 129, 177).
+var powerLaw = &Family{
+	Name:      "power-law",
+	Formula:   "V = V0 phi^p",
+	Reference: "Linde 1983, Phys. Lett. B 129, 177",
+	Params: []Param{{Name: "p", Unit: "1", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
+		Doc: "power of the monomial"}},
+	build: func(p map[string]float64) *Model {
+		q := p["p"]
+		return &Model{
+			Family: "power-law", Params: p,
+			V:  func(phi num.Jet) num.Jet { return num.PowConst(phi, q) },
+			Lo: 0, Hi: 200 * math.Sqrt(q),
+		}
+	},
+}
+
+// natural is natural inflation V = V0 (1 + cos(phi/f)) (Freese, Frieman &
+// Olinto 1990, PRL 65, 3233; Adams et al. 1993, PRD 47, 426,
+// hep-ph/9207245). The field rolls from the maximum at phi = 0 towards the
+// minimum at phi = pi f.
+var natural = &Family{
+	Name:      "natural",
+	Formula:   "V = V0 (1 + cos(phi/f))",
+	Reference: "Freese, Frieman & Olinto 1990, PRL 65, 3233; Adams, Bond, Freese, Frieman & Olinto 1993, PRD 47, 426, hep-ph/9207245",
+	Params: []Param{{Name: "f", Unit: "M_p", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
+		Doc: "axion decay constant"}},
+	build: func(p map[string]float64) *Model {
+		f := p["f"]
+		return &Model{
+			Family: "natural", Params: p,
+			V:  func(phi num.Jet) num.Jet { return num.AddConst(num.Cos(num.Scale(1/f, phi)), 1) },
+			Lo: 0, Hi: math.Pi * f,
+		}
+	},
+}
+
+// hilltop is V = V0 (1 - (phi/mu)^p), valid for 0 < phi < mu, with p = 2
+// (quadratic) and p = 4 (quartic) the usual cases (Boubekeur & Lyth 2005,
+// JCAP 07 (2005) 010, hep-ph/0502047).
+var hilltop = &Family{
+	Name:      "hilltop",
+	Formula:   "V = V0 (1 - (phi/mu)^p), 0 < phi < mu",
+	Reference: "Boubekeur & Lyth 2005, JCAP 07 (2005) 010, hep-ph/0502047",
+	Params: []Param{
+		{Name: "mu", Unit: "M_p", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault, Doc: "hilltop width"},
+		{Name: "p", Unit: "1", Min: 2, Max: inf, MaxOpen: true, Default: 2, Doc: "power (2 quadratic, 4 quartic)"},
+	},
+	build: func(p map[string]float64) *Model {
+		mu, q := p["mu"], p["p"]
+		return &Model{
+			Family: "hilltop", Params: p,
+			V: func(phi num.Jet) num.Jet {
+				return num.Sub(num.Const(1), num.PowConst(num.Scale(1/mu, phi), q))
+			},
+			Lo: 0, Hi: mu,
+		}
+	},
+}

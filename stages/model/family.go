@@ -1,0 +1,138 @@
+package model
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+)
+
+// Param declares one family parameter: its unit and the open or closed
+// interval it must lie in.
+type Param struct {
+	Name string
+	Unit string // "1" (dimensionless) or "M_p"
+	// Min and Max bound the value; MinOpen/MaxOpen make the bound strict.
+	Min, Max         float64
+	MinOpen, MaxOpen bool
+	// Default, when not NaN, is used if the parameter is not given.
+	Default float64
+	Doc     string
+}
+
+// Family is a built-in model family.
+type Family struct {
+	Name      string
+	Formula   string // the potential, in words
+	Reference string // a published reference for the family
+	Params    []Param
+	build     func(p map[string]float64) *Model
+}
+
+// ParamNames returns the declared parameter names in order.
+func (f *Family) ParamNames() []string {
+	names := make([]string, len(f.Params))
+	for i, p := range f.Params {
+		names[i] = p.Name
+	}
+	return names
+}
+
+// ParamError reports a bad family parameter.
+type ParamError struct {
+	Family, Param string
+	Msg           string
+}
+
+func (e *ParamError) Error() string {
+	if e.Param == "" {
+		return fmt.Sprintf("family %s: %s", e.Family, e.Msg)
+	}
+	return fmt.Sprintf("family %s: parameter %s: %s", e.Family, e.Param, e.Msg)
+}
+
+// New builds a model from the given parameters, applying defaults and
+// checking every value against its declared range. Unknown and missing
+// parameters are errors that list the allowed names.
+func (f *Family) New(given map[string]float64) (*Model, error) {
+	p := map[string]float64{}
+	allowed := strings.Join(f.ParamNames(), ", ")
+	if allowed == "" {
+		allowed = "none"
+	}
+	known := map[string]bool{}
+	for _, d := range f.Params {
+		known[d.Name] = true
+	}
+	var unknown []string
+	for n := range given {
+		if !known[n] {
+			unknown = append(unknown, n)
+		}
+	}
+	if len(unknown) > 0 {
+		sort.Strings(unknown)
+		return nil, &ParamError{Family: f.Name, Param: unknown[0], Msg: "unknown parameter (allowed: " + allowed + ")"}
+	}
+	for _, d := range f.Params {
+		v, ok := given[d.Name]
+		if !ok {
+			if math.IsNaN(d.Default) {
+				return nil, &ParamError{Family: f.Name, Param: d.Name, Msg: "missing (required: " + allowed + ")"}
+			}
+			v = d.Default
+		}
+		if err := d.check(v); err != nil {
+			return nil, &ParamError{Family: f.Name, Param: d.Name, Msg: err.Error()}
+		}
+		p[d.Name] = v
+	}
+	return f.build(p), nil
+}
+
+func (d Param) check(v float64) error {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return fmt.Errorf("value %g is not finite", v)
+	}
+	lowOK := v > d.Min || (!d.MinOpen && v == d.Min)
+	highOK := v < d.Max || (!d.MaxOpen && v == d.Max)
+	if !lowOK || !highOK {
+		return fmt.Errorf("value %g outside %s", v, d.Interval())
+	}
+	return nil
+}
+
+// Interval writes the allowed range, e.g. "(0, inf)".
+func (d Param) Interval() string {
+	l, r := "[", "]"
+	if d.MinOpen {
+		l = "("
+	}
+	if d.MaxOpen {
+		r = ")"
+	}
+	return fmt.Sprintf("%s%g, %g%s", l, d.Min, d.Max, r)
+}
+
+var registry = map[string]*Family{}
+
+func register(f *Family) { registry[f.Name] = f }
+
+// Lookup returns the built-in family with this name, or an error listing
+// the known families.
+func Lookup(name string) (*Family, error) {
+	if f, ok := registry[name]; ok {
+		return f, nil
+	}
+	return nil, fmt.Errorf("unknown model family %q (known: %s)", name, strings.Join(Names(), ", "))
+}
+
+// Names lists the built-in families in sorted order.
+func Names() []string {
+	names := make([]string, 0, len(registry))
+	for n := range registry {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	return names
+}

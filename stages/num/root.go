@@ -1,0 +1,129 @@
+package num
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// RootSettings controls Brent. The zero value and nil mean the defaults.
+type RootSettings struct {
+	// XTol is the absolute tolerance on the root; default 4 machine epsilons
+	// relative to |x| plus 1e-15.
+	XTol float64
+	// MaxIter bounds the iterations; default 200.
+	MaxIter int
+}
+
+// RootResult is the outcome of a root search.
+type RootResult struct {
+	X, F  float64 // the root and the function value there
+	Iter  int     // iterations used
+	Evals int     // function evaluations
+}
+
+// ErrNoBracket is returned (wrapped) when f(a) and f(b) have the same sign.
+var ErrNoBracket = errors.New("root not bracketed")
+
+// Brent finds a root of f in [a, b], where f(a) and f(b) must differ in sign
+// (or one of them be zero). It is Brent's method (inverse quadratic
+// interpolation safeguarded by bisection): R. P. Brent, "Algorithms for
+// Minimization without Derivatives" (1973), chapter 4, algorithm zero.
+func Brent(f func(float64) float64, a, b float64, s *RootSettings) (RootResult, error) {
+	fa, fb := f(a), f(b)
+	return BrentF(f, a, b, fa, fb, s)
+}
+
+// BrentF is Brent with the end-point values already known.
+func BrentF(f func(float64) float64, a, b, fa, fb float64, s *RootSettings) (RootResult, error) {
+	xtol, maxIter := 0.0, 200
+	if s != nil {
+		if s.XTol > 0 {
+			xtol = s.XTol
+		}
+		if s.MaxIter > 0 {
+			maxIter = s.MaxIter
+		}
+	}
+	res := RootResult{Evals: 2}
+	if math.IsNaN(fa) || math.IsNaN(fb) {
+		return res, fmt.Errorf("function is NaN at a bracket end (f(%g)=%g, f(%g)=%g)", a, fa, b, fb)
+	}
+	if fa == 0 {
+		res.X, res.F = a, 0
+		return res, nil
+	}
+	if fb == 0 {
+		res.X, res.F = b, 0
+		return res, nil
+	}
+	if (fa > 0) == (fb > 0) {
+		return res, fmt.Errorf("%w: f(%g)=%g and f(%g)=%g", ErrNoBracket, a, fa, b, fb)
+	}
+	c, fc := a, fa
+	d := b - a
+	e := d
+	for res.Iter = 1; res.Iter <= maxIter; res.Iter++ {
+		if (fb > 0) == (fc > 0) {
+			c, fc = a, fa
+			d = b - a
+			e = d
+		}
+		if math.Abs(fc) < math.Abs(fb) {
+			a, b, c = b, c, b
+			fa, fb, fc = fb, fc, fb
+		}
+		tol := 2*2.220446049250313e-16*math.Abs(b) + 0.5*xtol
+		if xtol == 0 {
+			tol = 4*2.220446049250313e-16*math.Abs(b) + 1e-15
+		}
+		m := 0.5 * (c - b)
+		if math.Abs(m) <= tol || fb == 0 {
+			res.X, res.F = b, fb
+			return res, nil
+		}
+		if math.Abs(e) >= tol && math.Abs(fa) > math.Abs(fb) {
+			var p, q float64
+			sr := fb / fa
+			if a == c {
+				p = 2 * m * sr
+				q = 1 - sr
+			} else {
+				qq := fa / fc
+				rr := fb / fc
+				p = sr * (2*m*qq*(qq-rr) - (b-a)*(rr-1))
+				q = (qq - 1) * (rr - 1) * (sr - 1)
+			}
+			if p > 0 {
+				q = -q
+			} else {
+				p = -p
+			}
+			if 2*p < math.Min(3*m*q-math.Abs(tol*q), math.Abs(e*q)) {
+				e = d
+				d = p / q
+			} else {
+				d = m
+				e = m
+			}
+		} else {
+			d = m
+			e = m
+		}
+		a, fa = b, fb
+		if math.Abs(d) > tol {
+			b += d
+		} else if m > 0 {
+			b += tol
+		} else {
+			b -= tol
+		}
+		fb = f(b)
+		res.Evals++
+		if math.IsNaN(fb) {
+			return res, fmt.Errorf("function is NaN at x=%g during root search", b)
+		}
+	}
+	res.X, res.F = b, fb
+	return res, fmt.Errorf("root search did not converge in %d iterations (x=%g, f=%g)", maxIter, b, fb)
+}

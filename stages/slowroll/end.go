@@ -1,0 +1,152 @@
+package slowroll
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"github.com/inflatrace/inflatrace/stages/model"
+	"github.com/inflatrace/inflatrace/stages/num"
+)
+
+// End is the end of inflation.
+type End struct {
+	Phi float64 // field value where epsilon_V = 1 [M_p]
+	// Direction is +1 when the field grows during inflation, -1 when it
+	// decreases (the sign of -V').
+	Direction float64
+	V         float64 // potential there (V0 = 1)
+}
+
+// Settings controls the slow-roll solution. Nil means the defaults.
+type Settings struct {
+	// ScanPoints is the number of field values at which epsilon_V is
+	// sampled to bracket the end of inflation; default 96.
+	ScanPoints int
+	// Quad controls the e-fold quadrature; default relative 1e-12.
+	Quad *num.QuadSettings
+}
+
+func (s *Settings) scanPoints() int {
+	if s == nil || s.ScanPoints <= 0 {
+		return 96
+	}
+	return s.ScanPoints
+}
+
+func (s *Settings) quad() *num.QuadSettings {
+	if s == nil || s.Quad == nil {
+		return &num.QuadSettings{RelTol: 1e-12, AbsTol: 1e-13}
+	}
+	return s.Quad
+}
+
+// RangeError reports that inflation does not behave as required inside
+// the searched field range.
+type RangeError struct {
+	Model  string
+	Lo, Hi float64
+	Msg    string
+}
+
+func (e *RangeError) Error() string {
+	return fmt.Sprintf("%s: %s (field range %g < phi < %g M_p)", e.Model, e.Msg, e.Lo, e.Hi)
+}
+
+// scanGrid returns ScanPoints field values strictly inside (lo, hi):
+// uniform in the middle and geometrically refined towards both ends, so an
+// end of inflation close to an edge of the range is still bracketed.
+func scanGrid(lo, hi float64, n int) []float64 {
+	w := hi - lo
+	us := make([]float64, 0, n)
+	third := n / 3
+	for i := 0; i < third; i++ {
+		t := float64(i) / float64(third)
+		g := math.Pow(10, -12+11*t) // 1e-12 ... 1e-1 of the width
+		us = append(us, g, 1-g)
+	}
+	rest := n - len(us)
+	for i := 1; i <= rest; i++ {
+		us = append(us, float64(i)/float64(rest+1))
+	}
+	sort.Float64s(us)
+	xs := make([]float64, 0, len(us))
+	for _, u := range us {
+		x := lo + w*u
+		if x > lo && x < hi && (len(xs) == 0 || x > xs[len(xs)-1]) {
+			xs = append(xs, x)
+		}
+	}
+	return xs
+}
+
+// FindEnd locates the end of inflation, where epsilon_V = 1, inside the
+// model's field range. It refuses a range in which inflation never ends,
+// never happens, or where the field would climb the potential, and a range
+// with several separate ends.
+func FindEnd(m *model.Model, s *Settings) (End, error) {
+	xs := scanGrid(m.Lo, m.Hi, s.scanPoints())
+	g := make([]float64, len(xs))
+	minEps, maxEps := math.Inf(1), math.Inf(-1)
+	for i, x := range xs {
+		p := At(m, x)
+		if !(p.V > 0) || !finite(p.Epsilon) {
+			// Within a millionth of the range's width of its ends the
+			// potential may vanish (a minimum on the edge, the top of a
+			// hill): no inflation there. Anywhere else it is an error.
+			if math.Min(x-m.Lo, m.Hi-x) < 1e-6*(m.Hi-m.Lo) && !(p.V < 0) {
+				g[i] = math.Inf(1)
+				maxEps = math.Inf(1)
+				continue
+			}
+			if !(p.V > 0) {
+				return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("V = %g <= 0 at phi = %g", p.V, x)}
+			}
+			return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("epsilon_V is %g at phi = %g", p.Epsilon, x)}
+		}
+		g[i] = p.Epsilon - 1
+		minEps, maxEps = math.Min(minEps, p.Epsilon), math.Max(maxEps, p.Epsilon)
+	}
+	if maxEps < 1 {
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("inflation never ends: epsilon_V < 1 everywhere (largest %.3g)", maxEps)}
+	}
+	if minEps > 1 {
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("inflation never happens: epsilon_V > 1 everywhere (smallest %.3g)", minEps)}
+	}
+	type cand struct {
+		i   int
+		dir float64
+	}
+	var ends []cand
+	for i := 0; i+1 < len(xs); i++ {
+		if (g[i] < 0) == (g[i+1] < 0) {
+			continue
+		}
+		slope := m.At(0.5 * (xs[i] + xs[i+1])).D1
+		if !finite(slope) || slope == 0 {
+			continue
+		}
+		dir := -math.Copysign(1, slope)
+		// An end: inflating (g < 0) behind, not inflating ahead, along the roll.
+		if (dir > 0 && g[i] < 0) || (dir < 0 && g[i+1] < 0) {
+			ends = append(ends, cand{i, dir})
+		}
+	}
+	if len(ends) == 0 {
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, "epsilon_V crosses 1 only where the field would climb the potential: no end of inflation"}
+	}
+	if len(ends) > 1 {
+		locs := ""
+		for _, c := range ends {
+			locs += fmt.Sprintf(" %.4g", 0.5*(xs[c.i]+xs[c.i+1]))
+		}
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, "several separate ends of inflation near phi =" + locs + "; narrow the field range"}
+	}
+	c := ends[0]
+	f := func(x float64) float64 { return At(m, x).Epsilon - 1 }
+	r, err := num.BrentF(f, xs[c.i], xs[c.i+1], g[c.i], g[c.i+1], &num.RootSettings{XTol: 1e-15})
+	if err != nil {
+		return End{}, fmt.Errorf("%s: end of inflation: %w", m.Describe(), err)
+	}
+	return End{Phi: r.X, Direction: c.dir, V: m.At(r.X).V}, nil
+}
