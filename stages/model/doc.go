@@ -1,6 +1,6 @@
 // Package model defines inflation models: each built-in family's potential
 // as a function of the canonical inflaton phi (reduced Planck units,
-// M_p = 1), written with num.Jet so that V, V', V'' and V''' are exact, and,
+// M_p = 1), written with num.Jet so that V, V', V” and V”' are exact, and,
 // for models that live on a field with a non-canonical kinetic term, that
 // native field, its kinetic function and the analytic map to phi.
 //

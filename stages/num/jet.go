@@ -5,7 +5,7 @@ import "math"
 // Jet carries a value and its first three derivatives with respect to one
 // independent variable. Arithmetic on jets propagates the derivatives
 // exactly (forward-mode automatic differentiation, truncated at third
-// order), so a potential written once with jets yields V, V', V'' and V'''
+// order), so a potential written once with jets yields V, V', V” and V”'
 // to rounding error, with no finite differences.
 //
 // Composition uses Faà di Bruno's formula to third order:
