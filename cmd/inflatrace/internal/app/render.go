@@ -1,0 +1,85 @@
+package app
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"sort"
+	"strings"
+	"text/tabwriter"
+
+	"github.com/inflatrace/inflatrace/stages/study"
+)
+
+// Table writes rows under a header: aligned columns on a terminal,
+// tab-separated values otherwise (for pipes and files).
+func (e *Env) Table(w io.Writer, header []string, rows [][]string) error {
+	if !e.StdoutTerminal {
+		fmt.Fprintln(w, strings.Join(header, "\t"))
+		for _, r := range rows {
+			fmt.Fprintln(w, strings.Join(r, "\t"))
+		}
+		return nil
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintln(tw, strings.Join(header, "\t"))
+	for _, r := range rows {
+		fmt.Fprintln(tw, strings.Join(r, "\t"))
+	}
+	return tw.Flush()
+}
+
+// JSON writes v as indented JSON.
+func JSON(w io.Writer, v any) error {
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(v)
+}
+
+// ResultHeader is the header of the results table; units are labelled.
+var ResultHeader = []string{"model", "params", "reheating", "N*", "n_s", "r", "alpha_s", "n_t",
+	"V*^1/4 [GeV]", "H* [GeV]", "constraint", "dchi2", "sigma"}
+
+// ResultRows formats results for ResultHeader.
+func ResultRows(rs []study.Result) [][]string {
+	rows := make([][]string, 0, len(rs))
+	for _, r := range rs {
+		row := []string{r.Model, FormatParams(r.Params), r.Reheating}
+		if r.Error != "" {
+			row = append(row, "failed: "+r.Error)
+			rows = append(rows, row)
+			continue
+		}
+		row = append(row,
+			fmt.Sprintf("%.2f", r.NStar), fmt.Sprintf("%.5f", r.Ns), fmt.Sprintf("%.4g", r.R),
+			fmt.Sprintf("%.3g", r.AlphaS), fmt.Sprintf("%.3g", r.Nt),
+			optG(r.EnergyScaleGeV, "%.4g"), optG(r.HStarGeV, "%.4g"),
+			r.Constraint, optG(r.DeltaChi2, "%.2f"), optG(r.NSigma, "%.2f"))
+		rows = append(rows, row)
+	}
+	return rows
+}
+
+func optG(x *float64, format string) string {
+	if x == nil {
+		return "-"
+	}
+	return fmt.Sprintf(format, *x)
+}
+
+// FormatParams writes parameters as "alpha=0.3333 n=1", sorted.
+func FormatParams(p map[string]float64) string {
+	if len(p) == 0 {
+		return "-"
+	}
+	names := make([]string, 0, len(p))
+	for n := range p {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	parts := make([]string, len(names))
+	for i, n := range names {
+		parts[i] = fmt.Sprintf("%s=%.6g", n, p[n])
+	}
+	return strings.Join(parts, " ")
+}

@@ -1,0 +1,320 @@
+package pipeline
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"sync"
+	"time"
+)
+
+// Options control Execute.
+type Options struct {
+	// Jobs bounds how many nodes run at once; values below 1 mean 1.
+	Jobs int
+	// Tool is the tool's identity, salted into every key (for example
+	// "inflatrace/0.1.0"). Required.
+	Tool string
+	// Now is the clock (injected so that only the CLI reads real time).
+	// Durations are measured with it. Required.
+	Now func() time.Time
+	// NoReuse bypasses the cache: every node is computed even when its key
+	// is recorded (the ledger then checks the outputs agree).
+	NoReuse bool
+	// OnNode, if set, is called after each node settles (from the
+	// scheduling goroutine, never concurrently).
+	OnNode func(NodeOutcome)
+}
+
+// NodeOutcome is what happened to one node in a run.
+type NodeOutcome struct {
+	Node       *Node
+	Key        KeyID  // empty when skipped
+	Action     Action // computed, reused or failed; empty when skipped
+	Outputs    Values
+	OutputHash OutputID
+	Err        error // the stage's error for a failed node
+	Skipped    bool  // not run because an upstream node failed
+	Duration   time.Duration
+}
+
+// Report summarises a run.
+type Report struct {
+	Run                               RunID
+	Status                            RunStatus
+	Outcomes                          []NodeOutcome // indexed like Graph.Nodes
+	Computed, Reused, Failed, Skipped int
+}
+
+// StageError is a node's failure, as recorded: the stage, its label and
+// the error the stage returned.
+type StageError struct {
+	Stage, Label string
+	Err          error
+}
+
+func (e *StageError) Error() string {
+	return fmt.Sprintf("%s [%s]: %v", e.Stage, e.Label, e.Err)
+}
+
+func (e *StageError) Unwrap() error { return e.Err }
+
+// Execute runs the graph as one run: it records the run, evaluates nodes in
+// topological order with at most opts.Jobs at once, reuses every node whose
+// key rec already holds, records each node in its own transaction, marks
+// the graph's results and closes the run.
+//
+// A stage error fails only its node (recorded as failed, never as a
+// result) and skips the nodes downstream of it; the run then ends with
+// status failed and Execute returns the report with a nil error. A storage
+// error or a cancelled context stops the run and is returned.
+func Execute(ctx context.Context, rec Recorder, info RunInfo, g *Graph, opts Options) (*Report, error) {
+	if opts.Tool == "" || opts.Now == nil {
+		panic("pipeline.Execute: Options.Tool and Options.Now are required")
+	}
+	if err := rec.BeginRun(ctx, info); err != nil {
+		return nil, fmt.Errorf("begin run %s: %w", info.ID, err)
+	}
+	rep, runErr := schedule(ctx, rec, info.ID, g, opts)
+	if runErr == nil {
+		var refs []ResultRef
+		for i, r := range g.Results {
+			if o := rep.Outcomes[r.Node]; o.Key != "" {
+				refs = append(refs, ResultRef{Ordinal: i, Label: r.Label, Key: o.Key})
+			}
+		}
+		if err := rec.RecordResults(ctx, info.ID, refs); err != nil {
+			runErr = fmt.Errorf("record results of run %s: %w", info.ID, err)
+		}
+	}
+	status, msg := RunSucceeded, ""
+	switch {
+	case runErr != nil:
+		status, msg = RunFailed, runErr.Error()
+	case rep.Failed > 0 || rep.Skipped > 0:
+		status, msg = RunFailed, fmt.Sprintf("%d node(s) failed, %d skipped", rep.Failed, rep.Skipped)
+	}
+	rep.Status = status
+	// Close the run even when ctx was cancelled.
+	if err := rec.FinishRun(context.WithoutCancel(ctx), info.ID, status, opts.Now(), msg); err != nil && runErr == nil {
+		runErr = fmt.Errorf("finish run %s: %w", info.ID, err)
+	}
+	return rep, runErr
+}
+
+type flight struct {
+	done chan struct{}
+	out  NodeOutcome
+}
+
+type scheduler struct {
+	ctx  context.Context
+	rec  Recorder
+	run  RunID
+	opts Options
+
+	mu      sync.Mutex
+	flights map[KeyID]*flight // nodes of this run by key, for in-run duplicates
+}
+
+func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Options) (*Report, error) {
+	n := len(g.Nodes)
+	rep := &Report{Run: run, Outcomes: make([]NodeOutcome, n)}
+	jobs := opts.Jobs
+	if jobs < 1 {
+		jobs = 1
+	}
+	s := &scheduler{ctx: ctx, rec: rec, run: run, opts: opts, flights: map[KeyID]*flight{}}
+	pending := make([]int, n)
+	dependents := make([][]int, n)
+	var ready []int
+	for _, nd := range g.Nodes {
+		pending[nd.Index] = len(nd.Inputs)
+		for _, in := range nd.Inputs {
+			dependents[in] = append(dependents[in], nd.Index)
+		}
+		if len(nd.Inputs) == 0 {
+			ready = append(ready, nd.Index)
+		}
+	}
+	type done struct {
+		out NodeOutcome
+		err error
+	}
+	work := make(chan int)
+	results := make(chan done)
+	var wg sync.WaitGroup
+	for w := 0; w < jobs; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range work {
+				out, err := s.node(g, rep, i)
+				results <- done{out, err}
+			}
+		}()
+	}
+	settled, inflight := 0, 0
+	var firstErr error
+	settle := func(o NodeOutcome) {
+		rep.Outcomes[o.Node.Index] = o
+		settled++
+		switch {
+		case o.Skipped:
+			rep.Skipped++
+		case o.Action == Computed:
+			rep.Computed++
+		case o.Action == Reused:
+			rep.Reused++
+		case o.Action == Failed:
+			rep.Failed++
+		}
+		if opts.OnNode != nil {
+			opts.OnNode(o)
+		}
+	}
+	// release settles node i's dependents that became ready; those with a
+	// failed or skipped input are skipped at once, transitively.
+	var release func(i int)
+	release = func(i int) {
+		for _, d := range dependents[i] {
+			pending[d]--
+			if pending[d] > 0 {
+				continue
+			}
+			ok := true
+			for _, in := range g.Nodes[d].Inputs {
+				if o := rep.Outcomes[in]; o.Skipped || o.Action == Failed {
+					ok = false
+				}
+			}
+			if ok {
+				ready = append(ready, d)
+				continue
+			}
+			settle(NodeOutcome{Node: g.Nodes[d], Skipped: true})
+			release(d)
+		}
+	}
+	for settled < n {
+		for firstErr == nil && len(ready) > 0 && inflight < jobs {
+			if err := ctx.Err(); err != nil {
+				firstErr = fmt.Errorf("run interrupted: %w", err)
+				break
+			}
+			work <- ready[0]
+			ready = ready[1:]
+			inflight++
+		}
+		if inflight == 0 {
+			break // stopped by an error, or nothing left that can run
+		}
+		d := <-results
+		inflight--
+		if d.err != nil {
+			if firstErr == nil {
+				firstErr = d.err
+			}
+			continue
+		}
+		settle(d.out)
+		release(d.out.Node.Index)
+	}
+	close(work)
+	wg.Wait()
+	if firstErr == nil && settled < n {
+		firstErr = errors.New("graph has nodes that can never run (a cycle or a dangling input)")
+	}
+	return rep, firstErr
+}
+
+// node evaluates one node whose inputs have all succeeded. It returns an
+// error only for storage failures.
+func (s *scheduler) node(g *Graph, rep *Report, i int) (NodeOutcome, error) {
+	nd := g.Nodes[i]
+	spec := nd.Stage.Spec()
+	out := NodeOutcome{Node: nd}
+	refs := make([]InputRef, len(nd.Inputs))
+	inputs := make([]Values, len(nd.Inputs))
+	for k, in := range nd.Inputs {
+		o := rep.Outcomes[in] // settled before this node was released
+		refs[k] = InputRef{Stage: g.Nodes[in].Stage.Spec().Name, Key: o.Key, Output: o.OutputHash}
+		inputs[k] = o.Outputs
+	}
+	desc, err := Describe(s.opts.Tool, spec.Name, spec.Version, nd.Params, refs)
+	if err != nil {
+		return out, fmt.Errorf("node %d (%s): %w", i, nd.Label, err)
+	}
+	key := KeyOf(desc)
+	out.Key = key
+
+	// Two nodes of one run with the same key: the second waits for the
+	// first and shares its outcome, recording nothing twice.
+	s.mu.Lock()
+	if f, ok := s.flights[key]; ok {
+		s.mu.Unlock()
+		<-f.done
+		shared := f.out
+		shared.Node = nd
+		if shared.Action == Computed {
+			shared.Action = Reused
+		}
+		shared.Duration = 0
+		return shared, nil
+	}
+	f := &flight{done: make(chan struct{})}
+	s.flights[key] = f
+	s.mu.Unlock()
+	defer close(f.done)
+
+	if !s.opts.NoReuse {
+		stored, found, err := s.rec.Lookup(s.ctx, key)
+		if err != nil {
+			return out, fmt.Errorf("look up %s (%s): %w", key, nd.Label, err)
+		}
+		if found {
+			out.Action, out.Outputs, out.OutputHash = Reused, stored.Outputs, stored.OutputHash
+			if err := s.rec.RecordNode(s.ctx, s.run, stored, Reused); err != nil {
+				return out, fmt.Errorf("record reuse of %s (%s): %w", key, nd.Label, err)
+			}
+			f.out = out
+			return out, nil
+		}
+	}
+	nr := NodeRecord{Key: key, Stage: spec.Name, Version: spec.Version, Params: nd.Params, Inputs: refs, Description: desc}
+	start := s.opts.Now()
+	outputs, runErr := runStage(s.ctx, nd.Stage, nd.Params, inputs)
+	var hash OutputID
+	if runErr == nil {
+		hash, _, runErr = OutputHash(outputs)
+		if runErr != nil {
+			runErr = fmt.Errorf("stage produced unrecordable outputs: %w", runErr)
+		}
+	}
+	out.Duration = s.opts.Now().Sub(start)
+	nr.Duration = out.Duration
+	if runErr != nil {
+		out.Action, out.Err = Failed, &StageError{Stage: spec.Name, Label: nd.Label, Err: runErr}
+		nr.Status, nr.Error = NodeFailed, runErr.Error()
+	} else {
+		out.Action, out.Outputs, out.OutputHash = Computed, outputs, hash
+		nr.Status, nr.Outputs, nr.OutputHash = NodeOK, outputs, hash
+	}
+	if err := s.rec.RecordNode(s.ctx, s.run, nr, out.Action); err != nil {
+		return out, fmt.Errorf("record %s (%s): %w", key, nd.Label, err)
+	}
+	f.out = out
+	return out, nil
+}
+
+// runStage calls the stage, turning a panic into an error so that one bad
+// node cannot take down the run (panics are programmer errors, reported
+// with the stage's name).
+func runStage(ctx context.Context, st Stage, params Values, inputs []Values) (out Values, err error) {
+	defer func() {
+		if r := recover(); r != nil {
+			err = fmt.Errorf("stage %s panicked: %v", st.Spec().Name, r)
+		}
+	}()
+	return st.Run(ctx, params, inputs)
+}

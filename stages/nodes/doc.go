@@ -1,0 +1,19 @@
+// Package nodes adapts the numerical stage packages (model, canonical,
+// slowroll, reheat, compare) to pipeline.Stage. Each adapter declares its
+// name, version and parameters, decodes its parameters and its upstream
+// outputs into the numerical package's types, calls it, and encodes the
+// result as unit-labelled pipeline.Values. No numerics live here.
+//
+// The model specification (family, parameters, field range) is carried
+// forward in the outputs of the model, canonical and slow-roll nodes, so
+// that each node can rebuild the model from its direct input alone.
+package nodes
+
+// Stage names, stable across releases: they are part of every key.
+const (
+	ModelStage     = "model"
+	CanonicalStage = "canonical"
+	SlowRollStage  = "slowroll"
+	ReheatStage    = "reheat"
+	CompareStage   = "compare"
+)

@@ -1,0 +1,475 @@
+package study
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/pelletier/go-toml/v2"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/compare"
+	"github.com/inflatrace/inflatrace/stages/model"
+	"github.com/inflatrace/inflatrace/stages/nodes"
+	"github.com/inflatrace/inflatrace/stages/reheat"
+)
+
+// fileConfig is the document's shape. Model tables are decoded loosely
+// (their keys include the family's own parameters) and checked by hand.
+type fileConfig struct {
+	Title         string           `toml:"title"`
+	Description   string           `toml:"description"`
+	SlowRoll      *slowRollConfig  `toml:"slow_roll"`
+	Normalisation *normConfig      `toml:"normalisation"`
+	Reheating     []map[string]any `toml:"reheating"`
+	Constraint    []constraintRef  `toml:"constraint"`
+	Model         []map[string]any `toml:"model"`
+}
+
+type slowRollConfig struct {
+	Method string `toml:"method"`
+	End    string `toml:"end"`
+}
+
+type normConfig struct {
+	As *float64 `toml:"A_s"`
+}
+
+type constraintRef struct {
+	Use  string `toml:"use"`
+	File string `toml:"file"`
+}
+
+// ModelSpec is one fully expanded model of a study.
+type ModelSpec struct {
+	Family     string
+	Label      string             // the user's label, or the family name
+	Params     map[string]float64 // family parameters
+	ParamText  map[string]string  // each parameter as written ("1/3")
+	FieldRange []float64          // nil for the family's default
+}
+
+// Describe returns "label(alpha=1/3, n=1)" with parameters as written.
+func (m ModelSpec) Describe() string {
+	names := make([]string, 0, len(m.Params))
+	for n := range m.Params {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	parts := make([]string, len(names))
+	for i, n := range names {
+		parts[i] = n + "=" + m.ParamText[n]
+	}
+	if len(parts) == 0 {
+		return m.Label
+	}
+	return m.Label + "(" + strings.Join(parts, ", ") + ")"
+}
+
+// HistorySpec is one reheating history of a study.
+type HistorySpec struct {
+	Kind    string  // nodes.HistoryFixed or nodes.HistoryInstant
+	N       float64 // for fixed N*
+	History reheat.History
+}
+
+// Describe returns "N*=55" or "instantaneous".
+func (h HistorySpec) Describe() string {
+	if h.Kind == nodes.HistoryFixed {
+		return "N*=" + pipeline.FormatFloat(h.N)
+	}
+	return h.Kind
+}
+
+// Study is a checked, expanded configuration.
+type Study struct {
+	File        string // path as given
+	Text        []byte // the exact bytes read
+	Title       string
+	Description string
+	Method, End string
+	As          float64
+	Histories   []HistorySpec
+	Constraints []compare.Gaussian
+	Models      []ModelSpec
+}
+
+// Hash is the prefixed SHA-256 of the configuration's bytes.
+func (s *Study) Hash() string { return pipeline.Sum(s.Text) }
+
+// Load reads and checks a configuration file. Constraint files named in it
+// are resolved relative to its directory.
+func Load(path string) (*Study, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("read config: %w", err)
+	}
+	return Parse(path, data, filepath.Dir(path))
+}
+
+type parser struct {
+	file string
+	dir  string
+	pos  positions
+}
+
+// Parse checks a configuration given as bytes; file names it in errors and
+// dir resolves relative constraint files.
+func Parse(file string, data []byte, dir string) (*Study, error) {
+	c := &parser{file: file, dir: dir}
+	var fc fileConfig
+	dec := toml.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&fc); err != nil {
+		return nil, c.decodeError(err)
+	}
+	c.pos = indexPositions(data)
+	s := &Study{File: file, Text: data, Title: fc.Title, Description: fc.Description,
+		Method: nodes.MethodFirst, End: nodes.EndEpsilonVOne, As: reheat.DefaultAs}
+	if fc.SlowRoll != nil {
+		if fc.SlowRoll.Method != "" {
+			s.Method = fc.SlowRoll.Method
+		}
+		if fc.SlowRoll.End != "" {
+			s.End = fc.SlowRoll.End
+		}
+	}
+	if s.Method != nodes.MethodFirst {
+		return nil, c.errAt("slow_roll.method", "unknown method %q (available: %s)", s.Method, nodes.MethodFirst)
+	}
+	if s.End != nodes.EndEpsilonVOne {
+		return nil, c.errAt("slow_roll.end", "unknown end of inflation %q (available: %s)", s.End, nodes.EndEpsilonVOne)
+	}
+	if fc.Normalisation != nil && fc.Normalisation.As != nil {
+		s.As = *fc.Normalisation.As
+		if !(s.As > 0 && s.As < 1) {
+			return nil, c.errAt("normalisation.A_s", "A_s = %g, want 0 < A_s < 1", s.As)
+		}
+	}
+	var err error
+	if s.Histories, err = c.histories(fc.Reheating); err != nil {
+		return nil, err
+	}
+	if s.Constraints, err = c.constraints(fc.Constraint); err != nil {
+		return nil, err
+	}
+	if s.Models, err = c.models(fc.Model); err != nil {
+		return nil, err
+	}
+	return s, nil
+}
+
+func (c *parser) decodeError(err error) error {
+	var sm *toml.StrictMissingError
+	if errors.As(err, &sm) && len(sm.Errors) > 0 {
+		e := sm.Errors[0]
+		line, col := e.Position()
+		return &ConfigError{File: c.file, Line: line, Column: col, Path: strings.Join(e.Key(), "."),
+			Msg: "unknown key (see README, \"Configuration\")"}
+	}
+	var de *toml.DecodeError
+	if errors.As(err, &de) {
+		line, col := de.Position()
+		return &ConfigError{File: c.file, Line: line, Column: col, Path: strings.Join(de.Key(), "."),
+			Msg: strings.TrimPrefix(de.Error(), "toml: ")}
+	}
+	return &ConfigError{File: c.file, Msg: err.Error()}
+}
+
+// number reads a TOML number or a string holding a rational "p/q".
+func number(v any) (float64, string, error) {
+	switch x := v.(type) {
+	case int64:
+		return float64(x), strconv.FormatInt(x, 10), nil
+	case float64:
+		return x, pipeline.FormatFloat(x), nil
+	case string:
+		t := strings.TrimSpace(x)
+		if num, den, ok := strings.Cut(t, "/"); ok {
+			p, err1 := strconv.ParseFloat(strings.TrimSpace(num), 64)
+			q, err2 := strconv.ParseFloat(strings.TrimSpace(den), 64)
+			if err1 != nil || err2 != nil || q == 0 {
+				return 0, "", fmt.Errorf("%q is not a number or a ratio p/q", x)
+			}
+			return p / q, t, nil
+		}
+		f, err := strconv.ParseFloat(t, 64)
+		if err != nil {
+			return 0, "", fmt.Errorf("%q is not a number or a ratio p/q", x)
+		}
+		return f, t, nil
+	}
+	return 0, "", fmt.Errorf("want a number or a ratio such as \"1/3\", got %T", v)
+}
+
+// numbers reads a number or a non-empty list of numbers.
+func numbers(v any) ([]float64, []string, error) {
+	list, ok := v.([]any)
+	if !ok {
+		list = []any{v}
+	}
+	if len(list) == 0 {
+		return nil, nil, errors.New("empty list")
+	}
+	xs := make([]float64, len(list))
+	ts := make([]string, len(list))
+	for i, e := range list {
+		x, t, err := number(e)
+		if err != nil {
+			return nil, nil, err
+		}
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return nil, nil, fmt.Errorf("%s is not finite", t)
+		}
+		xs[i], ts[i] = x, t
+	}
+	return xs, ts, nil
+}
+
+func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
+	if len(tables) == 0 {
+		return nil, c.errAt("", "no [[reheating]] table: give at least one history (fixed-efolds or instantaneous)")
+	}
+	var out []HistorySpec
+	for i, t := range tables {
+		path := fmt.Sprintf("reheating[%d]", i)
+		kind, _ := t["history"].(string)
+		switch kind {
+		case nodes.HistoryFixed:
+			if err := c.allowKeys(path, t, "history", "N_star"); err != nil {
+				return nil, err
+			}
+			v, ok := t["N_star"]
+			if !ok {
+				return nil, c.errAt(path, "history %q needs N_star (a number or a list)", kind)
+			}
+			xs, _, err := numbers(v)
+			if err != nil {
+				return nil, c.errAt(path+".N_star", "%v", err)
+			}
+			for _, N := range xs {
+				if !(N > 0 && N < 1000) {
+					return nil, c.errAt(path+".N_star", "N* = %g, want 0 < N* < 1000", N)
+				}
+				out = append(out, HistorySpec{Kind: kind, N: N})
+			}
+		case nodes.HistoryInstant:
+			if err := c.allowKeys(path, t, "history", "k_pivot_per_Mpc", "T_0_K", "g_s0", "g_reh", "g_s_reh"); err != nil {
+				return nil, err
+			}
+			h := reheat.DefaultHistory()
+			_, hasGS := t["g_s_reh"]
+			for _, f := range []struct {
+				key string
+				dst *float64
+			}{{"k_pivot_per_Mpc", &h.PivotPerMpc}, {"T_0_K", &h.T0K}, {"g_s0", &h.GS0}, {"g_reh", &h.GReh}, {"g_s_reh", &h.GSReh}} {
+				v, ok := t[f.key]
+				if !ok {
+					continue
+				}
+				x, _, err := number(v)
+				if err != nil {
+					return nil, c.errAt(path+"."+f.key, "%v", err)
+				}
+				if !(x > 0) || math.IsInf(x, 0) {
+					return nil, c.errAt(path+"."+f.key, "%g, want a positive finite value", x)
+				}
+				*f.dst = x
+			}
+			if !hasGS {
+				h.GSReh = h.GReh
+			}
+			out = append(out, HistorySpec{Kind: kind, History: h})
+		case "":
+			return nil, c.errAt(path, "missing history = %q or %q", nodes.HistoryFixed, nodes.HistoryInstant)
+		default:
+			return nil, c.errAt(path+".history", "unknown history %q (known: %s, %s)", kind, nodes.HistoryFixed, nodes.HistoryInstant)
+		}
+	}
+	return out, nil
+}
+
+func (c *parser) allowKeys(path string, t map[string]any, allowed ...string) error {
+	ok := map[string]bool{}
+	for _, a := range allowed {
+		ok[a] = true
+	}
+	var bad []string
+	for k := range t {
+		if !ok[k] {
+			bad = append(bad, k)
+		}
+	}
+	if len(bad) == 0 {
+		return nil
+	}
+	sort.Strings(bad)
+	return c.errAt(path+"."+bad[0], "unknown key %q (allowed: %s)", bad[0], strings.Join(allowed, ", "))
+}
+
+func (c *parser) constraints(refs []constraintRef) ([]compare.Gaussian, error) {
+	if len(refs) == 0 {
+		return nil, c.errAt("", "no [[constraint]] table: name at least one constraint set (use = \"name\" or file = \"path\")")
+	}
+	var out []compare.Gaussian
+	seen := map[string]bool{}
+	for i, r := range refs {
+		path := fmt.Sprintf("constraint[%d]", i)
+		var g compare.Gaussian
+		var err error
+		switch {
+		case r.Use != "" && r.File != "":
+			return nil, c.errAt(path, "give use or file, not both")
+		case r.Use != "":
+			if g, err = Shipped(r.Use); err != nil {
+				return nil, c.errAt(path+".use", "%v", err)
+			}
+		case r.File != "":
+			f := r.File
+			if !filepath.IsAbs(f) {
+				f = filepath.Join(c.dir, f)
+			}
+			if g, err = LoadConstraint(f); err != nil {
+				return nil, c.errAt(path+".file", "%v", err)
+			}
+		default:
+			return nil, c.errAt(path, "give use = \"name\" (one of %s) or file = \"path\"", strings.Join(ShippedNames(), ", "))
+		}
+		if seen[g.Name] {
+			return nil, c.errAt(path, "constraint set %q named twice", g.Name)
+		}
+		seen[g.Name] = true
+		out = append(out, g)
+	}
+	return out, nil
+}
+
+func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
+	if len(tables) == 0 {
+		return nil, c.errAt("", "no [[model]] table: give at least one model")
+	}
+	var out []ModelSpec
+	for i, t := range tables {
+		path := fmt.Sprintf("model[%d]", i)
+		family, ok := t["family"].(string)
+		if !ok || family == "" {
+			return nil, c.errAt(path, "missing family = \"...\" (known: %s)", strings.Join(model.Names(), ", "))
+		}
+		fam, err := model.Lookup(family)
+		if err != nil {
+			return nil, c.errAt(path+".family", "%v", err)
+		}
+		label := family
+		if l, ok := t["label"]; ok {
+			s, ok := l.(string)
+			if !ok || s == "" {
+				return nil, c.errAt(path+".label", "label must be a non-empty string")
+			}
+			label = s
+		}
+		var fieldRange []float64
+		if fr, ok := t["field_range"]; ok {
+			xs, _, err := numbers(fr)
+			if err != nil || len(xs) != 2 || !(xs[0] < xs[1]) {
+				return nil, c.errAt(path+".field_range", "want [lo, hi] in M_p with lo < hi")
+			}
+			fieldRange = xs
+		}
+		declared := map[string]bool{}
+		for _, p := range fam.Params {
+			declared[p.Name] = true
+		}
+		type axis struct {
+			name  string
+			xs    []float64
+			texts []string
+		}
+		var axes []axis
+		var keys []string
+		for k := range t {
+			keys = append(keys, k)
+		}
+		sort.Strings(keys)
+		for _, k := range keys {
+			switch k {
+			case "family", "label", "field_range":
+				continue
+			}
+			if !declared[k] {
+				allowed := strings.Join(fam.ParamNames(), ", ")
+				if allowed == "" {
+					allowed = "none"
+				}
+				return nil, c.errAt(path+"."+k, "unknown parameter %q for family %s (parameters: %s; other keys: family, label, field_range)", k, family, allowed)
+			}
+			xs, ts, err := numbers(t[k])
+			if err != nil {
+				return nil, c.errAt(path+"."+k, "%v", err)
+			}
+			axes = append(axes, axis{k, xs, ts})
+		}
+		// Cartesian product, first axis slowest, in sorted parameter order.
+		combos := []ModelSpec{{Family: family, Label: label, Params: map[string]float64{}, ParamText: map[string]string{}, FieldRange: fieldRange}}
+		for _, a := range axes {
+			var next []ModelSpec
+			for _, base := range combos {
+				for j, x := range a.xs {
+					m := base
+					m.Params = cloneF(base.Params)
+					m.ParamText = cloneS(base.ParamText)
+					m.Params[a.name] = x
+					m.ParamText[a.name] = a.texts[j]
+					next = append(next, m)
+				}
+			}
+			combos = next
+		}
+		for _, m := range combos {
+			full, err := fam.New(m.Params) // checks ranges and fills defaults
+			if err != nil {
+				var pe *model.ParamError
+				if errors.As(err, &pe) && pe.Param != "" {
+					if _, given := t[pe.Param]; given {
+						return nil, c.errAt(path+"."+pe.Param, "%v", err)
+					}
+				}
+				return nil, c.errAt(path, "%v", err)
+			}
+			for n, v := range full.Params {
+				if _, ok := m.Params[n]; !ok {
+					m.Params[n] = v
+					m.ParamText[n] = pipeline.FormatFloat(v)
+				}
+			}
+			if fieldRange != nil {
+				if _, err := full.WithRange(fieldRange[0], fieldRange[1]); err != nil {
+					return nil, c.errAt(path+".field_range", "%v", err)
+				}
+			}
+			out = append(out, m)
+		}
+	}
+	return out, nil
+}
+
+func cloneF(m map[string]float64) map[string]float64 {
+	c := make(map[string]float64, len(m))
+	for k, v := range m {
+		c[k] = v
+	}
+	return c
+}
+
+func cloneS(m map[string]string) map[string]string {
+	c := make(map[string]string, len(m))
+	for k, v := range m {
+		c[k] = v
+	}
+	return c
+}

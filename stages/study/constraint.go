@@ -1,0 +1,118 @@
+package study
+
+import (
+	"bytes"
+	"fmt"
+	"io/fs"
+	"math"
+	"os"
+	"path"
+	"sort"
+	"strings"
+
+	"github.com/pelletier/go-toml/v2"
+
+	"github.com/inflatrace/inflatrace/configs"
+	"github.com/inflatrace/inflatrace/stages/compare"
+)
+
+// constraintFile is the format of a constraint set file.
+type constraintFile struct {
+	Name     string `toml:"name"`
+	Title    string `toml:"title"`
+	Citation string `toml:"citation"`
+	Ns       struct {
+		Mean  *float64 `toml:"mean"`
+		Sigma *float64 `toml:"sigma"`
+	} `toml:"n_s"`
+	R struct {
+		Mean    *float64 `toml:"mean"`
+		Sigma   *float64 `toml:"sigma"`
+		Upper95 *float64 `toml:"upper_95"`
+	} `toml:"r"`
+	Approximation struct {
+		Correlation float64 `toml:"correlation"`
+	} `toml:"approximation"`
+}
+
+// ParseConstraint reads a constraint set: n_s as mean and 68% sigma; r as
+// mean and sigma, or as a one-sided 95% upper limit (a half-normal peaked at
+// zero with sigma = upper_95/1.959964); an optional correlation.
+func ParseConstraint(file string, data []byte) (compare.Gaussian, error) {
+	c := &parser{file: file}
+	var cf constraintFile
+	dec := toml.NewDecoder(bytes.NewReader(data))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&cf); err != nil {
+		return compare.Gaussian{}, c.decodeError(err)
+	}
+	c.pos = indexPositions(data)
+	if cf.Name == "" {
+		return compare.Gaussian{}, c.errAt("name", "missing name")
+	}
+	if cf.Citation == "" {
+		return compare.Gaussian{}, c.errAt("citation", "missing citation: every constraint set names its source")
+	}
+	if cf.Ns.Mean == nil || cf.Ns.Sigma == nil {
+		return compare.Gaussian{}, c.errAt("n_s", "needs mean and sigma")
+	}
+	g := compare.Gaussian{Name: cf.Name, Citation: cf.Citation, MeanNs: *cf.Ns.Mean, SigmaNs: *cf.Ns.Sigma, Rho: cf.Approximation.Correlation}
+	switch {
+	case cf.R.Upper95 != nil && (cf.R.Mean != nil || cf.R.Sigma != nil):
+		return compare.Gaussian{}, c.errAt("r", "give mean and sigma, or upper_95, not both")
+	case cf.R.Upper95 != nil:
+		if !(*cf.R.Upper95 > 0) {
+			return compare.Gaussian{}, c.errAt("r.upper_95", "upper limit %g, want > 0", *cf.R.Upper95)
+		}
+		g.MeanR, g.SigmaR = 0, *cf.R.Upper95/compare.HalfNormal95
+	case cf.R.Mean != nil && cf.R.Sigma != nil:
+		g.MeanR, g.SigmaR = *cf.R.Mean, *cf.R.Sigma
+	default:
+		return compare.Gaussian{}, c.errAt("r", "needs mean and sigma, or upper_95")
+	}
+	if err := g.Check(); err != nil {
+		return compare.Gaussian{}, &ConfigError{File: file, Msg: err.Error()}
+	}
+	if math.Abs(g.MeanNs-1) > 0.5 {
+		return compare.Gaussian{}, c.errAt("n_s.mean", "n_s = %g is not plausible", g.MeanNs)
+	}
+	return g, nil
+}
+
+// LoadConstraint reads a constraint set file.
+func LoadConstraint(file string) (compare.Gaussian, error) {
+	data, err := os.ReadFile(file)
+	if err != nil {
+		return compare.Gaussian{}, err
+	}
+	return ParseConstraint(file, data)
+}
+
+// Shipped returns a constraint set shipped in configs/constraints by name.
+func Shipped(name string) (compare.Gaussian, error) {
+	data, err := fs.ReadFile(configs.Constraints, path.Join("constraints", name+".toml"))
+	if err != nil {
+		return compare.Gaussian{}, fmt.Errorf("no shipped constraint set %q (shipped: %s)", name, strings.Join(ShippedNames(), ", "))
+	}
+	g, err := ParseConstraint("configs/constraints/"+name+".toml", data)
+	if err != nil {
+		return g, err
+	}
+	if g.Name != name {
+		return g, fmt.Errorf("configs/constraints/%s.toml names itself %q", name, g.Name)
+	}
+	return g, nil
+}
+
+// ShippedNames lists the shipped constraint sets.
+func ShippedNames() []string {
+	entries, _ := fs.ReadDir(configs.Constraints, "constraints")
+	var names []string
+	for _, e := range entries {
+		if n, ok := strings.CutSuffix(e.Name(), ".toml"); ok {
+			names = append(names, n)
+		}
+	}
+	sort.Strings(names)
+	return names
+}

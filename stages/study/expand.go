@@ -1,0 +1,54 @@
+package study
+
+import (
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/nodes"
+)
+
+// Graph expands the study into the pipeline's DAG. Each compare node is a
+// result, labelled "model(params) | history | constraint".
+func (s *Study) Graph() (*pipeline.Graph, error) {
+	g := &pipeline.Graph{}
+	for _, m := range s.Models {
+		label := m.Describe()
+		mp, err := nodes.ModelParams(m.Family, m.Params, m.FieldRange)
+		if err != nil {
+			return nil, err
+		}
+		mi, err := g.Add(nodes.Model{}, mp, label)
+		if err != nil {
+			return nil, err
+		}
+		ci, err := g.Add(nodes.Canonical{}, pipeline.Values{}, label, mi)
+		if err != nil {
+			return nil, err
+		}
+		sp := pipeline.Values{"method": pipeline.String(s.Method), "end": pipeline.String(s.End)}
+		si, err := g.Add(nodes.SlowRoll{}, sp, label, ci)
+		if err != nil {
+			return nil, err
+		}
+		for _, h := range s.Histories {
+			var rp pipeline.Values
+			if h.Kind == nodes.HistoryFixed {
+				rp = nodes.FixedParams(h.N, s.As)
+			} else {
+				rp = nodes.InstantParams(h.History, s.As)
+			}
+			hl := label + " | " + h.Describe()
+			ri, err := g.Add(nodes.Reheat{}, rp, hl, si)
+			if err != nil {
+				return nil, err
+			}
+			for _, c := range s.Constraints {
+				cl := hl + " | " + c.Name
+				ki, err := g.Add(nodes.Compare{}, nodes.GaussianParams(c), cl, ri)
+				if err != nil {
+					return nil, err
+				}
+				g.MarkResult(cl, ki)
+			}
+		}
+	}
+	return g, nil
+}

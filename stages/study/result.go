@@ -1,0 +1,126 @@
+package study
+
+import (
+	"strings"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/nodes"
+)
+
+// Result is one reported prediction. The JSON names are a stable interface.
+type Result struct {
+	Label          string             `json:"label"`
+	Model          string             `json:"model"`
+	Params         map[string]float64 `json:"params"`
+	Method         string             `json:"method,omitempty"`
+	Reheating      string             `json:"reheating,omitempty"`
+	NStar          float64            `json:"N_star"`
+	PhiStar        float64            `json:"phi_star"`
+	PhiEnd         float64            `json:"phi_end"`
+	Ns             float64            `json:"n_s"`
+	R              float64            `json:"r"`
+	AlphaS         float64            `json:"alpha_s"`
+	Nt             float64            `json:"n_t"`
+	EnergyScaleGeV *float64           `json:"energy_scale_GeV,omitempty"`
+	HStarGeV       *float64           `json:"H_star_GeV,omitempty"`
+	TRehGeV        *float64           `json:"T_reh_GeV,omitempty"`
+	Constraint     string             `json:"constraint,omitempty"`
+	DeltaChi2      *float64           `json:"delta_chi2,omitempty"`
+	NSigma         *float64           `json:"n_sigma,omitempty"`
+	Inside68       *bool              `json:"inside_68,omitempty"`
+	Inside95       *bool              `json:"inside_95,omitempty"`
+	Key            string             `json:"key"`
+	Error          string             `json:"error,omitempty"`
+}
+
+// StageOutputs is one node of a result's lineage: its stage and outputs.
+type StageOutputs struct {
+	Stage   string
+	Outputs pipeline.Values
+}
+
+// Assemble builds a result from the outputs along its lineage (any order).
+func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
+	res := Result{Label: label, Key: string(key), Params: map[string]float64{}}
+	num := func(vs pipeline.Values, n string) float64 { x, _ := vs.Num(n); return x }
+	opt := func(vs pipeline.Values, n string) *float64 {
+		if v, ok := vs[n]; ok && v.Kind == pipeline.KindFloat {
+			x := v.Float
+			return &x
+		}
+		return nil
+	}
+	flag := func(vs pipeline.Values, n string) *bool {
+		s, err := vs.Text(n)
+		if err != nil {
+			return nil
+		}
+		b := s == "yes"
+		return &b
+	}
+	for _, l := range lineage {
+		vs := l.Outputs
+		switch l.Stage {
+		case nodes.ModelStage:
+			res.Model, _ = vs.Text("family")
+			for n, v := range vs {
+				if p, ok := strings.CutPrefix(n, nodes.ParamPrefix); ok {
+					res.Params[p] = v.Float
+				}
+			}
+		case nodes.SlowRollStage:
+			res.Method, _ = vs.Text("method")
+			res.PhiEnd = num(vs, "phi_end")
+		case nodes.ReheatStage:
+			res.Reheating, _ = vs.Text("reheating")
+			res.NStar = num(vs, "N_star")
+			res.PhiStar = num(vs, "phi_star")
+			res.Ns = num(vs, "n_s")
+			res.R = num(vs, "r")
+			res.AlphaS = num(vs, "alpha_s")
+			res.Nt = num(vs, "n_t")
+			res.EnergyScaleGeV = opt(vs, "energy_scale_GeV")
+			res.HStarGeV = opt(vs, "H_star_GeV")
+			res.TRehGeV = opt(vs, "T_reh_GeV")
+		case nodes.CompareStage:
+			res.Constraint, _ = vs.Text("constraint")
+			res.DeltaChi2 = opt(vs, "delta_chi2")
+			res.NSigma = opt(vs, "n_sigma")
+			res.Inside68 = flag(vs, "inside_68")
+			res.Inside95 = flag(vs, "inside_95")
+		}
+	}
+	return res
+}
+
+// Results assembles every result of an executed graph from the report.
+// A result whose node did not succeed carries the first error along its
+// lineage.
+func Results(g *pipeline.Graph, rep *pipeline.Report) []Result {
+	out := make([]Result, 0, len(g.Results))
+	for _, r := range g.Results {
+		var lineage []StageOutputs
+		var firstErr string
+		seen := map[int]bool{}
+		var walk func(i int)
+		walk = func(i int) {
+			if seen[i] {
+				return
+			}
+			seen[i] = true
+			for _, in := range g.Nodes[i].Inputs {
+				walk(in)
+			}
+			o := rep.Outcomes[i]
+			if o.Err != nil && firstErr == "" {
+				firstErr = o.Err.Error()
+			}
+			lineage = append(lineage, StageOutputs{Stage: g.Nodes[i].Stage.Spec().Name, Outputs: o.Outputs})
+		}
+		walk(r.Node)
+		res := Assemble(r.Label, rep.Outcomes[r.Node].Key, lineage)
+		res.Error = firstErr
+		out = append(out, res)
+	}
+	return out
+}
