@@ -45,17 +45,17 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 
 // Node is the JSON shape of one node of a run.
 type Node struct {
-	Ordinal    int                `json:"ordinal"`
-	Stage      string             `json:"stage"`
-	Version    int                `json:"version"`
-	Key        string             `json:"key"`
-	Action     string             `json:"action"`
-	DurationMS float64            `json:"duration_ms"`
-	Params     map[string]any     `json:"params"`
-	Inputs     []string           `json:"inputs"`
-	Outputs    map[string]any     `json:"outputs,omitempty"`
-	OutputHash string             `json:"output_hash,omitempty"`
-	Error      string             `json:"error,omitempty"`
+	Ordinal    int            `json:"ordinal"`
+	Stage      string         `json:"stage"`
+	Version    int            `json:"version"`
+	Key        string         `json:"key"`
+	Action     string         `json:"action"`
+	DurationMS float64        `json:"duration_ms"`
+	Params     map[string]any `json:"params"`
+	Inputs     []string       `json:"inputs"`
+	Outputs    map[string]any `json:"outputs,omitempty"`
+	OutputHash string         `json:"output_hash,omitempty"`
+	Error      string         `json:"error,omitempty"`
 }
 
 // Output is the JSON shape of show --json.
