@@ -44,12 +44,18 @@ func TestKeyChangesWithEveryInfluence(t *testing.T) {
 	in := []InputRef{{Stage: "up", Output: OutputID(Sum([]byte("1")))}}
 	ref, _ := Describe("tool/1", "st", 1, base, in)
 	variants := map[string]func() (string, error){
-		"tool":        func() (string, error) { return Describe("tool/2", "st", 1, base, in) },
-		"stage":       func() (string, error) { return Describe("tool/1", "st2", 1, base, in) },
-		"version":     func() (string, error) { return Describe("tool/1", "st", 2, base, in) },
-		"float value": func() (string, error) { return Describe("tool/1", "st", 1, Values{"x": Float(math.Nextafter(1, 2), UnitMp), "s": String("a")}, in) },
-		"unit":        func() (string, error) { return Describe("tool/1", "st", 1, Values{"x": Float(1, UnitGeV), "s": String("a")}, in) },
-		"string":      func() (string, error) { return Describe("tool/1", "st", 1, Values{"x": Float(1, UnitMp), "s": String("b")}, in) },
+		"tool":    func() (string, error) { return Describe("tool/2", "st", 1, base, in) },
+		"stage":   func() (string, error) { return Describe("tool/1", "st2", 1, base, in) },
+		"version": func() (string, error) { return Describe("tool/1", "st", 2, base, in) },
+		"float value": func() (string, error) {
+			return Describe("tool/1", "st", 1, Values{"x": Float(math.Nextafter(1, 2), UnitMp), "s": String("a")}, in)
+		},
+		"unit": func() (string, error) {
+			return Describe("tool/1", "st", 1, Values{"x": Float(1, UnitGeV), "s": String("a")}, in)
+		},
+		"string": func() (string, error) {
+			return Describe("tool/1", "st", 1, Values{"x": Float(1, UnitMp), "s": String("b")}, in)
+		},
 		"input": func() (string, error) {
 			return Describe("tool/1", "st", 1, base, []InputRef{{Stage: "up", Output: OutputID(Sum([]byte("2")))}})
 		},

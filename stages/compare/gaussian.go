@@ -68,17 +68,38 @@ func Sigmas(dchi2 float64) float64 {
 		return 0
 	}
 	p := math.Exp(-dchi2 / 2)
-	if p > 1e-300 {
+	target := dchi2 / 2
+	if p >= 1e-8 {
 		return math.Sqrt2 * math.Erfcinv(p)
 	}
-	// erfc(x) ~ exp(-x^2)/(x sqrt(pi)) for large x: solve
-	// x^2 + ln x + ln sqrt(pi) = dchi2/2 by fixed-point iteration.
-	target := dchi2 / 2
-	x := math.Sqrt(target)
-	for i := 0; i < 50; i++ {
-		x = math.Sqrt(target - math.Log(x) - 0.5*math.Log(math.Pi))
+	// math.Erfcinv(p) is Erfinv(1 - p), which loses p below about 1e-16
+	// (1 - p rounds to 1 and it returns +Inf). Start from the asymptotic
+	// inverse and refine by Newton steps on ln erfc(x) = -dchi2/2, which
+	// math.Erfc keeps accurate in the tail.
+	x := asymptoticErfcinv(target)
+	if p > 1e-300 {
+		for i := 0; i < 20; i++ {
+			e := math.Erfc(x)
+			step := (math.Log(e) + target) / (-2 / math.SqrtPi * math.Exp(-x*x) / e)
+			x -= step
+			if math.Abs(step) <= 1e-15*x {
+				break
+			}
+		}
 	}
 	return math.Sqrt2 * x
+}
+
+// asymptoticErfcinv solves erfc(x) = exp(-target) for large x with
+// erfc(x) ~ exp(-x^2)/(x sqrt(pi)) (1 - 1/(2x^2)), that is
+// x^2 + ln x + ln sqrt(pi) - ln(1 - 1/(2x^2)) = target, by fixed-point
+// iteration (Abramowitz & Stegun 1964, eq. 7.1.23).
+func asymptoticErfcinv(target float64) float64 {
+	x := math.Sqrt(target)
+	for i := 0; i < 50; i++ {
+		x = math.Sqrt(target - math.Log(x) - 0.5*math.Log(math.Pi) + math.Log(1-0.5/(x*x)))
+	}
+	return x
 }
 
 // Comparison is the result of comparing one prediction with a constraint.
