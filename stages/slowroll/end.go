@@ -148,5 +148,6 @@ func FindEnd(m *model.Model, s *Settings) (End, error) {
 	if err != nil {
 		return End{}, fmt.Errorf("%s: end of inflation: %w", m.Describe(), err)
 	}
-	return End{Phi: r.X, Direction: c.dir, V: m.At(r.X).V}, nil
+	phi := num.Polish(f, r.X)
+	return End{Phi: phi, Direction: c.dir, V: m.At(phi).V}, nil
 }
