@@ -129,31 +129,32 @@ func BrentF(f func(float64) float64, a, b, fa, fb float64, s *RootSettings) (Roo
 }
 
 // Polish narrows a root x of f found by a root finder to the pair of
-// adjacent float64 values between which f changes sign, searching up to
-// 64 units in the last place either side, and returns the member of the
-// pair with f >= 0. The result no longer depends on the bracket the root
-// finder started from, so the same function gives the same bits. When no
-// sign change is found that close (f is noisy there), x is returned.
+// adjacent float64 values between which f changes sign, and returns the
+// member of the pair with f >= 0. The search walks away from x in steps
+// that double in units in the last place (up to 2^52 of them), then bisects
+// on the float64 grid. The result no longer depends on the bracket the
+// root finder started from, so the same function gives the same bits. When
+// no sign change is found (f is noisy or has no root nearby), x is
+// returned.
 func Polish(f func(float64) float64, x float64) float64 {
 	fx := f(x)
 	if fx == 0 || math.IsNaN(fx) || math.IsInf(x, 0) {
 		return x
 	}
-	// Walk away from x in the direction that reduces |f| until the sign
-	// changes, doubling the step in ulps.
-	up := math.Nextafter(x, math.Inf(1))
-	dir := math.Inf(1)
-	if fu := f(up); math.Abs(fu) > math.Abs(fx) {
-		dir = math.Inf(-1)
+	ox := ordered(x)
+	// Walk in the direction in which |f| decreases.
+	dir := int64(1)
+	if fu := f(fromOrdered(ox + 1)); math.Abs(fu) > math.Abs(fx) {
+		dir = -1
 	}
-	a, fa := x, fx
-	b, fb := x, fx
-	for step := 1; step <= 64; step *= 2 {
-		b = a
-		for i := 0; i < step; i++ {
-			b = math.Nextafter(b, dir)
+	a, fa := ox, fx
+	b, fb := ox, fx
+	for step := int64(1); step <= 1<<52; step *= 2 {
+		b = a + dir*step
+		fb = f(fromOrdered(b))
+		if math.IsNaN(fb) {
+			return x
 		}
-		fb = f(b)
 		if (fb >= 0) != (fa >= 0) {
 			break
 		}
@@ -162,34 +163,33 @@ func Polish(f func(float64) float64, x float64) float64 {
 	if (fb >= 0) == (fa >= 0) {
 		return x
 	}
-	// Bisect between a and b on the float64 grid.
-	for {
-		m := midFloat(a, b)
-		if m == a || m == b {
-			break
-		}
-		if fm := f(m); (fm >= 0) == (fa >= 0) {
+	for a-b > 1 || b-a > 1 {
+		m := a + (b-a)/2
+		if fm := f(fromOrdered(m)); (fm >= 0) == (fa >= 0) {
 			a, fa = m, fm
 		} else {
 			b, fb = m, fm
 		}
 	}
 	if fa >= 0 {
-		return a
+		return fromOrdered(a)
+	}
+	return fromOrdered(b)
+}
+
+// ordered maps float64 values to int64 so that adjacent floats map to
+// adjacent integers and order is preserved (negative floats below zero).
+func ordered(x float64) int64 {
+	b := int64(math.Float64bits(x))
+	if b < 0 {
+		return math.MinInt64 - b
 	}
 	return b
 }
 
-// midFloat returns a float64 halfway between a and b in ulps (both finite,
-// same sign or zero).
-func midFloat(a, b float64) float64 {
-	if (a < 0) != (b < 0) {
-		return 0
+func fromOrdered(o int64) float64 {
+	if o < 0 {
+		return math.Float64frombits(uint64(math.MinInt64 - o))
 	}
-	ia, ib := int64(math.Float64bits(math.Abs(a))), int64(math.Float64bits(math.Abs(b)))
-	m := math.Float64frombits(uint64(ia + (ib-ia)/2))
-	if a < 0 {
-		return -m
-	}
-	return m
+	return math.Float64frombits(uint64(o))
 }

@@ -1,0 +1,116 @@
+package num
+
+import (
+	"math"
+	"strings"
+	"testing"
+)
+
+// Integrals with closed forms (elementary antiderivatives; common
+// practice). Default settings ask for a relative error of 1e-12.
+func TestIntegrateClosedForms(t *testing.T) {
+	cases := []struct {
+		name string
+		f    func(float64) float64
+		a, b float64
+		want float64
+		tol  float64 // relative
+		why  string
+	}{
+		{"e^x on [0,1]", math.Exp, 0, 1, math.E - 1, 1e-14, "smooth: one panel is exact to rounding"},
+		{"sin on [0,pi]", math.Sin, 0, math.Pi, 2, 1e-14, "smooth"},
+		{"4/(1+x^2) on [0,1]", func(x float64) float64 { return 4 / (1 + x*x) }, 0, 1, math.Pi, 1e-14, "smooth"},
+		{"Gaussian on [-10,10]", func(x float64) float64 { return math.Exp(-x * x) }, -10, 10, math.Sqrt(math.Pi) * math.Erf(10), 1e-13, "peaked in a wide interval: needs bisection"},
+		{"cos^2 on [0,2pi]", func(x float64) float64 { c := math.Cos(x); return c * c }, 0, 2 * math.Pi, math.Pi, 1e-13, "oscillatory"},
+		{"1/sqrt(x) on [0,1]", func(x float64) float64 { return 1 / math.Sqrt(x) }, 0, 1, 2, 1e-10, "integrable end-point singularity: the adaptive error estimate is loose, so 1e-10 rather than 1e-12"},
+		{"ln x on [0,1]", math.Log, 0, 1, -1, 1e-11, "logarithmic end-point singularity"},
+		{"x^-0.9 on [0,1]", func(x float64) float64 { return math.Pow(x, -0.9) }, 0, 1, 10, 1e-6, "strong singularity: only ~1e-6 reachable by bisection before float64 runs out of digits near 0"},
+		{"sqrt(x) on [0,4]", math.Sqrt, 0, 4, 16.0 / 3, 1e-12, "derivative singular at 0"},
+		{"reversed e^x on [1,0]", math.Exp, 1, 0, -(math.E - 1), 1e-14, "a > b gives the negative"},
+		{"reversed 1/sqrt(x) on [1,0]", func(x float64) float64 { return 1 / math.Sqrt(x) }, 1, 0, -2, 1e-10, "reversed and singular"},
+		{"empty interval", math.Exp, 2, 2, 0, 0, "a = b"},
+	}
+	for _, c := range cases {
+		r, err := Integrate(c.f, c.a, c.b, nil)
+		if err != nil && !strings.Contains(c.name, "x^-0.9") {
+			t.Errorf("%s: %v", c.name, err)
+			continue
+		}
+		if !within(r.Value, c.want, c.tol, 0) {
+			t.Errorf("%s: got %.17g, want %.17g (rel tol %g: %s)", c.name, r.Value, c.want, c.tol, c.why)
+		}
+	}
+}
+
+// TestIntegratePolynomialExactness: the 7-point Gauss rule is exact for
+// degree <= 13 and its 15-point Kronrod extension for degree <= 22
+// (Kronrod 1965; Piessens et al. 1983, QUADPACK, sect. 2.2; section number
+// from memory). So up to
+// degree 13 the embedded error estimate is rounding only and one panel
+// is accepted; at degree 22 the value of the first panel is still exact.
+func TestIntegratePolynomialExactness(t *testing.T) {
+	for _, deg := range []int{0, 1, 5, 13} {
+		f := func(x float64) float64 { return float64(deg+1) * math.Pow(x, float64(deg)) }
+		r, err := Integrate(f, 0, 1, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Intervals != 1 || r.Evals != 15 {
+			t.Errorf("degree %d: %d intervals, %d evaluations; want 1 and 15", deg, r.Intervals, r.Evals)
+		}
+		if !within(r.Value, 1, 1e-15, 0) {
+			t.Errorf("degree %d: integral %.17g, want 1", deg, r.Value)
+		}
+	}
+	v, _ := gk15(func(x float64) float64 { return 23 * math.Pow(x, 22) }, 0, 1)
+	if !within(v, 1, 1e-14, 0) {
+		t.Errorf("Kronrod 15 on 23 x^22: %.17g, want 1", v)
+	}
+}
+
+func TestIntegrateErrors(t *testing.T) {
+	cases := []struct {
+		name string
+		f    func(float64) float64
+		a, b float64
+		s    *QuadSettings
+		want string
+	}{
+		{"pole at the centre", func(x float64) float64 { return 1 / x }, -1, 1, nil, "not finite"},
+		{"pole inside", func(x float64) float64 { return 1 / (x - 0.5) }, 0, 1, nil, "not finite"},
+		{"NaN inside", math.Sqrt, -1, 1, nil, "not finite"},
+		{"too few intervals", func(x float64) float64 { return 1 / math.Sqrt(x) }, 0, 1, &QuadSettings{MaxIntervals: 3}, "did not converge"},
+	}
+	for _, c := range cases {
+		_, err := Integrate(c.f, c.a, c.b, c.s)
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: error %v, want one containing %q", c.name, err, c.want)
+		}
+	}
+}
+
+// TestIntegrateProperties: additivity over a split interval and an error
+// estimate within the requested tolerance (properties of any quadrature).
+func TestIntegrateProperties(t *testing.T) {
+	f := func(x float64) float64 { return math.Exp(-x) * math.Cos(3*x) / math.Sqrt(x+0.01) }
+	whole, err := Integrate(f, 0, 5, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	left, _ := Integrate(f, 0, 1.3, nil)
+	right, _ := Integrate(f, 1.3, 5, nil)
+	if !within(left.Value+right.Value, whole.Value, 1e-11, 1e-13) {
+		t.Errorf("additivity: %.17g + %.17g != %.17g", left.Value, right.Value, whole.Value)
+	}
+	if whole.ErrEst > 1e-12*math.Abs(whole.Value) && whole.ErrEst > 1e-13 {
+		t.Errorf("returned error estimate %g above the requested tolerance", whole.ErrEst)
+	}
+	// A looser tolerance needs no more evaluations than a tighter one.
+	loose, _ := Integrate(f, 0, 5, &QuadSettings{RelTol: 1e-6})
+	if loose.Evals > whole.Evals {
+		t.Errorf("RelTol 1e-6 used %d evaluations, the default %d", loose.Evals, whole.Evals)
+	}
+	if !within(loose.Value, whole.Value, 1e-6, 0) {
+		t.Errorf("RelTol 1e-6: %.12g vs %.12g", loose.Value, whole.Value)
+	}
+}
