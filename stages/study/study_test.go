@@ -1,0 +1,135 @@
+package study
+
+import (
+	"errors"
+	"math"
+	"testing"
+
+	"github.com/inflatrace/inflatrace/stages/compare"
+	"github.com/inflatrace/inflatrace/stages/nodes"
+)
+
+func TestDemoExpansion(t *testing.T) {
+	s, err := Load("../../configs/demo.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(s.Models) != 16 || len(s.Histories) != 4 || len(s.Constraints) != 1 {
+		t.Fatalf("%d models, %d histories, %d constraints; want 16, 4, 1", len(s.Models), len(s.Histories), len(s.Constraints))
+	}
+	// The discrete set 3 alpha = 1..7 (Ferrara & Kallosh 2016, arXiv:1610.04163).
+	for i, m := range s.Models[:7] {
+		if got := 3 * m.Params["alpha"]; math.Abs(got-float64(i+1)) > 1e-15 {
+			t.Errorf("E-model %d: 3 alpha = %v, want %d", i, got, i+1)
+		}
+	}
+	g, err := s.Graph()
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Per model: model, canonical, slow-roll; 4 reheat; 4 compare.
+	if len(g.Nodes) != 16*11 || len(g.Results) != 64 {
+		t.Fatalf("%d nodes and %d results, want 176 and 64", len(g.Nodes), len(g.Results))
+	}
+	counts := map[string]int{}
+	for _, n := range g.Nodes {
+		counts[n.Stage.Spec().Name]++
+	}
+	want := map[string]int{nodes.ModelStage: 16, nodes.CanonicalStage: 16, nodes.SlowRollStage: 16, nodes.ReheatStage: 64, nodes.CompareStage: 64}
+	for st, n := range want {
+		if counts[st] != n {
+			t.Errorf("%d %s nodes, want %d", counts[st], st, n)
+		}
+	}
+}
+
+func TestFanOutIsACartesianProduct(t *testing.T) {
+	s, err := Load("../../testdata/configs/fanout.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(s.Models) != 6 || len(s.Histories) != 2 {
+		t.Fatalf("%d models and %d histories, want 6 and 2", len(s.Models), len(s.Histories))
+	}
+	seen := map[[2]float64]bool{}
+	for _, m := range s.Models {
+		seen[[2]float64{m.Params["mu"], m.Params["p"]}] = true
+	}
+	for _, mu := range []float64{5, 7.5, 10} {
+		for _, p := range []float64{2, 4} {
+			if !seen[[2]float64{mu, p}] {
+				t.Errorf("missing combination mu=%g p=%g", mu, p)
+			}
+		}
+	}
+	if s.Models[2].ParamText["mu"] != "15/2" && s.Models[3].ParamText["mu"] != "15/2" {
+		t.Errorf("a ratio keeps its written form for labels")
+	}
+}
+
+func TestNumberForms(t *testing.T) {
+	cases := []struct {
+		in   any
+		want float64
+		ok   bool
+	}{
+		{int64(3), 3, true}, {2.5, 2.5, true}, {"1/3", 1.0 / 3, true}, {" 7 / 3 ", 7.0 / 3, true},
+		{"2e-9", 2e-9, true}, {"1/0", 0, false}, {"one", 0, false}, {true, 0, false},
+	}
+	for _, c := range cases {
+		got, _, err := number(c.in)
+		if (err == nil) != c.ok || (c.ok && got != c.want) {
+			t.Errorf("number(%v) = %v, %v; want %v ok=%v", c.in, got, err, c.want, c.ok)
+		}
+	}
+}
+
+func TestConfigErrorsCarryPositions(t *testing.T) {
+	cases := []struct {
+		name, text string
+		line       int
+	}{
+		{"bad history", "[[reheating]]\nhistory = \"slow\"\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n", 2},
+		{"N* out of range", "[[reheating]]\nhistory = \"fixed-efolds\"\nN_star = [50, -1]\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n", 3},
+		{"bad A_s", "[normalisation]\nA_s = -2\n[[reheating]]\nhistory = \"instantaneous\"\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n", 2},
+		{"bad g_reh", "[[reheating]]\nhistory = \"instantaneous\"\ng_reh = 0\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n", 3},
+		{"second model", "[[reheating]]\nhistory = \"instantaneous\"\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n[[model]]\nfamily = \"t-model\"\nalpha = [1, 0]\n", 9},
+	}
+	for _, c := range cases {
+		_, err := Parse(c.name+".toml", []byte(c.text), ".")
+		var ce *ConfigError
+		if !errors.As(err, &ce) {
+			t.Errorf("%s: error %v is not a ConfigError", c.name, err)
+			continue
+		}
+		if ce.Line != c.line || ce.File != c.name+".toml" {
+			t.Errorf("%s: error at %s:%d, want line %d (%v)", c.name, ce.File, ce.Line, c.line, err)
+		}
+	}
+}
+
+// A one-sided 95% limit becomes a half-normal with sigma = limit/1.959964
+// (common practice); the shipped set keeps the published numbers
+// (Balkenhol et al. 2025, arXiv:2512.10613, abstract: n_s = 0.9682 ± 0.0032,
+// r < 0.034 at 95%).
+func TestShippedConstraint(t *testing.T) {
+	g, err := Shipped("cmb-combined-2025")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if g.MeanNs != 0.9682 || g.SigmaNs != 0.0032 || g.MeanR != 0 || math.Abs(g.SigmaR*compare.HalfNormal95-0.034) > 1e-15 {
+		t.Fatalf("shipped set %+v does not hold the published numbers", g)
+	}
+	// At the 95% limit, with n_s at its mean, a one-dimensional 95% point:
+	// Delta chi^2 = 1.959964^2 = 3.8415.
+	if d := g.DeltaChi2(0.9682, 0.034); math.Abs(d-3.841459) > 1e-5 {
+		t.Errorf("Delta chi^2 at the limit = %v, want 3.841459", d)
+	}
+	if _, err := Shipped("nope"); err == nil {
+		t.Error("an unknown set was found")
+	}
+	_, err = ParseConstraint("x.toml", []byte("name = \"x\"\n[n_s]\nmean = 0.96\nsigma = 0.004\n[r]\nupper_95 = 0.03\n"))
+	if err == nil {
+		t.Error("a constraint without a citation was accepted")
+	}
+}
