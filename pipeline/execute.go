@@ -79,7 +79,8 @@ func Execute(ctx context.Context, rec Recorder, info RunInfo, g *Graph, opts Opt
 	if runErr == nil {
 		var refs []ResultRef
 		for i, r := range g.Results {
-			if o := rep.Outcomes[r.Node]; o.Key != "" {
+			// A failed node is never a result.
+			if o := rep.Outcomes[r.Node]; o.Action == Computed || o.Action == Reused {
 				refs = append(refs, ResultRef{Ordinal: i, Label: r.Label, Key: o.Key})
 			}
 		}
@@ -268,12 +269,16 @@ func (s *scheduler) node(g *Graph, rep *Report, i int) (NodeOutcome, error) {
 	defer close(f.done)
 
 	if !s.opts.NoReuse {
+		lookStart := s.opts.Now()
 		stored, found, err := s.rec.Lookup(s.ctx, key)
 		if err != nil {
 			return out, fmt.Errorf("look up %s (%s): %w", key, nd.Label, err)
 		}
 		if found {
 			out.Action, out.Outputs, out.OutputHash = Reused, stored.Outputs, stored.OutputHash
+			// The run's own time for a reused node is the look-up's.
+			stored.Duration = s.opts.Now().Sub(lookStart)
+			out.Duration = stored.Duration
 			if err := s.rec.RecordNode(s.ctx, s.run, stored, Reused); err != nil {
 				return out, fmt.Errorf("record reuse of %s (%s): %w", key, nd.Label, err)
 			}

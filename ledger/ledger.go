@@ -1,0 +1,252 @@
+package ledger
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"io/fs"
+	"net/url"
+	"os"
+	"path/filepath"
+	"time"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+	_ "github.com/mattn/go-sqlite3" // registers the "sqlite3" driver
+)
+
+// BusyTimeout is how long a transaction waits for another process's lock
+// before failing.
+const BusyTimeout = 10 * time.Second
+
+// applicationID marks an SQLite file as an inflatrace ledger ("inft"); it is
+// set by migration 0001.
+const applicationID = 0x696e6674
+
+// Ledger is an open provenance database. Its methods are safe for
+// concurrent use; each exported method runs in one transaction.
+type Ledger struct {
+	db   *sql.DB
+	path string
+	now  func() time.Time
+}
+
+var _ pipeline.Recorder = (*Ledger)(nil)
+
+// Option adjusts how Open sets up a Ledger.
+type Option func(*Ledger)
+
+// WithClock sets the clock used for the times the ledger itself stamps
+// (when a node row or a migration was written). It must be safe for
+// concurrent use. The default (also when now is nil) is time.Now.
+func WithClock(now func() time.Time) Option {
+	return func(l *Ledger) {
+		if now != nil {
+			l.now = now
+		}
+	}
+}
+
+// Open opens the ledger at path, creating the file (but not its directory)
+// if needed, checks the connection settings and applies any pending
+// migrations.
+func Open(path string, opts ...Option) (*Ledger, error) {
+	if err := checkPath(path); err != nil {
+		return nil, fmt.Errorf("open ledger %s: %w", path, err)
+	}
+	// Look before touching: the DSN below switches the file to WAL, which
+	// must not happen to a database that is not ours.
+	if err := probeOwner(path); err != nil {
+		return nil, fmt.Errorf("open ledger %s: %w", path, err)
+	}
+	db, err := sql.Open("sqlite3", dsn(path))
+	if err != nil {
+		return nil, fmt.Errorf("open ledger %s: %w", path, err)
+	}
+	// One connection: SQLite allows one writer anyway, and a single
+	// connection serialises the engine's goroutines inside this process
+	// without lock contention. Other processes wait on the busy timeout.
+	db.SetMaxOpenConns(1)
+	db.SetConnMaxLifetime(0)
+	l := &Ledger{db: db, path: path, now: time.Now}
+	for _, o := range opts {
+		o(l)
+	}
+	ctx := context.Background()
+	if err := l.setUp(ctx); err != nil {
+		db.Close()
+		return nil, fmt.Errorf("open ledger %s: %w", path, err)
+	}
+	return l, nil
+}
+
+func (l *Ledger) setUp(ctx context.Context) error {
+	if err := checkPragmas(ctx, l.db); err != nil {
+		return err
+	}
+	ms, err := loadMigrations(migrationFiles)
+	if err != nil {
+		return err
+	}
+	if err := migrate(ctx, l.db, ms, l.now); err != nil {
+		return err
+	}
+	var id int64
+	if err := l.db.QueryRowContext(ctx, "PRAGMA application_id").Scan(&id); err != nil {
+		return fmt.Errorf("read application_id: %w", err)
+	}
+	if id != applicationID {
+		return fmt.Errorf("application_id is %#x after migration, want %#x", id, applicationID)
+	}
+	return nil
+}
+
+// Path returns the file the ledger was opened from.
+func (l *Ledger) Path() string { return l.path }
+
+// Close closes the database.
+func (l *Ledger) Close() error {
+	if err := l.db.Close(); err != nil {
+		return fmt.Errorf("close ledger %s: %w", l.path, err)
+	}
+	return nil
+}
+
+// checkPath refuses an empty path, a path that is a directory and a path
+// whose directory does not exist (SQLite would only say "unable to open").
+func checkPath(path string) error {
+	if path == "" {
+		return errors.New("empty path")
+	}
+	if fi, err := os.Stat(path); err == nil && fi.IsDir() {
+		return errors.New("the path is a directory, not a ledger file")
+	}
+	dir := filepath.Dir(path)
+	fi, err := os.Stat(dir)
+	if errors.Is(err, fs.ErrNotExist) {
+		return fmt.Errorf("directory %s does not exist (create it first)", dir)
+	}
+	if err != nil {
+		return err
+	}
+	if !fi.IsDir() {
+		return fmt.Errorf("%s is not a directory", dir)
+	}
+	return nil
+}
+
+// dsn builds an SQLite URI for path. The path is percent-escaped, so a '?'
+// or '#' in a file name is not mistaken for the start of the options.
+func dsn(path string) string {
+	q := url.Values{}
+	q.Set("_journal_mode", "WAL")
+	q.Set("_foreign_keys", "1")
+	q.Set("_busy_timeout", fmt.Sprint(BusyTimeout.Milliseconds()))
+	q.Set("_txlock", "immediate")
+	return fileURI(path) + "?" + q.Encode()
+}
+
+// fileURI is path as an SQLite "file:" URI without options.
+func fileURI(path string) string {
+	u := url.URL{Path: filepath.ToSlash(path)}
+	return "file:" + u.EscapedPath()
+}
+
+// checkPragmas reads back the settings the DSN asked for and fails if any
+// is not in effect.
+func checkPragmas(ctx context.Context, db *sql.DB) error {
+	var mode string
+	if err := db.QueryRowContext(ctx, "PRAGMA journal_mode").Scan(&mode); err != nil {
+		return fmt.Errorf("read journal_mode: %w", err)
+	}
+	if mode != "wal" {
+		return fmt.Errorf("journal_mode is %q, want \"wal\" (is the file on a file system without shared memory?)", mode)
+	}
+	var fk int
+	if err := db.QueryRowContext(ctx, "PRAGMA foreign_keys").Scan(&fk); err != nil {
+		return fmt.Errorf("read foreign_keys: %w", err)
+	}
+	if fk != 1 {
+		return fmt.Errorf("foreign_keys is %d, want 1", fk)
+	}
+	var busy int64
+	if err := db.QueryRowContext(ctx, "PRAGMA busy_timeout").Scan(&busy); err != nil {
+		return fmt.Errorf("read busy_timeout: %w", err)
+	}
+	if busy != BusyTimeout.Milliseconds() {
+		return fmt.Errorf("busy_timeout is %d ms, want %d ms", busy, BusyTimeout.Milliseconds())
+	}
+	return nil
+}
+
+// probeOwner opens an existing, non-empty file read-only and refuses it
+// unless it is an inflatrace ledger or an empty database.
+func probeOwner(path string) error {
+	fi, err := os.Stat(path)
+	if errors.Is(err, fs.ErrNotExist) || (err == nil && fi.Size() == 0) {
+		return nil
+	}
+	if err != nil {
+		return err
+	}
+	db, err := sql.Open("sqlite3", fileURI(path)+"?mode=ro")
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	return checkOwner(context.Background(), db)
+}
+
+// checkOwner refuses an SQLite database that belongs to something else: one
+// with a foreign application_id, or one that has tables but no inflatrace
+// mark.
+func checkOwner(ctx context.Context, db *sql.DB) error {
+	var id int64
+	if err := db.QueryRowContext(ctx, "PRAGMA application_id").Scan(&id); err != nil {
+		return fmt.Errorf("read application_id: %w", err)
+	}
+	if id == applicationID {
+		return nil
+	}
+	if id != 0 {
+		return fmt.Errorf("not an inflatrace ledger: application_id is %#x, want %#x", id, applicationID)
+	}
+	var n int
+	if err := db.QueryRowContext(ctx, "SELECT count(*) FROM sqlite_schema").Scan(&n); err != nil {
+		return fmt.Errorf("read schema: %w", err)
+	}
+	if n > 0 {
+		return fmt.Errorf("not an inflatrace ledger: the database holds %d schema objects but no inflatrace mark", n)
+	}
+	return nil
+}
+
+// inTx runs fn in one transaction, committing only if fn succeeds.
+func (l *Ledger) inTx(ctx context.Context, fn func(*sql.Tx) error) error {
+	tx, err := l.db.BeginTx(ctx, nil)
+	if err != nil {
+		return fmt.Errorf("begin transaction: %w", err)
+	}
+	defer tx.Rollback()
+	if err := fn(tx); err != nil {
+		return err
+	}
+	if err := tx.Commit(); err != nil {
+		return fmt.Errorf("commit: %w", err)
+	}
+	return nil
+}
+
+// timeLayout is RFC 3339 with a fixed nine-digit fraction: any RFC 3339
+// parser reads it, and text order is time order.
+const timeLayout = "2006-01-02T15:04:05.000000000Z07:00"
+
+func formatTime(t time.Time) string { return t.UTC().Format(timeLayout) }
+
+func parseTime(s string) (time.Time, error) {
+	t, err := time.Parse(time.RFC3339Nano, s)
+	if err != nil {
+		return time.Time{}, fmt.Errorf("%w: stored time %q: %v", ErrIntegrity, s, err)
+	}
+	return t.UTC(), nil
+}

@@ -1,0 +1,336 @@
+package ledger
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"strings"
+	"time"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// Latest is the run reference ResolveRun reads as the most recently
+// started run.
+const Latest = "latest"
+
+// newestFirst orders runs by start time, later insertions first on ties.
+const newestFirst = "ORDER BY r.started_at DESC, r.rowid DESC"
+
+// Runs lists every run, newest first, with counts of what each did.
+func (l *Ledger) Runs(ctx context.Context) ([]RunSummary, error) {
+	out := []RunSummary{}
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		rows, err := tx.QueryContext(ctx, `SELECT r.id, r.started_at, r.finished_at, r.status, r.tool_version, r.config_path, r.config_hash,
+			(SELECT count(*) FROM run_nodes rn WHERE rn.run_id = r.id AND rn.action = 'computed'),
+			(SELECT count(*) FROM run_nodes rn WHERE rn.run_id = r.id AND rn.action = 'reused'),
+			(SELECT count(*) FROM run_nodes rn WHERE rn.run_id = r.id AND rn.action = 'failed'),
+			(SELECT count(*) FROM run_results rr WHERE rr.run_id = r.id)
+			FROM runs r `+newestFirst)
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var (
+				s          RunSummary
+				id, status string
+				started    string
+				finished   sql.NullString
+			)
+			if err := rows.Scan(&id, &started, &finished, &status, &s.ToolVersion, &s.ConfigPath, &s.ConfigHash,
+				&s.Computed, &s.Reused, &s.Failed, &s.Results); err != nil {
+				return err
+			}
+			s.ID, s.Status = pipeline.RunID(id), pipeline.RunStatus(status)
+			if s.Started, s.Finished, err = runTimes(started, finished); err != nil {
+				return fmt.Errorf("run %s: %w", id, err)
+			}
+			out = append(out, s)
+		}
+		return rows.Err()
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: list runs: %w", err)
+	}
+	return out, nil
+}
+
+func runTimes(started string, finished sql.NullString) (time.Time, time.Time, error) {
+	s, err := parseTime(started)
+	if err != nil {
+		return time.Time{}, time.Time{}, err
+	}
+	var f time.Time
+	if finished.Valid {
+		if f, err = parseTime(finished.String); err != nil {
+			return time.Time{}, time.Time{}, err
+		}
+	}
+	return s, f, nil
+}
+
+// ResolveRun turns what a user typed into a run id: the word "latest" (the
+// most recently started run), a full id, or a prefix of exactly one id. An
+// unknown reference wraps ErrNotFound; a prefix of several ids wraps
+// ErrAmbiguous and lists them.
+func (l *Ledger) ResolveRun(ctx context.Context, ref string) (pipeline.RunID, error) {
+	var id pipeline.RunID
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		var err error
+		id, err = resolveRun(ctx, tx, ref)
+		return err
+	})
+	if err != nil {
+		return "", fmt.Errorf("ledger: resolve run %q: %w", ref, err)
+	}
+	return id, nil
+}
+
+// maxCandidates bounds how many ids an ambiguity error lists.
+const maxCandidates = 10
+
+func resolveRun(ctx context.Context, tx *sql.Tx, ref string) (pipeline.RunID, error) {
+	if ref == "" {
+		return "", errors.New("empty run reference")
+	}
+	var id string
+	if ref == Latest {
+		err := tx.QueryRowContext(ctx, "SELECT r.id FROM runs r "+newestFirst+" LIMIT 1").Scan(&id)
+		if errors.Is(err, sql.ErrNoRows) {
+			return "", fmt.Errorf("no runs recorded: %w", ErrNotFound)
+		}
+		return pipeline.RunID(id), err
+	}
+	err := tx.QueryRowContext(ctx, "SELECT id FROM runs WHERE id = ?", ref).Scan(&id)
+	if err == nil {
+		return pipeline.RunID(id), nil
+	}
+	if !errors.Is(err, sql.ErrNoRows) {
+		return "", err
+	}
+	rows, err := tx.QueryContext(ctx, "SELECT r.id FROM runs r WHERE substr(r.id, 1, length(?1)) = ?1 "+newestFirst, ref)
+	if err != nil {
+		return "", err
+	}
+	defer rows.Close()
+	var ids []string
+	for rows.Next() {
+		if err := rows.Scan(&id); err != nil {
+			return "", err
+		}
+		ids = append(ids, id)
+	}
+	if err := rows.Err(); err != nil {
+		return "", err
+	}
+	switch len(ids) {
+	case 0:
+		return "", fmt.Errorf("no run has id or id prefix %q: %w", ref, ErrNotFound)
+	case 1:
+		return pipeline.RunID(ids[0]), nil
+	}
+	shown := ids
+	more := ""
+	if len(ids) > maxCandidates {
+		shown = ids[:maxCandidates]
+		more = fmt.Sprintf(" and %d more", len(ids)-maxCandidates)
+	}
+	return "", fmt.Errorf("%w: prefix %q matches %d runs: %s%s", ErrAmbiguous, ref, len(ids), strings.Join(shown, ", "), more)
+}
+
+// Run returns the recorded description and state of one run. An unknown id
+// wraps ErrNotFound.
+func (l *Ledger) Run(ctx context.Context, id pipeline.RunID) (RunDetail, error) {
+	var d RunDetail
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		var err error
+		d, err = readRun(ctx, tx, id)
+		return err
+	})
+	if err != nil {
+		return RunDetail{}, fmt.Errorf("ledger: read run %s: %w", id, err)
+	}
+	return d, nil
+}
+
+func readRun(ctx context.Context, tx *sql.Tx, id pipeline.RunID) (RunDetail, error) {
+	var (
+		d        RunDetail
+		rid      string
+		status   string
+		started  string
+		finished sql.NullString
+	)
+	err := tx.QueryRowContext(ctx, `SELECT id, started_at, finished_at, status, error, tool_version, config_path, config_text, config_hash
+		FROM runs WHERE id = ?`, string(id)).
+		Scan(&rid, &started, &finished, &status, &d.Error, &d.ToolVersion, &d.ConfigPath, &d.ConfigText, &d.ConfigHash)
+	if errors.Is(err, sql.ErrNoRows) {
+		return RunDetail{}, fmt.Errorf("run %s: %w", id, ErrNotFound)
+	}
+	if err != nil {
+		return RunDetail{}, err
+	}
+	d.ID, d.Status = pipeline.RunID(rid), pipeline.RunStatus(status)
+	if d.Started, d.Finished, err = runTimes(started, finished); err != nil {
+		return RunDetail{}, err
+	}
+	return d, nil
+}
+
+// RunNodes returns the nodes a run touched, in the order it touched them,
+// each with what the run did. An unknown run wraps ErrNotFound.
+func (l *Ledger) RunNodes(ctx context.Context, id pipeline.RunID) ([]RunNode, error) {
+	out := []RunNode{}
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		if _, err := readRun(ctx, tx, id); err != nil {
+			return err
+		}
+		rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+`, rn.ordinal, rn.action, rn.duration_ns, rn.error
+			FROM run_nodes rn JOIN nodes n ON n.key = rn.key WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var (
+				rn         RunNode
+				action     string
+				durationNS int64
+			)
+			rec, err := scanNode(rows, &rn.Ordinal, &action, &durationNS, &rn.RunError)
+			if err != nil {
+				return err
+			}
+			rn.NodeRecord, rn.Action, rn.RunDuration = rec, pipeline.Action(action), time.Duration(durationNS)
+			out = append(out, rn)
+		}
+		if err := rows.Err(); err != nil {
+			return err
+		}
+		rows.Close()
+		for i := range out {
+			if err := completeNode(ctx, tx, &out[i].NodeRecord); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: nodes of run %s: %w", id, err)
+	}
+	return out, nil
+}
+
+// RunResults returns a run's labelled results in ordinal order. An unknown
+// run wraps ErrNotFound.
+func (l *Ledger) RunResults(ctx context.Context, id pipeline.RunID) ([]pipeline.ResultRef, error) {
+	out := []pipeline.ResultRef{}
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		if _, err := readRun(ctx, tx, id); err != nil {
+			return err
+		}
+		rows, err := tx.QueryContext(ctx, "SELECT ordinal, label, key FROM run_results WHERE run_id = ? ORDER BY ordinal", string(id))
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var (
+				r   pipeline.ResultRef
+				key string
+			)
+			if err := rows.Scan(&r.Ordinal, &r.Label, &key); err != nil {
+				return err
+			}
+			r.Key = pipeline.KeyID(key)
+			out = append(out, r)
+		}
+		return rows.Err()
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: results of run %s: %w", id, err)
+	}
+	return out, nil
+}
+
+// Node returns the stored node with this key, whatever its status, and
+// whether there is one.
+func (l *Ledger) Node(ctx context.Context, key pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
+	var (
+		rec   pipeline.NodeRecord
+		found bool
+	)
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		var err error
+		rec, found, err = loadNode(ctx, tx, key)
+		return err
+	})
+	if err != nil {
+		return pipeline.NodeRecord{}, false, fmt.Errorf("ledger: read node %s: %w", key, err)
+	}
+	return rec, found, nil
+}
+
+// maxLineageDepth bounds the upstream walk. Keys chain on upstream outputs,
+// so node_inputs cannot hold a cycle unless the file was edited by hand;
+// the bound turns that case into an error instead of an endless query.
+const maxLineageDepth = 1000
+
+// Lineage returns the node with this key and every node upstream of it,
+// each once, upstream first: every node comes after all of its inputs, and
+// the node itself is last. Ties are broken by key, so the order is
+// deterministic. An unknown key wraps ErrNotFound.
+func (l *Ledger) Lineage(ctx context.Context, key pipeline.KeyID) ([]pipeline.NodeRecord, error) {
+	var out []pipeline.NodeRecord
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		var n int
+		if err := tx.QueryRowContext(ctx, "SELECT count(*) FROM nodes WHERE key = ?", string(key)).Scan(&n); err != nil {
+			return err
+		}
+		if n == 0 {
+			return fmt.Errorf("node %s: %w", key, ErrNotFound)
+		}
+		// A node's longest path from the root is longer than that of any
+		// node it feeds, so sorting by it, longest first, puts every input
+		// before its consumers.
+		rows, err := tx.QueryContext(ctx, `WITH RECURSIVE up(key, depth) AS (
+				SELECT ?1, 0
+				UNION
+				SELECT ni.input_key, up.depth + 1 FROM node_inputs ni JOIN up ON ni.key = up.key
+				WHERE up.depth < ?2
+			)
+			SELECT `+nodeColumns+`, max(up.depth) AS d FROM up JOIN nodes n ON n.key = up.key
+			GROUP BY up.key ORDER BY d DESC, up.key`, string(key), maxLineageDepth)
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var depth int
+			rec, err := scanNode(rows, &depth)
+			if err != nil {
+				return err
+			}
+			if depth >= maxLineageDepth {
+				return fmt.Errorf("%w: lineage deeper than %d nodes: node_inputs holds a cycle", ErrIntegrity, maxLineageDepth)
+			}
+			out = append(out, rec)
+		}
+		if err := rows.Err(); err != nil {
+			return err
+		}
+		rows.Close()
+		for i := range out {
+			if err := completeNode(ctx, tx, &out[i]); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: lineage of %s: %w", key, err)
+	}
+	return out, nil
+}

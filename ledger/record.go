@@ -1,0 +1,351 @@
+package ledger
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"strings"
+	"time"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// BeginRun records a run as running. The run id must be new, and
+// info.ConfigHash must be the prefixed SHA-256 of info.ConfigText.
+func (l *Ledger) BeginRun(ctx context.Context, info pipeline.RunInfo) error {
+	if err := l.beginRun(ctx, info); err != nil {
+		return fmt.Errorf("ledger: begin run %s: %w", info.ID, err)
+	}
+	return nil
+}
+
+func (l *Ledger) beginRun(ctx context.Context, info pipeline.RunInfo) error {
+	if info.ID == "" || strings.TrimSpace(string(info.ID)) != string(info.ID) {
+		return fmt.Errorf("run id %q is empty or has surrounding space", info.ID)
+	}
+	if info.Started.IsZero() {
+		return errors.New("start time is zero")
+	}
+	if want := pipeline.Sum([]byte(info.ConfigText)); info.ConfigHash != want {
+		return fmt.Errorf("%w: config hash: expected %s (hash of the configuration text), found %s", ErrIntegrity, want, info.ConfigHash)
+	}
+	return l.inTx(ctx, func(tx *sql.Tx) error {
+		var n int
+		if err := tx.QueryRowContext(ctx, "SELECT count(*) FROM runs WHERE id = ?", string(info.ID)).Scan(&n); err != nil {
+			return err
+		}
+		if n > 0 {
+			return fmt.Errorf("run %s already exists", info.ID)
+		}
+		_, err := tx.ExecContext(ctx, `INSERT INTO runs
+			(id, started_at, tool_version, config_path, config_text, config_hash, status)
+			VALUES (?, ?, ?, ?, ?, ?, ?)`,
+			string(info.ID), formatTime(info.Started), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash,
+			string(pipeline.RunRunning))
+		return err
+	})
+}
+
+// Lookup returns the successful node with this key, if recorded, fully
+// decoded. Failed nodes are not results and are never returned. A stored
+// row that no longer matches its hashes is an error wrapping ErrIntegrity,
+// never a hit.
+func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
+	var (
+		rec   pipeline.NodeRecord
+		found bool
+	)
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		var err error
+		rec, found, err = loadNode(ctx, tx, key)
+		return err
+	})
+	if err != nil {
+		return pipeline.NodeRecord{}, false, fmt.Errorf("ledger: look up %s: %w", key, err)
+	}
+	if !found || rec.Status != pipeline.NodeOK {
+		return pipeline.NodeRecord{}, false, nil
+	}
+	return rec, true, nil
+}
+
+// RecordNode stores what run did with a node, in one transaction.
+//
+// Computed: the record is verified (key, description, output hash) and
+// stored as an ok node with its inputs, each of which must be an ok node
+// whose output hash is the one the record names. If the key is already ok,
+// the output hash must be the same (else the call fails with "conflicting
+// outputs") and the row is not written again; a failed row with the key is
+// replaced.
+//
+// Failed: the failure is stored as a failed node row (inserted, or updated
+// if the row is already failed). An ok row is never turned into a failed
+// one; the failure is then recorded against the run only.
+//
+// Reused: the node must already be stored as ok; only the run's link is
+// written. rec.Duration is stored as the time this run spent on it.
+//
+// In every case the run must be running and must not have touched the key
+// before.
+func (l *Ledger) RecordNode(ctx context.Context, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
+	err := checkRecord(rec, action)
+	if err == nil {
+		err = l.inTx(ctx, func(tx *sql.Tx) error { return l.recordNode(ctx, tx, run, rec, action) })
+	}
+	if err != nil {
+		return fmt.Errorf("ledger: record %s node %s in run %s: %w", action, rec.Key, run, err)
+	}
+	return nil
+}
+
+// storedNode is the part of a node row RecordNode decides on.
+type storedNode struct {
+	status      pipeline.NodeStatus
+	outputHash  pipeline.OutputID
+	stage       string
+	description string
+}
+
+func readStored(ctx context.Context, tx *sql.Tx, key pipeline.KeyID) (storedNode, bool, error) {
+	var s storedNode
+	var status, hash string
+	err := tx.QueryRowContext(ctx, "SELECT status, output_hash, stage, description FROM nodes WHERE key = ?", string(key)).
+		Scan(&status, &hash, &s.stage, &s.description)
+	if errors.Is(err, sql.ErrNoRows) {
+		return s, false, nil
+	}
+	if err != nil {
+		return s, false, fmt.Errorf("read node %s: %w", key, err)
+	}
+	s.status, s.outputHash = pipeline.NodeStatus(status), pipeline.OutputID(hash)
+	return s, true, nil
+}
+
+func (l *Ledger) recordNode(ctx context.Context, tx *sql.Tx, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
+	if err := requireRunning(ctx, tx, run); err != nil {
+		return err
+	}
+	old, exists, err := readStored(ctx, tx, rec.Key)
+	if err != nil {
+		return err
+	}
+	if exists && action != pipeline.Reused && old.description != rec.Description {
+		return fmt.Errorf("%w: the stored description for this key differs: %s", ErrIntegrity, firstDifference(old.description, rec.Description))
+	}
+	runErr := ""
+	switch action {
+	case pipeline.Computed:
+		switch {
+		case !exists:
+			if err := l.insertNode(ctx, tx, rec); err != nil {
+				return err
+			}
+		case old.status == pipeline.NodeOK:
+			if old.outputHash != rec.OutputHash {
+				return fmt.Errorf("%w: conflicting outputs for key %s: the ledger holds %s, this computation produced %s (is the stage deterministic, and was its version bumped when its numerics changed?)",
+					ErrIntegrity, rec.Key, old.outputHash, rec.OutputHash)
+			}
+		default: // failed before, ok now
+			if err := l.updateNode(ctx, tx, rec); err != nil {
+				return err
+			}
+		}
+	case pipeline.Failed:
+		runErr = rec.Error
+		switch {
+		case !exists:
+			if err := l.insertNode(ctx, tx, rec); err != nil {
+				return err
+			}
+		case old.status == pipeline.NodeFailed:
+			if err := l.updateNode(ctx, tx, rec); err != nil {
+				return err
+			}
+		}
+		// An ok row stays ok: the failure is this run's alone.
+	case pipeline.Reused:
+		if !exists {
+			return fmt.Errorf("node %s: %w (a reused node must already be in the ledger)", rec.Key, ErrNotFound)
+		}
+		if old.status != pipeline.NodeOK {
+			return fmt.Errorf("node %s is recorded as %s and cannot be reused", rec.Key, old.status)
+		}
+		if rec.OutputHash != "" && rec.OutputHash != old.outputHash {
+			return fmt.Errorf("%w: reused node output hash: expected %s (as stored), found %s", ErrIntegrity, old.outputHash, rec.OutputHash)
+		}
+	}
+	return insertRunNode(ctx, tx, run, rec.Key, action, rec.Duration, runErr)
+}
+
+// requireRunning fails unless run exists and is still running.
+func requireRunning(ctx context.Context, tx *sql.Tx, run pipeline.RunID) error {
+	var status string
+	err := tx.QueryRowContext(ctx, "SELECT status FROM runs WHERE id = ?", string(run)).Scan(&status)
+	if errors.Is(err, sql.ErrNoRows) {
+		return fmt.Errorf("run %s: %w", run, ErrNotFound)
+	}
+	if err != nil {
+		return fmt.Errorf("read run %s: %w", run, err)
+	}
+	if pipeline.RunStatus(status) != pipeline.RunRunning {
+		return fmt.Errorf("run %s is already finished (%s)", run, status)
+	}
+	return nil
+}
+
+// rowValues returns the canonical text of a record's parameters and outputs.
+func rowValues(rec pipeline.NodeRecord) (params, outputs string, err error) {
+	p, err := rec.Params.Encode()
+	if err != nil {
+		return "", "", fmt.Errorf("parameters: %w", err)
+	}
+	o, err := rec.Outputs.Encode()
+	if err != nil {
+		return "", "", fmt.Errorf("outputs: %w", err)
+	}
+	return string(p), string(o), nil
+}
+
+// insertNode writes a new node row and its inputs. Each input must be an ok
+// node of the named stage with the output hash the record names.
+func (l *Ledger) insertNode(ctx context.Context, tx *sql.Tx, rec pipeline.NodeRecord) error {
+	params, outputs, err := rowValues(rec)
+	if err != nil {
+		return err
+	}
+	for i, in := range rec.Inputs {
+		up, ok, err := readStored(ctx, tx, in.Key)
+		if err != nil {
+			return err
+		}
+		switch {
+		case !ok:
+			return fmt.Errorf("input %d (%s node %s): %w", i, in.Stage, in.Key, ErrNotFound)
+		case up.status != pipeline.NodeOK:
+			return fmt.Errorf("input %d (%s node %s) is recorded as %s, not ok", i, in.Stage, in.Key, up.status)
+		case up.stage != in.Stage:
+			return fmt.Errorf("%w: input %d (node %s) stage: expected %s (as stored), found %s", ErrIntegrity, i, in.Key, up.stage, in.Stage)
+		case up.outputHash != in.Output:
+			return fmt.Errorf("%w: input %d (%s node %s) output hash: expected %s (as stored), found %s", ErrIntegrity, i, in.Stage, in.Key, up.outputHash, in.Output)
+		}
+	}
+	if _, err := tx.ExecContext(ctx, `INSERT INTO nodes
+		(key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+		string(rec.Key), rec.Stage, rec.Version, params, rec.Description, outputs, string(rec.OutputHash),
+		string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now())); err != nil {
+		return fmt.Errorf("insert node: %w", err)
+	}
+	for i, in := range rec.Inputs {
+		if _, err := tx.ExecContext(ctx, `INSERT INTO node_inputs
+			(key, position, input_key, input_stage, input_output_hash) VALUES (?, ?, ?, ?, ?)`,
+			string(rec.Key), i, string(in.Key), in.Stage, string(in.Output)); err != nil {
+			return fmt.Errorf("insert input %d: %w", i, err)
+		}
+	}
+	return nil
+}
+
+// updateNode rewrites the mutable part of a row that is currently failed:
+// to ok with outputs, or to failed with a newer error. The WHERE clause
+// makes "an ok row never changes" hold even if the caller got it wrong.
+func (l *Ledger) updateNode(ctx context.Context, tx *sql.Tx, rec pipeline.NodeRecord) error {
+	_, outputs, err := rowValues(rec)
+	if err != nil {
+		return err
+	}
+	res, err := tx.ExecContext(ctx, `UPDATE nodes
+		SET outputs = ?, output_hash = ?, status = ?, error = ?, duration_ns = ?, recorded_at = ?
+		WHERE key = ? AND status = 'failed'`,
+		outputs, string(rec.OutputHash), string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now()), string(rec.Key))
+	if err != nil {
+		return fmt.Errorf("update node: %w", err)
+	}
+	if n, err := res.RowsAffected(); err != nil || n != 1 {
+		return fmt.Errorf("update node: %d rows changed, want 1 (%v)", n, err)
+	}
+	return nil
+}
+
+// insertRunNode links a node to a run, as the next node the run touched.
+func insertRunNode(ctx context.Context, tx *sql.Tx, run pipeline.RunID, key pipeline.KeyID, action pipeline.Action, d time.Duration, errText string) error {
+	var prev string
+	err := tx.QueryRowContext(ctx, "SELECT action FROM run_nodes WHERE run_id = ? AND key = ?", string(run), string(key)).Scan(&prev)
+	if err == nil {
+		return fmt.Errorf("run %s already recorded node %s (as %s); a run touches each key once", run, key, prev)
+	}
+	if !errors.Is(err, sql.ErrNoRows) {
+		return fmt.Errorf("read run node: %w", err)
+	}
+	var ordinal int
+	if err := tx.QueryRowContext(ctx, "SELECT coalesce(max(ordinal) + 1, 0) FROM run_nodes WHERE run_id = ?", string(run)).Scan(&ordinal); err != nil {
+		return fmt.Errorf("next ordinal: %w", err)
+	}
+	if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal)
+		VALUES (?, ?, ?, ?, ?, ?)`, string(run), string(key), string(action), int64(d), errText, ordinal); err != nil {
+		return fmt.Errorf("insert run node: %w", err)
+	}
+	return nil
+}
+
+// RecordResults stores the run's labelled results, in one transaction.
+// Each must name an ok node that the run computed or reused, and no
+// ordinal may be recorded twice.
+func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results []pipeline.ResultRef) error {
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		if err := requireRunning(ctx, tx, run); err != nil {
+			return err
+		}
+		for _, r := range results {
+			var status string
+			err := tx.QueryRowContext(ctx, `SELECT n.status FROM run_nodes rn JOIN nodes n ON n.key = rn.key
+				WHERE rn.run_id = ? AND rn.key = ?`, string(run), string(r.Key)).Scan(&status)
+			if errors.Is(err, sql.ErrNoRows) {
+				return fmt.Errorf("result %d %q: node %s is not part of the run: %w", r.Ordinal, r.Label, r.Key, ErrNotFound)
+			}
+			if err != nil {
+				return fmt.Errorf("result %d %q: %w", r.Ordinal, r.Label, err)
+			}
+			if pipeline.NodeStatus(status) != pipeline.NodeOK {
+				return fmt.Errorf("result %d %q: node %s is %s; a failed node is never a result", r.Ordinal, r.Label, r.Key, status)
+			}
+			if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, key) VALUES (?, ?, ?, ?)",
+				string(run), r.Ordinal, r.Label, string(r.Key)); err != nil {
+				return fmt.Errorf("result %d %q: %w", r.Ordinal, r.Label, err)
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		return fmt.Errorf("ledger: record results of run %s: %w", run, err)
+	}
+	return nil
+}
+
+// FinishRun closes a running run with its final status (succeeded or
+// failed), finish time and error text.
+func (l *Ledger) FinishRun(ctx context.Context, run pipeline.RunID, status pipeline.RunStatus, finished time.Time, errText string) error {
+	err := l.finishRun(ctx, run, status, finished, errText)
+	if err != nil {
+		return fmt.Errorf("ledger: finish run %s: %w", run, err)
+	}
+	return nil
+}
+
+func (l *Ledger) finishRun(ctx context.Context, run pipeline.RunID, status pipeline.RunStatus, finished time.Time, errText string) error {
+	if status != pipeline.RunSucceeded && status != pipeline.RunFailed {
+		return fmt.Errorf("final status must be %q or %q, found %q", pipeline.RunSucceeded, pipeline.RunFailed, status)
+	}
+	if finished.IsZero() {
+		return errors.New("finish time is zero")
+	}
+	return l.inTx(ctx, func(tx *sql.Tx) error {
+		if err := requireRunning(ctx, tx, run); err != nil {
+			return err
+		}
+		_, err := tx.ExecContext(ctx, "UPDATE runs SET status = ?, finished_at = ?, error = ? WHERE id = ?",
+			string(status), formatTime(finished), errText, string(run))
+		return err
+	})
+}
