@@ -6,6 +6,7 @@ require (
 	github.com/mattn/go-sqlite3 v1.14.53
 	github.com/pelletier/go-toml/v2 v2.4.3
 	github.com/spf13/cobra v1.10.2
+	gonum.org/v1/gonum v0.17.0
 )
 
 require (

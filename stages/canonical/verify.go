@@ -59,9 +59,7 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 	rep := Report{Field: nf.Name, MapFormula: nf.MapFormula}
 	sqrtK := func(x float64) float64 { return math.Sqrt(nf.Kinetic(x)) }
 	phi0 := nf.ToCanonical(nf.Origin)
-	hi := m.Hi
-	for _, t := range sampleFractions {
-		phi := m.Lo + (hi-m.Lo)*t
+	for _, phi := range samplePoints(m) {
 		x := nf.FromCanonical(phi)
 		if !(x >= nf.Lo && x <= nf.Hi) {
 			return rep, fmt.Errorf("%s: the map sends phi = %g to %s = %g, outside its domain (%g, %g)", m.Describe(), phi, nf.Name, x, nf.Lo, nf.Hi)
@@ -102,6 +100,30 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 		}
 	}
 	return rep, nil
+}
+
+// samplePoints returns the canonical field values to check: fractions of
+// the canonical range, and the images of points spread over the native
+// domain towards a finite edge (where a pole of K compresses the whole
+// plateau into a sliver of the native field), all inside (Lo, Hi).
+func samplePoints(m *model.Model) []float64 {
+	nf := m.Native
+	var out []float64
+	for _, t := range sampleFractions {
+		out = append(out, m.Lo+(m.Hi-m.Lo)*t)
+	}
+	for _, edge := range []float64{nf.Lo, nf.Hi} {
+		if math.IsInf(edge, 0) {
+			continue
+		}
+		for _, gap := range []float64{0.7, 0.4, 0.2, 0.1, 1e-2, 1e-3, 1e-4, 1e-5} {
+			x := nf.Origin + (edge-nf.Origin)*(1-gap)
+			if phi := nf.ToCanonical(x); phi > m.Lo && phi < m.Hi {
+				out = append(out, phi)
+			}
+		}
+	}
+	return out
 }
 
 func edgeGap(x, lo, hi float64) float64 {

@@ -3,6 +3,8 @@ package compare
 import (
 	"fmt"
 	"math"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // HalfNormal95 is the 95% quantile of a half-normal distribution in units
@@ -64,6 +66,9 @@ func (g Gaussian) DeltaChi2(ns, r float64) float64 {
 // give 1 and 2 sigma (68.27% and 95.45%). For p below the smallest float64
 // the asymptotic expansion of erfc is inverted instead.
 func Sigmas(dchi2 float64) float64 {
+	if math.IsNaN(dchi2) {
+		return math.NaN()
+	}
 	if !(dchi2 > 0) {
 		return 0
 	}
@@ -111,8 +116,9 @@ type Comparison struct {
 }
 
 // Chi2Level returns the Delta chi^2 enclosing probability P for two
-// parameters, -2 ln(1 - P).
-func Chi2Level(P float64) float64 { return -2 * math.Log(1-P) }
+// parameters: the quantile of the chi^2 distribution with two degrees of
+// freedom, -2 ln(1 - P) (gonum's distuv.ChiSquared).
+func Chi2Level(P float64) float64 { return distuv.ChiSquared{K: 2}.Quantile(P) }
 
 // Compare evaluates the prediction (n_s, r) against g.
 func (g Gaussian) Compare(ns, r float64) Comparison {

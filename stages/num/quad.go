@@ -126,7 +126,8 @@ func Integrate(f func(float64) float64, a, b float64, s *QuadSettings) (QuadResu
 		p := pieces[worst]
 		m := 0.5 * (p.a + p.b)
 		if m <= p.a || m >= p.b {
-			break // cannot split further at float64 resolution
+			res.Value, res.ErrEst, res.Intervals = sign*total, totalErr, len(pieces)
+			return res, fmt.Errorf("quadrature on [%g, %g]: interval near %g cannot be split further at float64 resolution (error estimate %g)", a, b, p.a, totalErr)
 		}
 		v1, e1 := gk15(f, p.a, m)
 		v2, e2 := gk15(f, m, p.b)

@@ -24,7 +24,7 @@ func TestIntegrateClosedForms(t *testing.T) {
 		{"cos^2 on [0,2pi]", func(x float64) float64 { c := math.Cos(x); return c * c }, 0, 2 * math.Pi, math.Pi, 1e-13, "oscillatory"},
 		{"1/sqrt(x) on [0,1]", func(x float64) float64 { return 1 / math.Sqrt(x) }, 0, 1, 2, 1e-10, "integrable end-point singularity: the adaptive error estimate is loose, so 1e-10 rather than 1e-12"},
 		{"ln x on [0,1]", math.Log, 0, 1, -1, 1e-11, "logarithmic end-point singularity"},
-		{"x^-0.9 on [0,1]", func(x float64) float64 { return math.Pow(x, -0.9) }, 0, 1, 10, 1e-6, "strong singularity: only ~1e-6 reachable by bisection before float64 runs out of digits near 0"},
+		{"x^-0.9 on [0,1]", func(x float64) float64 { return math.Pow(x, -0.9) }, 0, 1, 10, 1e-11, "strong end-point singularity: some 450 bisections towards 0"},
 		{"sqrt(x) on [0,4]", math.Sqrt, 0, 4, 16.0 / 3, 1e-12, "derivative singular at 0"},
 		{"reversed e^x on [1,0]", math.Exp, 1, 0, -(math.E - 1), 1e-14, "a > b gives the negative"},
 		{"reversed 1/sqrt(x) on [1,0]", func(x float64) float64 { return 1 / math.Sqrt(x) }, 1, 0, -2, 1e-10, "reversed and singular"},
@@ -32,7 +32,7 @@ func TestIntegrateClosedForms(t *testing.T) {
 	}
 	for _, c := range cases {
 		r, err := Integrate(c.f, c.a, c.b, nil)
-		if err != nil && !strings.Contains(c.name, "x^-0.9") {
+		if err != nil {
 			t.Errorf("%s: %v", c.name, err)
 			continue
 		}
@@ -79,6 +79,9 @@ func TestIntegrateErrors(t *testing.T) {
 		{"pole at the centre", func(x float64) float64 { return 1 / x }, -1, 1, nil, "not finite"},
 		{"pole inside", func(x float64) float64 { return 1 / (x - 0.5) }, 0, 1, nil, "not finite"},
 		{"NaN inside", math.Sqrt, -1, 1, nil, "not finite"},
+		// A divergent integral must not come back as a number: bisection
+		// towards the pole ends on a node where 1/x overflows.
+		{"divergent 1/x on [0,1]", func(x float64) float64 { return 1 / x }, 0, 1, nil, "not finite"},
 		{"too few intervals", func(x float64) float64 { return 1 / math.Sqrt(x) }, 0, 1, &QuadSettings{MaxIntervals: 3}, "did not converge"},
 	}
 	for _, c := range cases {

@@ -114,3 +114,39 @@ func TestBrentErrors(t *testing.T) {
 		t.Errorf("MaxIter 2: error %v, want non-convergence", err)
 	}
 }
+
+// TestPolish: Polish returns the float64 at or just above the sign change
+// of f (the member of the adjacent pair with f >= 0), whichever side of the
+// root it starts from; an exact zero or a point without a nearby sign
+// change is returned unchanged (Polish's doc comment).
+func TestPolish(t *testing.T) {
+	cases := []struct {
+		name  string
+		f     func(float64) float64
+		start float64
+	}{
+		{"x^2 - 2 from above", func(x float64) float64 { return x*x - 2 }, 1.4142136},
+		{"x^2 - 2 from below", func(x float64) float64 { return x*x - 2 }, 1.4142135},
+		{"x^2 - 2, negative root", func(x float64) float64 { return x*x - 2 }, -1.41421},
+		{"cos x - x (decreasing)", func(x float64) float64 { return math.Cos(x) - x }, 0.739},
+		{"e^x - 3", func(x float64) float64 { return math.Exp(x) - 3 }, 1.1},
+	}
+	for _, c := range cases {
+		x := Polish(c.f, c.start)
+		up, down := math.Nextafter(x, math.Inf(1)), math.Nextafter(x, math.Inf(-1))
+		if !(c.f(x) >= 0) || !(c.f(up) < 0 || c.f(down) < 0) {
+			t.Errorf("%s: Polish = %.17g, f there %g, neighbours %g %g", c.name, x, c.f(x), c.f(down), c.f(up))
+		}
+	}
+	if x := Polish(func(x float64) float64 { return x - 0.5 }, 0.5); x != 0.5 {
+		t.Errorf("exact root moved to %g", x)
+	}
+	if x := Polish(func(x float64) float64 { return x*x + 1 }, 0.25); x != 0.25 {
+		t.Errorf("no root: moved to %g", x)
+	}
+	// From either side, the same bits.
+	f := func(x float64) float64 { return x*x*x - 2*x - 5 }
+	if a, b := Polish(f, 2.09), Polish(f, 2.1); a != b {
+		t.Errorf("Polish from 2.09 gives %.17g, from 2.1 %.17g", a, b)
+	}
+}

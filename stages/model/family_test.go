@@ -1,0 +1,170 @@
+package model
+
+import (
+	"errors"
+	"math"
+	"sort"
+	"strings"
+	"testing"
+)
+
+// The built-in families and their declared parameters, as documented in
+// families.go (alpha-attractors: Kallosh, Linde & Roest 2013,
+// arXiv:1311.0472; others as cited there).
+func TestRegistry(t *testing.T) {
+	want := []string{"e-model", "hilltop", "natural", "power-law", "starobinsky", "t-model"}
+	got := Names()
+	if strings.Join(got, ",") != strings.Join(want, ",") {
+		t.Errorf("Names() = %v, want %v", got, want)
+	}
+	if !sort.StringsAreSorted(got) {
+		t.Errorf("Names() not sorted: %v", got)
+	}
+	params := map[string]string{
+		"t-model": "alpha,n", "e-model": "alpha,n", "starobinsky": "",
+		"power-law": "p", "natural": "f", "hilltop": "mu,p",
+	}
+	for name, ps := range params {
+		f, err := Lookup(name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := strings.Join(f.ParamNames(), ","); got != ps {
+			t.Errorf("%s: parameters %q, want %q", name, got, ps)
+		}
+		if f.Reference == "" || f.Formula == "" {
+			t.Errorf("%s: missing formula or reference", name)
+		}
+	}
+}
+
+func TestLookupUnknownListsKnown(t *testing.T) {
+	_, err := Lookup("quintic")
+	if err == nil {
+		t.Fatal("Lookup(quintic) succeeded")
+	}
+	for _, n := range append([]string{`"quintic"`}, Names()...) {
+		if !strings.Contains(err.Error(), n) {
+			t.Errorf("error %q does not name %s", err, n)
+		}
+	}
+}
+
+func TestParameterValidation(t *testing.T) {
+	cases := []struct {
+		family string
+		given  map[string]float64
+		param  string   // the parameter the error must name
+		words  []string // further text the message must contain
+	}{
+		{"t-model", map[string]float64{"alpha": 1, "beta": 2}, "beta", []string{"unknown", "allowed: alpha, n"}},
+		{"starobinsky", map[string]float64{"alpha": 1}, "alpha", []string{"unknown", "allowed: none"}},
+		{"e-model", map[string]float64{"n": 1}, "alpha", []string{"missing", "alpha, n"}},
+		{"power-law", nil, "p", []string{"missing"}},
+		{"t-model", map[string]float64{"alpha": 0}, "alpha", []string{"outside (0, +Inf)"}},
+		{"t-model", map[string]float64{"alpha": -1}, "alpha", []string{"outside"}},
+		{"e-model", map[string]float64{"alpha": math.NaN()}, "alpha", []string{"not finite"}},
+		{"e-model", map[string]float64{"alpha": math.Inf(1)}, "alpha", []string{"not finite"}},
+		{"t-model", map[string]float64{"alpha": 1, "n": 0}, "n", []string{"outside"}},
+		{"natural", map[string]float64{"f": -2}, "f", []string{"outside"}},
+		{"hilltop", map[string]float64{"mu": 1, "p": 1.5}, "p", []string{"outside [2, +Inf)"}},
+		{"hilltop", map[string]float64{"mu": 0, "p": 4}, "mu", []string{"outside"}},
+	}
+	for _, c := range cases {
+		f, err := Lookup(c.family)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m, err := f.New(c.given)
+		if err == nil {
+			t.Errorf("%s %v: accepted as %s", c.family, c.given, m.Describe())
+			continue
+		}
+		var pe *ParamError
+		if !errors.As(err, &pe) || pe.Param != c.param || pe.Family != c.family {
+			t.Errorf("%s %v: error %v, want a ParamError for %s", c.family, c.given, err, c.param)
+			continue
+		}
+		for _, w := range c.words {
+			if !strings.Contains(err.Error(), w) {
+				t.Errorf("%s %v: error %q does not contain %q", c.family, c.given, err, w)
+			}
+		}
+	}
+}
+
+// Defaults: n = 1 for the alpha-attractors (the "simplest" models of
+// Kallosh, Linde & Roest 2013) and p = 2 for the hilltop (quadratic;
+// Boubekeur & Lyth 2005); the hilltop's closed bound p = 2 is allowed.
+func TestDefaults(t *testing.T) {
+	for _, c := range []struct {
+		family string
+		given  map[string]float64
+		want   string
+	}{
+		{"t-model", map[string]float64{"alpha": 1}, "t-model(alpha=1, n=1)"},
+		{"e-model", map[string]float64{"alpha": 0.5}, "e-model(alpha=0.5, n=1)"},
+		{"hilltop", map[string]float64{"mu": 10}, "hilltop(mu=10, p=2)"},
+		{"hilltop", map[string]float64{"mu": 10, "p": 2}, "hilltop(mu=10, p=2)"},
+		{"starobinsky", nil, "starobinsky()"},
+		{"power-law", map[string]float64{"p": 0.6666666666666666}, "power-law(p=0.6666666666666666)"},
+	} {
+		m := mustNew(t, c.family, c.given)
+		if got := m.Describe(); got != c.want {
+			t.Errorf("Describe() = %q, want %q", got, c.want)
+		}
+	}
+	// The defaulted t-model is the same potential as n = 1 given.
+	a := mustNew(t, "t-model", map[string]float64{"alpha": 1})
+	b := mustNew(t, "t-model", map[string]float64{"alpha": 1, "n": 1})
+	if a.At(2.3) != b.At(2.3) {
+		t.Errorf("default n differs from n = 1: %v vs %v", a.At(2.3), b.At(2.3))
+	}
+}
+
+// New must not keep the caller's map: changing it afterwards leaves the
+// model alone (common practice for value-like configuration).
+func TestNewCopiesParameters(t *testing.T) {
+	given := map[string]float64{"p": 2}
+	m := mustNew(t, "power-law", given)
+	given["p"] = 4
+	if m.Params["p"] != 2 || m.At(3).V != 9 {
+		t.Errorf("model changed with the caller's map: %v, V(3) = %g", m.Params, m.At(3).V)
+	}
+}
+
+func TestWithRange(t *testing.T) {
+	m := mustNew(t, "power-law", map[string]float64{"p": 2})
+	r, err := m.WithRange(5, 20)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Lo != 5 || r.Hi != 20 || m.Lo != 0 {
+		t.Errorf("WithRange: copy (%g, %g), original Lo %g", r.Lo, r.Hi, m.Lo)
+	}
+	for _, c := range []struct {
+		lo, hi float64
+		want   string
+	}{
+		{5, 5, "empty"}, {20, 5, "empty"}, {math.NaN(), 5, "empty"}, {-1, 5, "leaves the domain"}, {1, 1e9, "leaves the domain"},
+	} {
+		if _, err := m.WithRange(c.lo, c.hi); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("WithRange(%g, %g): error %v, want %q", c.lo, c.hi, err, c.want)
+		}
+	}
+}
+
+func TestParamInterval(t *testing.T) {
+	for _, c := range []struct {
+		p    Param
+		want string
+	}{
+		{Param{Min: 0, Max: math.Inf(1), MinOpen: true, MaxOpen: true}, "(0, +Inf)"},
+		{Param{Min: 2, Max: math.Inf(1), MaxOpen: true}, "[2, +Inf)"},
+		{Param{Min: -1, Max: 1}, "[-1, 1]"},
+	} {
+		if got := c.p.Interval(); got != c.want {
+			t.Errorf("Interval() = %q, want %q", got, c.want)
+		}
+	}
+}
