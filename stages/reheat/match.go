@@ -43,6 +43,10 @@ type Prediction struct {
 	// TReh is the reheating temperature [M_p]; for instantaneous
 	// reheating it is the maximum, T_max. Zero when not computed.
 	TReh float64
+	// TMax is the instantaneous-reheating temperature [M_p], NReh the
+	// e-folds of reheating and W its equation of state (zero when not
+	// matched to a history).
+	TMax, NReh, W float64
 }
 
 // AtEfolds evaluates a solution at a given N* and normalises it.
@@ -100,42 +104,20 @@ func (h History) InstantEfolds(s Scale) (N, TReh float64) {
 	return N, TReh
 }
 
-// Instant solves the matching for instantaneous reheating
-// self-consistently: V* and V_end, hence N*, depend on N* through the
-// potential's normalisation. The map N -> N*(N) has a slope of order 1/N,
-// so fixed-point iteration converges in a few steps; it stops when
-// successive N differ by less than 1e-11.
+// FirstOrder evaluates a slow-roll solution at first order and normalises
+// it to A_s.
+type FirstOrder struct {
+	Sol  *slowroll.Solution
+	Norm Normalisation
+}
+
+// At implements Evaluator.
+func (f FirstOrder) At(N float64) (Prediction, error) { return AtEfolds(f.Sol, N, f.Norm) }
+
+// Instant solves the matching for instantaneous reheating self-consistently
+// at first order (Match with EraInstant).
 func Instant(sol *slowroll.Solution, h History, n Normalisation) (Prediction, error) {
-	if err := h.Check(); err != nil {
-		return Prediction{}, err
-	}
-	N := 55.0
-	prevStep := math.Inf(1)
-	for iter := 0; iter < 100; iter++ {
-		pr, err := AtEfolds(sol, N, n)
-		if err != nil {
-			return Prediction{}, fmt.Errorf("instantaneous reheating at N* = %.6g: %w", N, err)
-		}
-		next, _ := h.InstantEfolds(pr.Scale)
-		if !finite(next) || next <= 0 {
-			return Prediction{}, fmt.Errorf("instantaneous reheating: matching gives N* = %g (from N = %g)", next, N)
-		}
-		step := math.Abs(next - N)
-		if step < 1e-11 {
-			pr2, err := AtEfolds(sol, next, n)
-			if err != nil {
-				return Prediction{}, err
-			}
-			_, pr2.TReh = h.InstantEfolds(pr2.Scale)
-			return pr2, nil
-		}
-		if iter > 5 && step > prevStep {
-			return Prediction{}, fmt.Errorf("instantaneous reheating: N* iteration does not contract (N = %g, step %g)", N, step)
-		}
-		prevStep = step
-		N = next
-	}
-	return Prediction{}, fmt.Errorf("instantaneous reheating: N* did not converge in 100 iterations (last %g)", N)
+	return Match(FirstOrder{sol, n}, h, Era{Kind: EraInstant}, 55)
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

@@ -320,7 +320,7 @@ func TestInstantRangeError(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := Instant(short, DefaultHistory(), Normalisation{As: DefaultAs}); err == nil || !strings.Contains(err.Error(), "instantaneous reheating at N*") {
+	if _, err := Instant(short, DefaultHistory(), Normalisation{As: DefaultAs}); err == nil || !strings.Contains(err.Error(), "reheating matching at N* = 55") {
 		t.Errorf("error %v, want one naming the N* tried", err)
 	}
 }

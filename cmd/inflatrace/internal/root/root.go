@@ -11,6 +11,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/modelscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/predictcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runscmd"
@@ -41,6 +42,7 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		predictcmd.NewCmd(env, g, nil),
 		runscmd.NewCmd(env, g, nil),
 		showcmd.NewCmd(env, g, nil),
+		modelscmd.NewCmd(env, nil),
 	)
 	return root
 }

@@ -1,0 +1,168 @@
+package reheat
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// DefaultBBNBoundGeV is the lower bound on the reheating temperature from
+// big-bang nucleosynthesis, T_reh > 4.1 MeV at 95% confidence (de Salas,
+// Lattanzi, Mangano, Miele, Pastor & Pisanti 2015, PRD 92, 123534,
+// arXiv:1511.00672, abstract; their Planck bound is 4.7 MeV).
+const DefaultBBNBoundGeV = 4.1e-3
+
+// EraKind says how the reheating era is specified.
+type EraKind int
+
+// The ways to give the reheating era.
+const (
+	// EraInstant: radiation domination starts at the end of inflation.
+	EraInstant EraKind = iota
+	// EraTemperature: constant equation of state W until the plasma
+	// thermalises at temperature T.
+	EraTemperature
+	// EraEfolds: constant W for NReh e-folds of expansion.
+	EraEfolds
+)
+
+// Era is the reheating era between the end of inflation and radiation
+// domination: a fluid of constant equation of state w, so that
+// rho ∝ a^(-3(1+w)) (kination is w = 1).
+type Era struct {
+	Kind EraKind
+	W    float64 // equation of state during reheating, -1/3 < w <= 1
+	T    float64 // reheating temperature [M_p], for EraTemperature
+	NReh float64 // e-folds of reheating, for EraEfolds
+}
+
+// Check refuses an unphysical era, naming the parameter.
+func (e Era) Check() error {
+	if e.Kind == EraInstant {
+		return nil
+	}
+	if !(e.W > -1.0/3) || e.W > 1 || math.IsNaN(e.W) {
+		return fmt.Errorf("w_reh = %g: reheating needs -1/3 < w_reh <= 1 (w <= -1/3 would still inflate)", e.W)
+	}
+	switch e.Kind {
+	case EraTemperature:
+		if !(e.T > 0) || math.IsInf(e.T, 0) {
+			return fmt.Errorf("T_reh = %g GeV: want a positive finite temperature", GeV(e.T))
+		}
+	case EraEfolds:
+		if !(e.NReh >= 0) || math.IsInf(e.NReh, 0) {
+			return fmt.Errorf("N_reh = %g: want a finite N_reh >= 0", e.NReh)
+		}
+	}
+	return nil
+}
+
+// ErrAboveMaximum reports a reheating temperature above the instantaneous
+// maximum (the energy at the end of inflation cannot grow).
+var ErrAboveMaximum = errors.New("reheating temperature above the instantaneous maximum")
+
+// Matched is the outcome of matching one scale at one era.
+type Matched struct {
+	N    float64 // N* implied by the history
+	T    float64 // reheating temperature [M_p]
+	TMax float64 // instantaneous-reheating temperature [M_p]
+	NReh float64 // e-folds of reheating
+}
+
+// Efolds returns N* implied by the expansion history for a prediction
+// normalised at the pivot (scale s), in the entropy form of the matching
+// condition k* = a* H* (no H_0 needed):
+//
+//	N* = ln(a_0 T_0/k*) + (1/3) ln(g_s0/g_s,reh) + ln(H*/T_reh) - N_reh,
+//	rho_reh = rho_end exp(-3 (1 + w) N_reh) = (pi^2/30) g_reh T_reh^4,
+//
+// (Liddle & Leach 2003, PRD 68, 103503, astro-ph/0305263; Dai, Kamionkowski
+// & Wang 2014, PRL 113, 041302, arXiv:1404.6704; Cook, Dimastrogiovanni,
+// Easson & Krauss 2015, JCAP 04 (2015) 047, arXiv:1502.04673; Planck 2018
+// X, arXiv:1807.06211, sect. 2.4). Eliminating N_reh gives the Planck form
+// with the term (1 - 3w)/(12(1 + w)) ln(rho_reh/rho_end): at w = 1/3 the
+// result does not depend on T_reh. All energies in M_p.
+func (h History) Efolds(s Scale, e Era) (Matched, error) { return h.efolds(s, e, false) }
+
+// efolds is Efolds; with allowAbove, a temperature above T_max is allowed
+// (a negative N_reh), as intermediate iterates of Match may need.
+func (h History) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
+	kOverT0 := h.PivotPerMpc * PerMpcInGeV / KelvinInGeV(h.T0K)
+	g := math.Pi * math.Pi * h.GReh / 30
+	tmax := math.Pow(s.RhoEnd/g, 0.25)
+	m := Matched{TMax: tmax}
+	switch e.Kind {
+	case EraInstant:
+		m.T, m.NReh = tmax, 0
+	case EraTemperature:
+		if e.T > tmax && !allowAbove {
+			return m, fmt.Errorf("%w: T_reh = %.4g GeV > T_max = %.4g GeV", ErrAboveMaximum, GeV(e.T), GeV(tmax))
+		}
+		m.T = e.T
+		m.NReh = math.Log(s.RhoEnd/(g*e.T*e.T*e.T*e.T)) / (3 * (1 + e.W))
+	case EraEfolds:
+		m.NReh = e.NReh
+		m.T = math.Pow(s.RhoEnd*math.Exp(-3*(1+e.W)*e.NReh)/g, 0.25)
+	default:
+		return m, fmt.Errorf("unknown reheating era %d", e.Kind)
+	}
+	m.N = -math.Log(kOverT0) + math.Log(h.GS0/h.GSReh)/3 + math.Log(s.Hstar/m.T) - m.NReh
+	return m, nil
+}
+
+// Evaluator gives a model's normalised prediction N e-folds before the end
+// of inflation; the slow-roll methods each provide one.
+type Evaluator interface {
+	At(N float64) (Prediction, error)
+}
+
+// Match solves N* self-consistently for a reheating era: V* and V_end, and
+// so N*, depend on N* through the normalisation of the potential. The map
+// N -> N*(N) has a slope of order 1/N, so fixed-point iteration from the
+// given start converges in a few steps; it stops when successive N differ
+// by less than 1e-11.
+func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
+	if err := h.Check(); err != nil {
+		return Prediction{}, err
+	}
+	if err := e.Check(); err != nil {
+		return Prediction{}, err
+	}
+	N := start
+	prevStep := math.Inf(1)
+	for iter := 0; iter < 100; iter++ {
+		pr, err := ev.At(N)
+		if err != nil {
+			return Prediction{}, fmt.Errorf("reheating matching at N* = %.6g: %w", N, err)
+		}
+		m, err := h.efolds(pr.Scale, e, true) // T_max is checked once converged
+		if err != nil {
+			return Prediction{}, err
+		}
+		if !finite(m.N) || m.N <= 0 {
+			return Prediction{}, fmt.Errorf("reheating matching gives N* = %g (from N = %g)", m.N, N)
+		}
+		step := math.Abs(m.N - N)
+		if step < 1e-11 {
+			final, err := ev.At(m.N)
+			if err != nil {
+				return Prediction{}, err
+			}
+			fm, err := h.Efolds(final.Scale, e)
+			if err != nil {
+				return Prediction{}, err
+			}
+			final.TReh, final.TMax, final.NReh, final.W = fm.T, fm.TMax, fm.NReh, e.W
+			if e.Kind == EraInstant {
+				final.W = 1.0 / 3
+			}
+			return final, nil
+		}
+		if iter > 5 && step > prevStep {
+			return Prediction{}, fmt.Errorf("reheating matching: N* iteration does not contract (N = %g, step %g)", N, step)
+		}
+		prevStep = step
+		N = m.N
+	}
+	return Prediction{}, fmt.Errorf("reheating matching: N* did not converge in 100 iterations (last %g)", N)
+}
