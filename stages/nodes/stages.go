@@ -3,13 +3,11 @@ package nodes
 import (
 	"context"
 	"fmt"
-	"strings"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/canonical"
 	"github.com/inflatrace/inflatrace/stages/compare"
 	"github.com/inflatrace/inflatrace/stages/model"
-	"github.com/inflatrace/inflatrace/stages/reheat"
 	"github.com/inflatrace/inflatrace/stages/slowroll"
 )
 
@@ -160,127 +158,6 @@ func solutionFrom(in pipeline.Values) (*slowroll.Solution, error) {
 		return nil, err
 	}
 	return &slowroll.Solution{Model: m, End: slowroll.End{Phi: phi, Direction: dir, V: m.At(phi).V}}, nil
-}
-
-// Reheating histories.
-const (
-	HistoryFixed   = "fixed-efolds"
-	HistoryInstant = "instantaneous"
-)
-
-// Reheat is the reheating-matching stage: it fixes N* (given, or from
-// instantaneous reheating), evaluates the observables there and normalises
-// the potential to A_s.
-type Reheat struct{}
-
-// Spec declares the stage.
-func (Reheat) Spec() pipeline.Spec {
-	opt := func(name, unit string) pipeline.ParamSpec {
-		return pipeline.ParamSpec{Name: name, Kind: pipeline.KindFloat, Unit: unit, Optional: true}
-	}
-	return pipeline.Spec{
-		Name: ReheatStage, Version: ReheatVersion, Inputs: []string{SlowRollStage},
-		Params: []pipeline.ParamSpec{
-			{Name: "history", Kind: pipeline.KindString},
-			{Name: "A_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
-			opt("N_star", pipeline.UnitNone),
-			opt("k_pivot", pipeline.UnitPerMpc),
-			opt("T_0", pipeline.UnitKelvin),
-			opt("g_s0", pipeline.UnitNone),
-			opt("g_reh", pipeline.UnitNone),
-			opt("g_s_reh", pipeline.UnitNone),
-		},
-	}
-}
-
-// FixedParams returns the reheat parameters for a fixed N*.
-func FixedParams(N, As float64) pipeline.Values {
-	return pipeline.Values{
-		"history": pipeline.String(HistoryFixed),
-		"N_star":  pipeline.Float(N, pipeline.UnitNone),
-		"A_s":     pipeline.Float(As, pipeline.UnitNone),
-	}
-}
-
-// InstantParams returns the reheat parameters for instantaneous reheating.
-func InstantParams(h reheat.History, As float64) pipeline.Values {
-	return pipeline.Values{
-		"history": pipeline.String(HistoryInstant),
-		"A_s":     pipeline.Float(As, pipeline.UnitNone),
-		"k_pivot": pipeline.Float(h.PivotPerMpc, pipeline.UnitPerMpc),
-		"T_0":     pipeline.Float(h.T0K, pipeline.UnitKelvin),
-		"g_s0":    pipeline.Float(h.GS0, pipeline.UnitNone),
-		"g_reh":   pipeline.Float(h.GReh, pipeline.UnitNone),
-		"g_s_reh": pipeline.Float(h.GSReh, pipeline.UnitNone),
-	}
-}
-
-// Run matches the solution to the reheating history.
-func (Reheat) Run(_ context.Context, params pipeline.Values, inputs []pipeline.Values) (pipeline.Values, error) {
-	in, err := onlyInput(ReheatStage, inputs)
-	if err != nil {
-		return nil, err
-	}
-	sol, err := solutionFrom(in)
-	if err != nil {
-		return nil, err
-	}
-	As, _ := params.Num("A_s")
-	if !(As > 0) {
-		return nil, fmt.Errorf("A_s = %g, want > 0", As)
-	}
-	norm := reheat.Normalisation{As: As}
-	history, _ := params.Text("history")
-	var pr reheat.Prediction
-	switch history {
-	case HistoryFixed:
-		N, err := params.Num("N_star")
-		if err != nil {
-			return nil, fmt.Errorf("history %s: %w", HistoryFixed, err)
-		}
-		if pr, err = reheat.AtEfolds(sol, N, norm); err != nil {
-			return nil, err
-		}
-	case HistoryInstant:
-		var h reheat.History
-		for _, f := range []struct {
-			name string
-			dst  *float64
-		}{{"k_pivot", &h.PivotPerMpc}, {"T_0", &h.T0K}, {"g_s0", &h.GS0}, {"g_reh", &h.GReh}, {"g_s_reh", &h.GSReh}} {
-			v, err := params.Num(f.name)
-			if err != nil {
-				return nil, fmt.Errorf("history %s: %w", HistoryInstant, err)
-			}
-			*f.dst = v
-		}
-		if pr, err = reheat.Instant(sol, h, norm); err != nil {
-			return nil, err
-		}
-	default:
-		return nil, fmt.Errorf("unknown reheating history %q (known: %s)", history, strings.Join([]string{HistoryFixed, HistoryInstant}, ", "))
-	}
-	out := pipeline.Values{
-		"reheating":           pipeline.String(history),
-		"A_s":                 pipeline.Float(As, pipeline.UnitNone),
-		"N_star":              pipeline.Float(pr.N, pipeline.UnitNone),
-		"phi_star":            pipeline.Float(pr.Point.Phi, pipeline.UnitMp),
-		"epsilon_V":           pipeline.Float(pr.Point.Epsilon, pipeline.UnitNone),
-		"eta_V":               pipeline.Float(pr.Point.Eta, pipeline.UnitNone),
-		"xi2_V":               pipeline.Float(pr.Point.Xi2, pipeline.UnitNone),
-		"n_s":                 pipeline.Float(pr.Obs.Ns, pipeline.UnitNone),
-		"r":                   pipeline.Float(pr.Obs.R, pipeline.UnitNone),
-		"alpha_s":             pipeline.Float(pr.Obs.AlphaS, pipeline.UnitNone),
-		"n_t":                 pipeline.Float(pr.Obs.Nt, pipeline.UnitNone),
-		"V0":                  pipeline.Float(pr.Scale.V0, pipeline.UnitMp4),
-		"V0_quarter_GeV":      pipeline.Float(reheat.QuarterGeV(pr.Scale.V0), pipeline.UnitGeV),
-		"energy_scale_GeV":    pipeline.Float(reheat.QuarterGeV(pr.Scale.Vstar), pipeline.UnitGeV),
-		"H_star_GeV":          pipeline.Float(reheat.GeV(pr.Scale.Hstar), pipeline.UnitGeV),
-		"rho_end_quarter_GeV": pipeline.Float(reheat.QuarterGeV(pr.Scale.RhoEnd), pipeline.UnitGeV),
-	}
-	if pr.TReh > 0 {
-		out["T_reh_GeV"] = pipeline.Float(reheat.GeV(pr.TReh), pipeline.UnitGeV)
-	}
-	return out, nil
 }
 
 // Compare is the constraint-comparison stage. The constraint's numbers are

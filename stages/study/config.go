@@ -72,17 +72,27 @@ func (m ModelSpec) Describe() string {
 	return m.Label + "(" + strings.Join(parts, ", ") + ")"
 }
 
-// HistorySpec is one reheating history of a study.
+// HistorySpec is one reheating history of a study (one node's worth: list
+// values have been fanned out).
 type HistorySpec struct {
-	Kind    string  // nodes.HistoryFixed or nodes.HistoryInstant
-	N       float64 // for fixed N*
-	History reheat.History
+	nodes.HistoryParams
 }
 
-// Describe returns "N*=55" or "instantaneous".
+// Describe returns a short label: "N*=55", "instantaneous",
+// "w=0 T_reh=1e+09 GeV", ...
 func (h HistorySpec) Describe() string {
-	if h.Kind == nodes.HistoryFixed {
-		return "N*=" + pipeline.FormatFloat(h.N)
+	g := pipeline.FormatFloat
+	switch h.Kind {
+	case nodes.HistoryFixed:
+		return "N*=" + g(h.N)
+	case nodes.HistoryTemperature:
+		return "w=" + g(h.W) + " T_reh=" + g(h.TRehGeV) + " GeV"
+	case nodes.HistoryDuration:
+		return "w=" + g(h.W) + " N_reh=" + g(h.NReh)
+	case nodes.HistoryKination:
+		return "kination T_reh=" + g(h.TRehGeV) + " GeV"
+	case nodes.HistoryBand:
+		return "band w in [" + g(h.Band.WMin) + ", " + g(h.Band.WMax) + "]"
 	}
 	return h.Kind
 }
@@ -232,67 +242,183 @@ func numbers(v any) ([]float64, []string, error) {
 	return xs, ts, nil
 }
 
+var thermalKeys = []string{"k_pivot_per_Mpc", "T_0_K", "g_s0", "g_reh", "g_s_reh", "T_bbn_GeV"}
+
 func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 	if len(tables) == 0 {
-		return nil, c.errAt("", "no [[reheating]] table: give at least one history (fixed-efolds or instantaneous)")
+		return nil, c.errAt("", "no [[reheating]] table: give at least one history (%s)", strings.Join(nodes.Histories, ", "))
 	}
 	var out []HistorySpec
 	for i, t := range tables {
 		path := fmt.Sprintf("reheating[%d]", i)
 		kind, _ := t["history"].(string)
-		switch kind {
-		case nodes.HistoryFixed:
-			if err := c.allowKeys(path, t, "history", "N_star"); err != nil {
-				return nil, err
-			}
-			v, ok := t["N_star"]
-			if !ok {
-				return nil, c.errAt(path, "history %q needs N_star (a number or a list)", kind)
-			}
-			xs, _, err := numbers(v)
-			if err != nil {
-				return nil, c.errAt(path+".N_star", "%v", err)
-			}
-			for _, N := range xs {
-				if !(N > 0 && N < 1000) {
-					return nil, c.errAt(path+".N_star", "N* = %g, want 0 < N* < 1000", N)
-				}
-				out = append(out, HistorySpec{Kind: kind, N: N})
-			}
-		case nodes.HistoryInstant:
-			if err := c.allowKeys(path, t, "history", "k_pivot_per_Mpc", "T_0_K", "g_s0", "g_reh", "g_s_reh"); err != nil {
-				return nil, err
-			}
+		own := map[string][]string{
+			nodes.HistoryFixed:       {"N_star"},
+			nodes.HistoryInstant:     {},
+			nodes.HistoryTemperature: {"w_reh", "T_reh_GeV"},
+			nodes.HistoryDuration:    {"w_reh", "N_reh"},
+			nodes.HistoryKination:    {"T_reh_GeV"},
+			nodes.HistoryBand:        {"w_reh_min", "w_reh_max", "n_w", "n_T", "T_min_GeV"},
+		}
+		keys, known := own[kind]
+		switch {
+		case kind == "":
+			return nil, c.errAt(path, "missing history = \"...\" (known: %s)", strings.Join(nodes.Histories, ", "))
+		case !known:
+			return nil, c.errAt(path+".history", "unknown history %q (known: %s)", kind, strings.Join(nodes.Histories, ", "))
+		}
+		allowed := append([]string{"history"}, keys...)
+		if kind != nodes.HistoryFixed {
+			allowed = append(allowed, thermalKeys...)
+		}
+		if err := c.allowKeys(path, t, allowed...); err != nil {
+			return nil, err
+		}
+		base := HistorySpec{nodes.HistoryParams{Kind: kind}}
+		if kind != nodes.HistoryFixed {
 			h := reheat.DefaultHistory()
+			base.TBBNGeV = reheat.DefaultBBNBoundGeV
 			_, hasGS := t["g_s_reh"]
 			for _, f := range []struct {
 				key string
 				dst *float64
-			}{{"k_pivot_per_Mpc", &h.PivotPerMpc}, {"T_0_K", &h.T0K}, {"g_s0", &h.GS0}, {"g_reh", &h.GReh}, {"g_s_reh", &h.GSReh}} {
-				v, ok := t[f.key]
-				if !ok {
-					continue
-				}
-				x, _, err := number(v)
+			}{{"k_pivot_per_Mpc", &h.PivotPerMpc}, {"T_0_K", &h.T0K}, {"g_s0", &h.GS0}, {"g_reh", &h.GReh}, {"g_s_reh", &h.GSReh}, {"T_bbn_GeV", &base.TBBNGeV}} {
+				x, ok, err := c.positive(t, path, f.key)
 				if err != nil {
-					return nil, c.errAt(path+"."+f.key, "%v", err)
+					return nil, err
 				}
-				if !(x > 0) || math.IsInf(x, 0) {
-					return nil, c.errAt(path+"."+f.key, "%g, want a positive finite value", x)
+				if ok {
+					*f.dst = x
 				}
-				*f.dst = x
 			}
 			if !hasGS {
 				h.GSReh = h.GReh
 			}
-			out = append(out, HistorySpec{Kind: kind, History: h})
-		case "":
-			return nil, c.errAt(path, "missing history = %q or %q", nodes.HistoryFixed, nodes.HistoryInstant)
-		default:
-			return nil, c.errAt(path+".history", "unknown history %q (known: %s, %s)", kind, nodes.HistoryFixed, nodes.HistoryInstant)
+			base.Thermal = h
 		}
+		// Each list-valued key fans out (cartesian product).
+		combos := []HistorySpec{base}
+		listed := func(key string, required bool, check func(float64) error, set func(*HistorySpec, float64)) error {
+			v, ok := t[key]
+			if !ok {
+				if required {
+					return c.errAt(path, "history %q needs %s", kind, key)
+				}
+				return nil
+			}
+			xs, _, err := numbers(v)
+			if err != nil {
+				return c.errAt(path+"."+key, "%v", err)
+			}
+			var next []HistorySpec
+			for _, cb := range combos {
+				for _, x := range xs {
+					if err := check(x); err != nil {
+						return c.errAt(path+"."+key, "%v", err)
+					}
+					n := cb
+					set(&n, x)
+					next = append(next, n)
+				}
+			}
+			combos = next
+			return nil
+		}
+		nstar := func(x float64) error {
+			if !(x > 0 && x < 1000) {
+				return fmt.Errorf("N* = %g, want 0 < N* < 1000", x)
+			}
+			return nil
+		}
+		wCheck := func(x float64) error {
+			if !(x > -1.0/3 && x <= 1) {
+				return fmt.Errorf("w_reh = %g: want -1/3 < w_reh <= 1 (w <= -1/3 would still inflate)", x)
+			}
+			return nil
+		}
+		posCheck := func(x float64) error {
+			if !(x > 0) || math.IsInf(x, 0) {
+				return fmt.Errorf("%g, want a positive finite value", x)
+			}
+			return nil
+		}
+		nonNeg := func(x float64) error {
+			if !(x >= 0) || math.IsInf(x, 0) {
+				return fmt.Errorf("%g, want a finite value >= 0", x)
+			}
+			return nil
+		}
+		var err error
+		switch kind {
+		case nodes.HistoryFixed:
+			err = listed("N_star", true, nstar, func(h *HistorySpec, x float64) { h.N = x })
+		case nodes.HistoryTemperature:
+			if err = listed("w_reh", true, wCheck, func(h *HistorySpec, x float64) { h.W = x }); err == nil {
+				err = listed("T_reh_GeV", true, posCheck, func(h *HistorySpec, x float64) { h.TRehGeV = x })
+			}
+		case nodes.HistoryDuration:
+			if err = listed("w_reh", true, wCheck, func(h *HistorySpec, x float64) { h.W = x }); err == nil {
+				err = listed("N_reh", true, nonNeg, func(h *HistorySpec, x float64) { h.NReh = x })
+			}
+		case nodes.HistoryKination:
+			err = listed("T_reh_GeV", true, posCheck, func(h *HistorySpec, x float64) { h.TRehGeV = x })
+		case nodes.HistoryBand:
+			b := &combos[0]
+			b.Band = reheat.BandSettings{WMin: 0, WMax: 1.0 / 3, NW: 100, NT: 100}
+			b.BandTGeV = b.TBBNGeV
+			for _, f := range []struct {
+				key string
+				dst *float64
+			}{{"w_reh_min", &b.Band.WMin}, {"w_reh_max", &b.Band.WMax}, {"T_min_GeV", &b.BandTGeV}} {
+				if v, ok := t[f.key]; ok {
+					x, _, e := number(v)
+					if e != nil {
+						return nil, c.errAt(path+"."+f.key, "%v", e)
+					}
+					*f.dst = x
+				}
+			}
+			for _, f := range []struct {
+				key string
+				dst *int
+			}{{"n_w", &b.Band.NW}, {"n_T", &b.Band.NT}} {
+				if v, ok := t[f.key]; ok {
+					n, isInt := v.(int64)
+					if !isInt || n < 1 || n > 10000 {
+						return nil, c.errAt(path+"."+f.key, "want an integer from 1 to 10000")
+					}
+					*f.dst = int(n)
+				}
+			}
+			switch {
+			case !(b.Band.WMin > -1.0/3) || b.Band.WMax > 1 || b.Band.WMin > b.Band.WMax:
+				return nil, c.errAt(path, "band: want -1/3 < w_reh_min <= w_reh_max <= 1, got [%g, %g]", b.Band.WMin, b.Band.WMax)
+			case !(b.BandTGeV > 0):
+				return nil, c.errAt(path+".T_min_GeV", "want a positive temperature")
+			}
+		}
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, combos...)
 	}
 	return out, nil
+}
+
+// positive reads an optional positive number.
+func (c *parser) positive(t map[string]any, path, key string) (float64, bool, error) {
+	v, ok := t[key]
+	if !ok {
+		return 0, false, nil
+	}
+	x, _, err := number(v)
+	if err != nil {
+		return 0, false, c.errAt(path+"."+key, "%v", err)
+	}
+	if !(x > 0) || math.IsInf(x, 0) {
+		return 0, false, c.errAt(path+"."+key, "%g, want a positive finite value", x)
+	}
+	return x, true, nil
 }
 
 func (c *parser) allowKeys(path string, t map[string]any, allowed ...string) error {

@@ -29,16 +29,16 @@ func (s *Study) Graph() (*pipeline.Graph, error) {
 			return nil, err
 		}
 		for _, h := range s.Histories {
-			var rp pipeline.Values
-			if h.Kind == nodes.HistoryFixed {
-				rp = nodes.FixedParams(h.N, s.As)
-			} else {
-				rp = nodes.InstantParams(h.History, s.As)
-			}
+			rp := nodes.ReheatParams(h.HistoryParams, s.As)
 			hl := label + " | " + h.Describe()
 			ri, err := g.Add(nodes.Reheat{}, rp, hl, si)
 			if err != nil {
 				return nil, err
+			}
+			if h.Kind == nodes.HistoryBand {
+				// A band spans many (n_s, r): it is a result of its own.
+				g.MarkResult(hl, ri)
+				continue
 			}
 			for _, c := range s.Constraints {
 				cl := hl + " | " + c.Name

@@ -24,6 +24,11 @@ type Result struct {
 	EnergyScaleGeV *float64           `json:"energy_scale_GeV,omitempty"`
 	HStarGeV       *float64           `json:"H_star_GeV,omitempty"`
 	TRehGeV        *float64           `json:"T_reh_GeV,omitempty"`
+	TMaxGeV        *float64           `json:"T_max_GeV,omitempty"`
+	WReh           *float64           `json:"w_reh,omitempty"`
+	NReh           *float64           `json:"N_reh,omitempty"`
+	BelowBBN       *bool              `json:"below_bbn,omitempty"`
+	Band           *Band              `json:"band,omitempty"`
 	Constraint     string             `json:"constraint,omitempty"`
 	DeltaChi2      *float64           `json:"delta_chi2,omitempty"`
 	NSigma         *float64           `json:"n_sigma,omitempty"`
@@ -31,6 +36,18 @@ type Result struct {
 	Inside95       *bool              `json:"inside_95,omitempty"`
 	Key            string             `json:"key"`
 	Error          string             `json:"error,omitempty"`
+}
+
+// Band is the span of a reheating band's predictions, with the histories
+// at the two ends of its N* span.
+type Band struct {
+	Points         int        `json:"points"`
+	NStar          [2]float64 `json:"N_star"`
+	Ns             [2]float64 `json:"n_s"`
+	R              [2]float64 `json:"r"`
+	WAtNStar       [2]float64 `json:"w_reh_at_N_star"`
+	TRehAtNStarGeV [2]float64 `json:"T_reh_at_N_star_GeV"`
+	TMaxGeV        float64    `json:"T_max_GeV"`
 }
 
 // StageOutputs is one node of a result's lineage: its stage and outputs.
@@ -82,6 +99,21 @@ func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
 			res.EnergyScaleGeV = opt(vs, "energy_scale_GeV")
 			res.HStarGeV = opt(vs, "H_star_GeV")
 			res.TRehGeV = opt(vs, "T_reh_GeV")
+			res.TMaxGeV = opt(vs, "T_max_GeV")
+			res.WReh = opt(vs, "w_reh")
+			res.NReh = opt(vs, "N_reh")
+			res.BelowBBN = flag(vs, "below_bbn")
+			if _, ok := vs["N_star_min"]; ok {
+				res.Band = &Band{
+					Points:         int(num(vs, "band_points")),
+					NStar:          [2]float64{num(vs, "N_star_min"), num(vs, "N_star_max")},
+					Ns:             [2]float64{num(vs, "n_s_min"), num(vs, "n_s_max")},
+					R:              [2]float64{num(vs, "r_min"), num(vs, "r_max")},
+					WAtNStar:       [2]float64{num(vs, "w_at_N_star_min"), num(vs, "w_at_N_star_max")},
+					TRehAtNStarGeV: [2]float64{num(vs, "T_reh_at_N_star_min_GeV"), num(vs, "T_reh_at_N_star_max_GeV")},
+					TMaxGeV:        num(vs, "T_max_GeV"),
+				}
+			}
 		case nodes.CompareStage:
 			res.Constraint, _ = vs.Text("constraint")
 			res.DeltaChi2 = opt(vs, "delta_chi2")

@@ -6,6 +6,7 @@ import (
 	"github.com/inflatrace/inflatrace/ledger"
 
 	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/reheat"
 	"github.com/inflatrace/inflatrace/stages/study"
 )
 
@@ -48,6 +49,12 @@ func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs
 	out := &Outcome{Report: rep, Results: study.Results(graph, rep), Ledger: l.Path()}
 	fmt.Fprintf(e.Stderr, "run %s: %d nodes: %d computed, %d reused, %d failed, %d skipped (ledger %s)\n",
 		id, len(graph.Nodes), rep.Computed, rep.Reused, rep.Failed, rep.Skipped, l.Path())
+	for _, r := range out.Results {
+		if r.BelowBBN != nil && *r.BelowBBN && r.TRehGeV != nil {
+			fmt.Fprintf(e.Stderr, "flag: %s: T_reh = %.3g GeV is below the nucleosynthesis bound (%.3g GeV unless T_bbn_GeV is set; de Salas et al. 2015, arXiv:1511.00672)\n",
+				r.Label, *r.TRehGeV, reheat.DefaultBBNBoundGeV)
+		}
+	}
 	if rep.Failed > 0 {
 		var first error
 		for _, o := range rep.Outcomes {

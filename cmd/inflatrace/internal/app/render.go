@@ -44,9 +44,19 @@ var ResultHeader = []string{"model", "params", "reheating", "N*", "n_s", "r", "a
 func ResultRows(rs []study.Result) [][]string {
 	rows := make([][]string, 0, len(rs))
 	for _, r := range rs {
-		row := []string{r.Model, FormatParams(r.Params), r.Reheating}
+		history := r.Reheating
+		if parts := strings.Split(r.Label, " | "); len(parts) >= 2 {
+			history = parts[1] // the history as described, e.g. "w=0 T_reh=1e+09 GeV"
+		}
+		row := []string{r.Model, FormatParams(r.Params), history}
 		if r.Error != "" {
 			row = append(row, "failed: "+r.Error)
+			rows = append(rows, row)
+			continue
+		}
+		if b := r.Band; b != nil {
+			row = append(row, fmt.Sprintf("%.2f..%.2f", b.NStar[0], b.NStar[1]), fmt.Sprintf("%.5f..%.5f", b.Ns[0], b.Ns[1]),
+				fmt.Sprintf("%.4g..%.4g", b.R[0], b.R[1]), "-", "-", "-", "-", "-", "-", "-")
 			rows = append(rows, row)
 			continue
 		}

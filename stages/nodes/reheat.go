@@ -1,0 +1,264 @@
+package nodes
+
+import (
+	"context"
+	"fmt"
+	"strings"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/reheat"
+)
+
+// Reheating histories, as named in configurations and node parameters.
+const (
+	HistoryFixed       = "fixed-efolds"  // N* given
+	HistoryInstant     = "instantaneous" // radiation from the end of inflation
+	HistoryTemperature = "temperature"   // constant w_reh until T_reh
+	HistoryDuration    = "duration"      // constant w_reh for N_reh e-folds
+	HistoryKination    = "kination"      // w_reh = 1 until T_reh
+	HistoryBand        = "band"          // a sweep over w_reh and T_reh
+)
+
+// Histories lists the known histories.
+var Histories = []string{HistoryFixed, HistoryInstant, HistoryTemperature, HistoryDuration, HistoryKination, HistoryBand}
+
+// Reheat is the reheating-matching stage: it fixes N* (given, or from the
+// expansion history after inflation, solved self-consistently), evaluates
+// the observables there and normalises the potential to A_s. A band
+// history reports the span of N*, n_s and r over a sweep of histories.
+type Reheat struct{}
+
+// Spec declares the stage.
+func (Reheat) Spec() pipeline.Spec {
+	opt := func(name, unit string) pipeline.ParamSpec {
+		return pipeline.ParamSpec{Name: name, Kind: pipeline.KindFloat, Unit: unit, Optional: true}
+	}
+	return pipeline.Spec{
+		Name: ReheatStage, Version: ReheatVersion, Inputs: []string{SlowRollStage},
+		Params: []pipeline.ParamSpec{
+			{Name: "history", Kind: pipeline.KindString},
+			{Name: "A_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+			opt("N_star", pipeline.UnitNone),
+			opt("k_pivot", pipeline.UnitPerMpc),
+			opt("T_0", pipeline.UnitKelvin),
+			opt("g_s0", pipeline.UnitNone),
+			opt("g_reh", pipeline.UnitNone),
+			opt("g_s_reh", pipeline.UnitNone),
+			opt("w_reh", pipeline.UnitNone),
+			opt("T_reh", pipeline.UnitGeV),
+			opt("N_reh", pipeline.UnitNone),
+			opt("T_bbn", pipeline.UnitGeV),
+			opt("w_min", pipeline.UnitNone),
+			opt("w_max", pipeline.UnitNone),
+			opt("n_w", pipeline.UnitNone),
+			opt("n_T", pipeline.UnitNone),
+			opt("T_min", pipeline.UnitGeV),
+		},
+	}
+}
+
+// HistoryParams are the settings of one reheating history as node
+// parameters; the zero values of the optional fields are left out.
+type HistoryParams struct {
+	Kind     string
+	N        float64        // fixed-efolds
+	Thermal  reheat.History // every history but fixed-efolds
+	W        float64        // temperature, duration
+	TRehGeV  float64        // temperature, kination
+	NReh     float64        // duration
+	TBBNGeV  float64        // the nucleosynthesis bound flagged against
+	Band     reheat.BandSettings
+	BandTGeV float64 // band: lowest T_reh [GeV]
+}
+
+// ReheatParams returns the reheat node's parameters: only what influences
+// the history, so that changing one input recomputes only the nodes it
+// affects.
+func ReheatParams(h HistoryParams, As float64) pipeline.Values {
+	f := func(x float64, unit string) pipeline.Value { return pipeline.Float(x, unit) }
+	vs := pipeline.Values{"history": pipeline.String(h.Kind), "A_s": f(As, pipeline.UnitNone)}
+	if h.Kind == HistoryFixed {
+		vs["N_star"] = f(h.N, pipeline.UnitNone)
+		return vs
+	}
+	vs["k_pivot"] = f(h.Thermal.PivotPerMpc, pipeline.UnitPerMpc)
+	vs["T_0"] = f(h.Thermal.T0K, pipeline.UnitKelvin)
+	vs["g_s0"] = f(h.Thermal.GS0, pipeline.UnitNone)
+	vs["g_reh"] = f(h.Thermal.GReh, pipeline.UnitNone)
+	vs["g_s_reh"] = f(h.Thermal.GSReh, pipeline.UnitNone)
+	vs["T_bbn"] = f(h.TBBNGeV, pipeline.UnitGeV)
+	switch h.Kind {
+	case HistoryTemperature:
+		vs["w_reh"], vs["T_reh"] = f(h.W, pipeline.UnitNone), f(h.TRehGeV, pipeline.UnitGeV)
+	case HistoryDuration:
+		vs["w_reh"], vs["N_reh"] = f(h.W, pipeline.UnitNone), f(h.NReh, pipeline.UnitNone)
+	case HistoryKination:
+		vs["T_reh"] = f(h.TRehGeV, pipeline.UnitGeV)
+	case HistoryBand:
+		vs["w_min"], vs["w_max"] = f(h.Band.WMin, pipeline.UnitNone), f(h.Band.WMax, pipeline.UnitNone)
+		vs["n_w"], vs["n_T"] = f(float64(h.Band.NW), pipeline.UnitNone), f(float64(h.Band.NT), pipeline.UnitNone)
+		vs["T_min"] = f(h.BandTGeV, pipeline.UnitGeV)
+	}
+	return vs
+}
+
+func need(params pipeline.Values, history string, names ...string) ([]float64, error) {
+	out := make([]float64, len(names))
+	for i, n := range names {
+		v, err := params.Num(n)
+		if err != nil {
+			return nil, fmt.Errorf("history %s: %w", history, err)
+		}
+		out[i] = v
+	}
+	return out, nil
+}
+
+func thermal(params pipeline.Values, history string) (reheat.History, float64, error) {
+	v, err := need(params, history, "k_pivot", "T_0", "g_s0", "g_reh", "g_s_reh", "T_bbn")
+	if err != nil {
+		return reheat.History{}, 0, err
+	}
+	h := reheat.History{PivotPerMpc: v[0], T0K: v[1], GS0: v[2], GReh: v[3], GSReh: v[4]}
+	return h, v[5], h.Check()
+}
+
+// Run matches the solution to the reheating history.
+func (Reheat) Run(_ context.Context, params pipeline.Values, inputs []pipeline.Values) (pipeline.Values, error) {
+	in, err := onlyInput(ReheatStage, inputs)
+	if err != nil {
+		return nil, err
+	}
+	As, _ := params.Num("A_s")
+	if !(As > 0) {
+		return nil, fmt.Errorf("A_s = %g, want > 0", As)
+	}
+	ev, err := evaluator(in, reheat.Normalisation{As: As})
+	if err != nil {
+		return nil, err
+	}
+	history, _ := params.Text("history")
+	if history == HistoryFixed {
+		v, err := need(params, history, "N_star")
+		if err != nil {
+			return nil, err
+		}
+		pr, err := ev.At(v[0])
+		if err != nil {
+			return nil, err
+		}
+		out := predictionValues(pr)
+		out["reheating"] = pipeline.String(history)
+		out["A_s"] = params["A_s"]
+		return out, nil
+	}
+	h, tbbn, err := thermal(params, history)
+	if err != nil {
+		return nil, err
+	}
+	inGeV := func(x float64) float64 { return x / reheat.ReducedPlanckGeV }
+	var era reheat.Era
+	switch history {
+	case HistoryInstant:
+		era = reheat.Era{Kind: reheat.EraInstant}
+	case HistoryTemperature:
+		v, err := need(params, history, "w_reh", "T_reh")
+		if err != nil {
+			return nil, err
+		}
+		era = reheat.Era{Kind: reheat.EraTemperature, W: v[0], T: inGeV(v[1])}
+	case HistoryDuration:
+		v, err := need(params, history, "w_reh", "N_reh")
+		if err != nil {
+			return nil, err
+		}
+		era = reheat.Era{Kind: reheat.EraEfolds, W: v[0], NReh: v[1]}
+	case HistoryKination:
+		v, err := need(params, history, "T_reh")
+		if err != nil {
+			return nil, err
+		}
+		era = reheat.Era{Kind: reheat.EraTemperature, W: 1, T: inGeV(v[0])}
+	case HistoryBand:
+		v, err := need(params, history, "w_min", "w_max", "n_w", "n_T", "T_min")
+		if err != nil {
+			return nil, err
+		}
+		b, err := reheat.Band(ev, h, reheat.BandSettings{WMin: v[0], WMax: v[1], NW: int(v[2]), NT: int(v[3]), TMin: inGeV(v[4])})
+		if err != nil {
+			return nil, err
+		}
+		return bandValues(b, params), nil
+	default:
+		return nil, fmt.Errorf("unknown reheating history %q (known: %s)", history, strings.Join(Histories, ", "))
+	}
+	pr, err := reheat.Match(ev, h, era, 55)
+	if err != nil {
+		return nil, err
+	}
+	out := predictionValues(pr)
+	out["reheating"] = pipeline.String(history)
+	out["A_s"] = params["A_s"]
+	out["T_reh_GeV"] = pipeline.Float(reheat.GeV(pr.TReh), pipeline.UnitGeV)
+	out["T_max_GeV"] = pipeline.Float(reheat.GeV(pr.TMax), pipeline.UnitGeV)
+	out["N_reh"] = pipeline.Float(pr.NReh, pipeline.UnitNone)
+	out["w_reh"] = pipeline.Float(pr.W, pipeline.UnitNone)
+	out["below_bbn"] = pipeline.String(yesNo(reheat.GeV(pr.TReh) < tbbn))
+	return out, nil
+}
+
+// predictionValues encodes a normalised prediction.
+func predictionValues(pr reheat.Prediction) pipeline.Values {
+	return pipeline.Values{
+		"N_star":              pipeline.Float(pr.N, pipeline.UnitNone),
+		"phi_star":            pipeline.Float(pr.Point.Phi, pipeline.UnitMp),
+		"epsilon_V":           pipeline.Float(pr.Point.Epsilon, pipeline.UnitNone),
+		"eta_V":               pipeline.Float(pr.Point.Eta, pipeline.UnitNone),
+		"xi2_V":               pipeline.Float(pr.Point.Xi2, pipeline.UnitNone),
+		"n_s":                 pipeline.Float(pr.Obs.Ns, pipeline.UnitNone),
+		"r":                   pipeline.Float(pr.Obs.R, pipeline.UnitNone),
+		"alpha_s":             pipeline.Float(pr.Obs.AlphaS, pipeline.UnitNone),
+		"n_t":                 pipeline.Float(pr.Obs.Nt, pipeline.UnitNone),
+		"V0":                  pipeline.Float(pr.Scale.V0, pipeline.UnitMp4),
+		"V0_quarter_GeV":      pipeline.Float(reheat.QuarterGeV(pr.Scale.V0), pipeline.UnitGeV),
+		"energy_scale_GeV":    pipeline.Float(reheat.QuarterGeV(pr.Scale.Vstar), pipeline.UnitGeV),
+		"H_star_GeV":          pipeline.Float(reheat.GeV(pr.Scale.Hstar), pipeline.UnitGeV),
+		"rho_end_quarter_GeV": pipeline.Float(reheat.QuarterGeV(pr.Scale.RhoEnd), pipeline.UnitGeV),
+	}
+}
+
+// bandValues encodes a band: the span of N*, n_s and r and the histories
+// at the ends of the N* span.
+func bandValues(b reheat.BandResult, params pipeline.Values) pipeline.Values {
+	f := func(x float64) pipeline.Value { return pipeline.Float(x, pipeline.UnitNone) }
+	return pipeline.Values{
+		"reheating":               pipeline.String(HistoryBand),
+		"A_s":                     params["A_s"],
+		"band_points":             f(float64(b.Points)),
+		"N_star_min":              f(b.NMin.Pred.N),
+		"N_star_max":              f(b.NMax.Pred.N),
+		"n_s_min":                 f(b.NsMin),
+		"n_s_max":                 f(b.NsMax),
+		"r_min":                   f(b.RMin),
+		"r_max":                   f(b.RMax),
+		"w_at_N_star_min":         f(b.NMin.W),
+		"w_at_N_star_max":         f(b.NMax.W),
+		"T_reh_at_N_star_min_GeV": pipeline.Float(reheat.GeV(b.NMin.T), pipeline.UnitGeV),
+		"T_reh_at_N_star_max_GeV": pipeline.Float(reheat.GeV(b.NMax.T), pipeline.UnitGeV),
+		"T_max_GeV":               pipeline.Float(reheat.GeV(b.TMax), pipeline.UnitGeV),
+	}
+}
+
+// evaluator returns the prediction at N for the slow-roll node's method.
+func evaluator(in pipeline.Values, n reheat.Normalisation) (reheat.Evaluator, error) {
+	sol, err := solutionFrom(in)
+	if err != nil {
+		return nil, err
+	}
+	method, _ := in.Text("method")
+	switch method {
+	case MethodFirst:
+		return reheat.FirstOrder{Sol: sol, Norm: n}, nil
+	}
+	return nil, fmt.Errorf("slow-roll method %q has no evaluator", method)
+}
