@@ -72,7 +72,8 @@ func runTimes(started string, finished sql.NullString) (time.Time, time.Time, er
 }
 
 // ResolveRun turns what a user typed into a run id: the word "latest" (the
-// most recently started run), a full id, or a prefix of exactly one id. An
+// most recently started run), a full id, a tag, or a prefix of exactly one
+// id. An
 // unknown reference wraps ErrNotFound; a prefix of several ids wraps
 // ErrAmbiguous and lists them.
 func (l *Ledger) ResolveRun(ctx context.Context, ref string) (pipeline.RunID, error) {
@@ -109,6 +110,9 @@ func resolveRun(ctx context.Context, tx *sql.Tx, ref string) (pipeline.RunID, er
 	}
 	if !errors.Is(err, sql.ErrNoRows) {
 		return "", err
+	}
+	if tagged, ok, err := taggedRun(ctx, tx, ref); err != nil || ok {
+		return tagged, err
 	}
 	rows, err := tx.QueryContext(ctx, "SELECT r.id FROM runs r WHERE substr(r.id, 1, length(?1)) = ?1 "+newestFirst, ref)
 	if err != nil {

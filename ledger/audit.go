@@ -1,0 +1,75 @@
+package ledger
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// Problem is one row that no longer matches what was written: a node
+// whose key, description, parameters or outputs disagree with its hashes,
+// or a run whose configuration text disagrees with its hash.
+type Problem struct {
+	Table string // "nodes" or "runs"
+	ID    string // the node key or run id
+	What  string
+}
+
+// Audit re-derives every stored hash — each node's key from its
+// description, the description from its stage, version, parameters and
+// inputs, each output hash from the stored outputs, each run's
+// configuration hash from its text — and reports the rows edited after they
+// were written. It changes nothing.
+func (l *Ledger) Audit(ctx context.Context) ([]Problem, error) {
+	var out []Problem
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT key FROM nodes ORDER BY key")
+		if err != nil {
+			return err
+		}
+		var keys []string
+		for rows.Next() {
+			var k string
+			if err := rows.Scan(&k); err != nil {
+				rows.Close()
+				return err
+			}
+			keys = append(keys, k)
+		}
+		rows.Close()
+		if err := rows.Err(); err != nil {
+			return err
+		}
+		for _, k := range keys {
+			if _, _, err := loadNode(ctx, tx, pipeline.KeyID(k)); err != nil {
+				if !errors.Is(err, ErrIntegrity) {
+					return err
+				}
+				out = append(out, Problem{Table: "nodes", ID: k, What: err.Error()})
+			}
+		}
+		runs, err := tx.QueryContext(ctx, "SELECT id, config_text, config_hash FROM runs ORDER BY id")
+		if err != nil {
+			return err
+		}
+		defer runs.Close()
+		for runs.Next() {
+			var id, text, hash string
+			if err := runs.Scan(&id, &text, &hash); err != nil {
+				return err
+			}
+			if got := pipeline.Sum([]byte(text)); got != hash {
+				out = append(out, Problem{Table: "runs", ID: id,
+					What: fmt.Sprintf("configuration text hashes to %s, row says %s", got, hash)})
+			}
+		}
+		return runs.Err()
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: audit: %w", err)
+	}
+	return out, nil
+}

@@ -1,0 +1,283 @@
+package ledger
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"os"
+	"sort"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// snapshot is a self-contained piece of a ledger: runs with their node
+// links, results and tags, and every node they touch (upstream closure
+// included), all verified as they were read.
+type snapshot struct {
+	runs    []RunDetail
+	links   map[pipeline.RunID][]RunNode
+	results map[pipeline.RunID][]pipeline.ResultRef
+	tags    map[string]pipeline.RunID
+	nodes   map[pipeline.KeyID]pipeline.NodeRecord
+}
+
+// MergeReport says what a merge or export wrote.
+type MergeReport struct {
+	Runs, RunsKept   int // runs written; runs already present (identical)
+	Nodes, NodesKept int // nodes written; nodes already present (identical)
+	Tags             int // tags written
+}
+
+// read collects a snapshot of the given runs (all runs when ids is nil).
+func (l *Ledger) read(ctx context.Context, ids []pipeline.RunID) (*snapshot, error) {
+	s := &snapshot{links: map[pipeline.RunID][]RunNode{}, results: map[pipeline.RunID][]pipeline.ResultRef{},
+		tags: map[string]pipeline.RunID{}, nodes: map[pipeline.KeyID]pipeline.NodeRecord{}}
+	if ids == nil {
+		runs, err := l.Runs(ctx)
+		if err != nil {
+			return nil, err
+		}
+		for i := len(runs) - 1; i >= 0; i-- { // oldest first
+			ids = append(ids, runs[i].ID)
+		}
+	}
+	for _, id := range ids {
+		d, err := l.Run(ctx, id)
+		if err != nil {
+			return nil, err
+		}
+		if d.Status == pipeline.RunRunning {
+			return nil, fmt.Errorf("run %s is still running (or was interrupted): finish or discard it first", id)
+		}
+		s.runs = append(s.runs, d)
+		links, err := l.RunNodes(ctx, id)
+		if err != nil {
+			return nil, err
+		}
+		s.links[id] = links
+		for _, ln := range links {
+			lin, err := l.Lineage(ctx, ln.Key)
+			if err != nil {
+				return nil, err
+			}
+			for _, n := range lin {
+				s.nodes[n.Key] = n
+			}
+		}
+		if s.results[id], err = l.RunResults(ctx, id); err != nil {
+			return nil, err
+		}
+		names, err := l.TagsOf(ctx, id)
+		if err != nil {
+			return nil, err
+		}
+		for _, n := range names {
+			s.tags[n] = id
+		}
+	}
+	return s, nil
+}
+
+// write applies a snapshot in one transaction: nodes not yet present are
+// inserted (a failed row is replaced by an ok one), identical ones kept;
+// a node with the same key and a different output hash, a run id with a
+// different content, or a tag naming another run is a conflict and
+// nothing is written.
+func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
+	var rep MergeReport
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		// Inputs refer to nodes inserted in the same transaction, in any
+		// order: check foreign keys at commit.
+		if _, err := tx.ExecContext(ctx, "PRAGMA defer_foreign_keys = ON"); err != nil {
+			return err
+		}
+		order, err := s.topological()
+		if err != nil {
+			return err
+		}
+		for _, rec := range order {
+			old, exists, err := readStored(ctx, tx, rec.Key)
+			if err != nil {
+				return err
+			}
+			switch {
+			case !exists:
+				if err := l.insertNode(ctx, tx, rec); err != nil {
+					return err
+				}
+				rep.Nodes++
+			case old.status == pipeline.NodeOK && rec.Status == pipeline.NodeOK:
+				if old.outputHash != rec.OutputHash {
+					return fmt.Errorf("%w: conflicting outputs for key %s: here %s, incoming %s", ErrIntegrity, rec.Key, old.outputHash, rec.OutputHash)
+				}
+				rep.NodesKept++
+			case old.status == pipeline.NodeFailed && rec.Status == pipeline.NodeOK:
+				if err := l.updateNode(ctx, tx, rec); err != nil {
+					return err
+				}
+				rep.Nodes++
+			default: // an incoming failure never replaces what is here
+				rep.NodesKept++
+			}
+		}
+		for _, run := range s.runs {
+			here, err := readRun(ctx, tx, run.ID)
+			switch {
+			case err == nil:
+				if here.ConfigHash != run.ConfigHash || here.Status != run.Status || !here.Started.Equal(run.Started) {
+					return fmt.Errorf("%w: run %s exists here with different content", ErrIntegrity, run.ID)
+				}
+				rep.RunsKept++
+				continue
+			case !errors.Is(err, ErrNotFound):
+				return err
+			}
+			if err := insertFinishedRun(ctx, tx, run); err != nil {
+				return err
+			}
+			for _, ln := range s.links[run.ID] {
+				if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal)
+					VALUES (?, ?, ?, ?, ?, ?)`, string(run.ID), string(ln.Key), string(ln.Action), int64(ln.RunDuration), ln.RunError, ln.Ordinal); err != nil {
+					return fmt.Errorf("run %s node %s: %w", run.ID, ln.Key, err)
+				}
+			}
+			for _, r := range s.results[run.ID] {
+				if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, key) VALUES (?, ?, ?, ?)",
+					string(run.ID), r.Ordinal, r.Label, string(r.Key)); err != nil {
+					return fmt.Errorf("run %s result %d: %w", run.ID, r.Ordinal, err)
+				}
+			}
+			rep.Runs++
+		}
+		names := make([]string, 0, len(s.tags))
+		for n := range s.tags {
+			names = append(names, n)
+		}
+		sort.Strings(names)
+		for _, n := range names {
+			cur, ok, err := taggedRun(ctx, tx, n)
+			if err != nil {
+				return err
+			}
+			if ok {
+				if cur != s.tags[n] {
+					return fmt.Errorf("%w: tag %q names run %s here and %s incoming", ErrIntegrity, n, cur, s.tags[n])
+				}
+				continue
+			}
+			if _, err := tx.ExecContext(ctx, "INSERT INTO tags (name, run_id, created_at) VALUES (?, ?, ?)", n, string(s.tags[n]), formatTime(l.now())); err != nil {
+				return err
+			}
+			rep.Tags++
+		}
+		return nil
+	})
+	return rep, err
+}
+
+// topological returns the snapshot's nodes with every node after its
+// inputs (ties in key order, so the order is deterministic).
+func (s *snapshot) topological() ([]pipeline.NodeRecord, error) {
+	keys := make([]string, 0, len(s.nodes))
+	for k := range s.nodes {
+		keys = append(keys, string(k))
+	}
+	sort.Strings(keys)
+	state := map[pipeline.KeyID]int{} // 1 visiting, 2 done
+	var out []pipeline.NodeRecord
+	var visit func(k pipeline.KeyID) error
+	visit = func(k pipeline.KeyID) error {
+		switch state[k] {
+		case 1:
+			return fmt.Errorf("%w: node %s is its own ancestor", ErrIntegrity, k)
+		case 2:
+			return nil
+		}
+		rec, ok := s.nodes[k]
+		if !ok {
+			return fmt.Errorf("node %s is an input but not in the snapshot: %w", k, ErrNotFound)
+		}
+		state[k] = 1
+		for _, in := range rec.Inputs {
+			if err := visit(in.Key); err != nil {
+				return err
+			}
+		}
+		state[k] = 2
+		out = append(out, rec)
+		return nil
+	}
+	for _, k := range keys {
+		if err := visit(pipeline.KeyID(k)); err != nil {
+			return nil, err
+		}
+	}
+	return out, nil
+}
+
+func insertFinishedRun(ctx context.Context, tx *sql.Tx, d RunDetail) error {
+	if want := pipeline.Sum([]byte(d.ConfigText)); d.ConfigHash != want {
+		return fmt.Errorf("%w: run %s: configuration hashes to %s, record says %s", ErrIntegrity, d.ID, want, d.ConfigHash)
+	}
+	_, err := tx.ExecContext(ctx, `INSERT INTO runs
+		(id, started_at, finished_at, tool_version, config_path, config_text, config_hash, status, error)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+		string(d.ID), formatTime(d.Started), formatTime(d.Finished), d.ToolVersion, d.ConfigPath, d.ConfigText, d.ConfigHash,
+		string(d.Status), d.Error)
+	if err != nil {
+		return fmt.Errorf("insert run %s: %w", d.ID, err)
+	}
+	return nil
+}
+
+// ExportRun writes a new, self-contained ledger at path holding exactly
+// one run: its row, its node links and results, its tags, and every node
+// it touched with their upstream closure. The file must not exist.
+func (l *Ledger) ExportRun(ctx context.Context, id pipeline.RunID, path string) (MergeReport, error) {
+	if _, err := os.Stat(path); err == nil {
+		return MergeReport{}, fmt.Errorf("ledger: export run %s: %s already exists", id, path)
+	}
+	s, err := l.read(ctx, []pipeline.RunID{id})
+	if err != nil {
+		return MergeReport{}, fmt.Errorf("ledger: export run %s: %w", id, err)
+	}
+	dst, err := Open(path, WithClock(l.now))
+	if err != nil {
+		return MergeReport{}, fmt.Errorf("ledger: export run %s: %w", id, err)
+	}
+	rep, werr := dst.write(ctx, s)
+	if cerr := dst.Close(); werr == nil {
+		werr = cerr
+	}
+	if werr != nil {
+		os.Remove(path)
+		return rep, fmt.Errorf("ledger: export run %s: %w", id, werr)
+	}
+	return rep, nil
+}
+
+// Merge copies every finished run of the ledger at path, with its nodes,
+// results and tags, into this one, in one transaction. It is idempotent:
+// merging the same ledger twice writes nothing the second time. Every
+// incoming row is verified against its hashes as it is read; conflicting
+// outputs for one key refuse the whole merge.
+func (l *Ledger) Merge(ctx context.Context, path string) (MergeReport, error) {
+	if _, err := os.Stat(path); err != nil {
+		return MergeReport{}, fmt.Errorf("ledger: merge %s: %w", path, err)
+	}
+	src, err := Open(path, WithClock(l.now))
+	if err != nil {
+		return MergeReport{}, fmt.Errorf("ledger: merge: %w", err)
+	}
+	defer src.Close()
+	s, err := src.read(ctx, nil)
+	if err != nil {
+		return MergeReport{}, fmt.Errorf("ledger: merge %s: %w", path, err)
+	}
+	rep, err := l.write(ctx, s)
+	if err != nil {
+		return rep, fmt.Errorf("ledger: merge %s: %w", path, err)
+	}
+	return rep, nil
+}
