@@ -338,3 +338,38 @@ func (l *Ledger) Lineage(ctx context.Context, key pipeline.KeyID) ([]pipeline.No
 	}
 	return out, nil
 }
+
+// ResolveKey turns a node key or a unique prefix of one (with or without
+// the "sha256:" prefix, at least 6 hex digits) into a key.
+func (l *Ledger) ResolveKey(ctx context.Context, ref string) (pipeline.KeyID, error) {
+	hexPart := strings.TrimPrefix(ref, pipeline.HashPrefix)
+	if len(hexPart) < 6 {
+		return "", fmt.Errorf("ledger: node key %q: give at least 6 hex digits", ref)
+	}
+	full := pipeline.HashPrefix + hexPart
+	var keys []string
+	err := l.inTx(ctx, func(tx *sql.Tx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT key FROM nodes WHERE substr(key, 1, length(?1)) = ?1 ORDER BY key LIMIT 11", full)
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var k string
+			if err := rows.Scan(&k); err != nil {
+				return err
+			}
+			keys = append(keys, k)
+		}
+		return rows.Err()
+	})
+	switch {
+	case err != nil:
+		return "", fmt.Errorf("ledger: resolve key %q: %w", ref, err)
+	case len(keys) == 0:
+		return "", fmt.Errorf("ledger: no node key starts with %q: %w", full, ErrNotFound)
+	case len(keys) > 1:
+		return "", fmt.Errorf("ledger: %w: %q matches %d keys", ErrAmbiguous, full, len(keys))
+	}
+	return pipeline.KeyID(keys[0]), nil
+}

@@ -9,6 +9,8 @@
 // that each node can rebuild the model from its direct input alone.
 package nodes
 
+import "github.com/inflatrace/inflatrace/pipeline"
+
 // Stage names, stable across releases: they are part of every key.
 const (
 	ModelStage     = "model"
@@ -17,3 +19,15 @@ const (
 	ReheatStage    = "reheat"
 	CompareStage   = "compare"
 )
+
+// Stages returns every stage, by name, as the engine and the audit tools
+// know them.
+func Stages() map[string]pipeline.Stage {
+	return map[string]pipeline.Stage{
+		ModelStage:     Model{},
+		CanonicalStage: Canonical{},
+		SlowRollStage:  SlowRoll{},
+		ReheatStage:    Reheat{},
+		CompareStage:   Compare{},
+	}
+}

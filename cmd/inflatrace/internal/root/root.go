@@ -16,6 +16,9 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/showcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tagcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tracecmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/verifycmd"
 )
 
 // NewCmd returns the root command with every subcommand.
@@ -43,6 +46,9 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		runscmd.NewCmd(env, g, nil),
 		showcmd.NewCmd(env, g, nil),
 		modelscmd.NewCmd(env, nil),
+		tagcmd.NewCmd(env, g, nil),
+		tracecmd.NewCmd(env, g, nil),
+		verifycmd.NewCmd(env, g, nil),
 	)
 	return root
 }

@@ -1,0 +1,195 @@
+// Package verifycmd implements "inflatrace verify": recompute a run's
+// nodes with the cache bypassed and compare output hashes, or (--ledger)
+// re-derive every stored hash and report rows edited after they were
+// written.
+package verifycmd
+
+import (
+	"context"
+	"fmt"
+
+	"github.com/spf13/cobra"
+
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/nodes"
+)
+
+// Options are the parsed flags and arguments of verify.
+type Options struct {
+	Env       *app.Env
+	Globals   *app.Globals
+	Run       string
+	Ledger    bool
+	Tolerance float64
+	JSON      bool
+}
+
+// NewCmd returns the verify command.
+func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) error) *cobra.Command {
+	opts := &Options{Env: env, Globals: g}
+	if run == nil {
+		run = Run
+	}
+	cmd := &cobra.Command{
+		Use:   "verify [RUN | --all]",
+		Short: "Recompute a run and compare output hashes, or audit every stored hash",
+		Long: `verify RUN recomputes every node of the run from its recorded parameters and
+its inputs' recorded outputs, with the cache bypassed, and reports each node as
+identical, equal within --tolerance (relative, with the largest difference), or
+different, saying whether the stage or the tool version changed since.
+verify --all re-derives every stored key and output hash and reports rows
+edited after they were written. Exit code 3 when anything differs.`,
+		Args: cobra.MaximumNArgs(1),
+		RunE: func(c *cobra.Command, args []string) error {
+			if len(args) == 1 {
+				opts.Run = args[0]
+			}
+			if (opts.Run == "") == !opts.Ledger {
+				return app.Usage(fmt.Errorf("give a RUN or --all"))
+			}
+			return run(c.Context(), opts)
+		},
+	}
+	cmd.Flags().BoolVar(&opts.Ledger, "all", false, "audit the whole ledger: re-derive every stored hash")
+	cmd.Flags().Float64Var(&opts.Tolerance, "tolerance", 1e-12, "relative tolerance for \"equal within tolerance\"")
+	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print the report as JSON")
+	return cmd
+}
+
+// Verdicts of a node.
+const (
+	Identical = "identical"
+	Within    = "within-tolerance"
+	Different = "different"
+	Skipped   = "skipped"
+)
+
+// NodeReport is the JSON shape of one node's verdict.
+type NodeReport struct {
+	Stage   string   `json:"stage"`
+	Key     string   `json:"key"`
+	Verdict string   `json:"verdict"`
+	MaxRel  float64  `json:"max_rel_diff,omitempty"`
+	Worst   string   `json:"worst,omitempty"`
+	Changed []string `json:"changed,omitempty"`
+	Why     string   `json:"why,omitempty"`
+}
+
+// Run verifies.
+func Run(ctx context.Context, o *Options) error {
+	l, err := o.Env.OpenLedger(o.Globals)
+	if err != nil {
+		return err
+	}
+	defer l.Close()
+	if o.Ledger {
+		probs, err := l.Audit(ctx)
+		if err != nil {
+			return err
+		}
+		if o.JSON {
+			if err := app.JSON(o.Env.Stdout, map[string]any{"problems": probs}); err != nil {
+				return err
+			}
+		} else {
+			for _, p := range probs {
+				fmt.Fprintf(o.Env.Stdout, "%s\t%s\t%s\n", p.Table, p.ID, p.What)
+			}
+		}
+		fmt.Fprintf(o.Env.Stderr, "ledger %s: %d row(s) no longer match their hashes\n", l.Path(), len(probs))
+		if len(probs) > 0 {
+			return &app.RunFailedError{Run: "ledger", Failed: len(probs), First: fmt.Errorf("%s %s: %s", probs[0].Table, probs[0].ID, probs[0].What)}
+		}
+		return nil
+	}
+	id, err := l.ResolveRun(ctx, o.Run)
+	if err != nil {
+		return err
+	}
+	run, err := l.Run(ctx, id)
+	if err != nil {
+		return err
+	}
+	links, err := l.RunNodes(ctx, id)
+	if err != nil {
+		return err
+	}
+	stages := nodes.Stages()
+	outputs := map[pipeline.KeyID]pipeline.Values{}
+	var reports []NodeReport
+	counts := map[string]int{}
+	for _, ln := range links {
+		rec := ln.NodeRecord
+		rep := NodeReport{Stage: rec.Stage, Key: string(rec.Key)}
+		st, ok := stages[rec.Stage]
+		switch {
+		case rec.Status != pipeline.NodeOK:
+			rep.Verdict, rep.Why = Skipped, "recorded as failed: "+rec.Error
+		case !ok:
+			rep.Verdict, rep.Why = Different, "stage "+rec.Stage+" no longer exists"
+		default:
+			ins := make([]pipeline.Values, len(rec.Inputs))
+			for i, in := range rec.Inputs {
+				v, ok := outputs[in.Key]
+				if !ok {
+					up, found, err := l.Node(ctx, in.Key)
+					if err != nil || !found {
+						return fmt.Errorf("verify %s: input %s: %v", rec.Key, in.Key, err)
+					}
+					v = up.Outputs
+				}
+				ins[i] = v
+			}
+			out, hash, err := pipeline.Replay(ctx, st, rec, ins)
+			switch {
+			case err != nil:
+				rep.Verdict, rep.Why = Different, "recomputation fails: "+err.Error()
+			case hash == rec.OutputHash:
+				rep.Verdict = Identical
+			default:
+				d := pipeline.Compare(rec.Outputs, out)
+				rep.MaxRel, rep.Worst, rep.Changed = d.MaxRel, d.Worst, d.Changed
+				rep.Verdict = Different
+				if !d.Structural && d.MaxRel <= o.Tolerance {
+					rep.Verdict = Within
+				}
+			}
+			if rep.Verdict != Identical {
+				if v := st.Spec().Version; v != rec.Version {
+					rep.Why = fmt.Sprintf("stage %s version changed: recorded v%d, now v%d", rec.Stage, rec.Version, v)
+				} else if run.ToolVersion != app.Version {
+					rep.Why = fmt.Sprintf("tool version changed: recorded %s, now %s", run.ToolVersion, app.Version)
+				} else if rep.Why == "" {
+					rep.Why = "same stage and tool version: the stage is not deterministic, or the ledger row was edited"
+				}
+			}
+			outputs[rec.Key] = rec.Outputs
+		}
+		counts[rep.Verdict]++
+		reports = append(reports, rep)
+	}
+	if o.JSON {
+		if err := app.JSON(o.Env.Stdout, map[string]any{"run": id, "tolerance": o.Tolerance, "counts": counts, "nodes": reports}); err != nil {
+			return err
+		}
+	} else {
+		rows := make([][]string, len(reports))
+		for i, r := range reports {
+			detail := r.Why
+			if r.Verdict == Within || (r.Verdict == Different && r.Worst != "") {
+				detail = fmt.Sprintf("max rel %.3g in %s; %s", r.MaxRel, r.Worst, r.Why)
+			}
+			rows[i] = []string{r.Stage, pipeline.KeyID(r.Key).Short(), r.Verdict, detail}
+		}
+		if err := o.Env.Table(o.Env.Stdout, []string{"stage", "key", "verdict", "detail"}, rows); err != nil {
+			return err
+		}
+	}
+	fmt.Fprintf(o.Env.Stderr, "verify %s: %d identical, %d within tolerance %g, %d different, %d skipped\n",
+		id, counts[Identical], counts[Within], o.Tolerance, counts[Different], counts[Skipped])
+	if counts[Different] > 0 {
+		return &app.RunFailedError{Run: id, Failed: counts[Different], First: fmt.Errorf("recomputed outputs differ")}
+	}
+	return nil
+}
