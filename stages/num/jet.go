@@ -48,8 +48,20 @@ func Mul(a, b Jet) Jet {
 	}
 }
 
-// Div returns a/b.
-func Div(a, b Jet) Jet { return Mul(a, Recip(b)) }
+// Div returns a/b by the quotient rule, so that the value is the correctly
+// rounded a.V/b.V (a.V * (1/b.V) is not: 49 * (1/49) != 1):
+//
+//	q = a/b, q1 = (a1 - q b1)/b, q2 = (a2 - 2 q1 b1 - q b2)/b,
+//	q3 = (a3 - 3 q2 b1 - 3 q1 b2 - q b3)/b,
+//
+// with a1, a2, a3 the derivatives of a (and likewise for b and q).
+func Div(a, b Jet) Jet {
+	q := a.V / b.V
+	q1 := (a.D1 - q*b.D1) / b.V
+	q2 := (a.D2 - 2*q1*b.D1 - q*b.D2) / b.V
+	q3 := (a.D3 - 3*q2*b.D1 - 3*q1*b.D2 - q*b.D3) / b.V
+	return Jet{q, q1, q2, q3}
+}
 
 // Compose applies a scalar function f to the jet g, given f and its first
 // three derivatives evaluated at g.V.
@@ -104,6 +116,11 @@ func PowConst(a Jet, p float64) Jet {
 		return Compose(a, math.Pow(0, p), p*math.Pow(0, p-1), p*(p-1)*math.Pow(0, p-2), p*(p-1)*(p-2)*math.Pow(0, p-3))
 	}
 	f0 := math.Pow(x, p)
+	if f0 == 0 || math.Abs(f0) < 0x1p-1000 || math.IsInf(f0, 0) {
+		// x^p under- or overflows: dividing it by x would lose the
+		// derivatives, which may still be representable.
+		return Compose(a, f0, p*math.Pow(x, p-1), p*(p-1)*math.Pow(x, p-2), p*(p-1)*(p-2)*math.Pow(x, p-3))
+	}
 	f1 := p * f0 / x
 	f2 := (p - 1) * f1 / x
 	f3 := (p - 2) * f2 / x
