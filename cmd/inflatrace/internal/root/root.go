@@ -11,6 +11,8 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/diffcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/exportcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/modelscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/predictcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runcmd"
@@ -49,6 +51,9 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		tagcmd.NewCmd(env, g, nil),
 		tracecmd.NewCmd(env, g, nil),
 		verifycmd.NewCmd(env, g, nil),
+		diffcmd.NewCmd(env, g, nil),
+		exportcmd.NewExportCmd(env, g, nil),
+		exportcmd.NewImportCmd(env, g),
 	)
 	return root
 }

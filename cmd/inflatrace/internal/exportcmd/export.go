@@ -1,0 +1,200 @@
+// Package exportcmd implements "inflatrace export RUN --out FILE.tar.gz|DIR"
+// and "inflatrace import FILE|DIR": release archives of one run, checked
+// against their manifest on import and merged without duplicating nodes.
+package exportcmd
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/archive"
+	"github.com/inflatrace/inflatrace/ledger"
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/study"
+)
+
+// Options are the parsed flags and arguments of export and import.
+type Options struct {
+	Env     *app.Env
+	Globals *app.Globals
+	Run     string
+	Out     string
+	From    string
+}
+
+// Extra writes further files (tables, figures) of a run into an archive
+// folder; the root command supplies it so that this package does not
+// depend on the renderers.
+type Extra func(ctx context.Context, dir string, run ledger.RunDetail, results []study.Result) error
+
+// NewExportCmd returns the export command.
+func NewExportCmd(env *app.Env, g *app.Globals, extra Extra) *cobra.Command {
+	opts := &Options{Env: env, Globals: g}
+	cmd := &cobra.Command{
+		Use:   "export RUN --out FILE.tar.gz|DIR",
+		Short: "Archive a run: configuration, results, figures, its own ledger and a manifest of SHA-256 sums",
+		Args:  cobra.ExactArgs(1),
+		RunE: func(c *cobra.Command, args []string) error {
+			opts.Run = args[0]
+			if opts.Out == "" {
+				return app.Usage(errors.New("--out is required"))
+			}
+			return Export(c.Context(), opts, extra)
+		},
+	}
+	cmd.Flags().StringVar(&opts.Out, "out", "", "archive to write: a path ending in .tar.gz or .tgz, or a new folder")
+	return cmd
+}
+
+// NewImportCmd returns the import command.
+func NewImportCmd(env *app.Env, g *app.Globals) *cobra.Command {
+	opts := &Options{Env: env, Globals: g}
+	return &cobra.Command{
+		Use:   "import FILE.tar.gz|DIR",
+		Short: "Check an archive against its manifest and merge its ledger into this one",
+		Args:  cobra.ExactArgs(1),
+		RunE: func(c *cobra.Command, args []string) error {
+			opts.From = args[0]
+			return Import(c.Context(), opts)
+		},
+	}
+}
+
+func isTarball(p string) bool { return strings.HasSuffix(p, ".tar.gz") || strings.HasSuffix(p, ".tgz") }
+
+// Export writes the archive.
+func Export(ctx context.Context, o *Options, extra Extra) error {
+	l, err := o.Env.OpenLedger(o.Globals)
+	if err != nil {
+		return err
+	}
+	defer l.Close()
+	id, err := l.ResolveRun(ctx, o.Run)
+	if err != nil {
+		return err
+	}
+	run, err := l.Run(ctx, id)
+	if err != nil {
+		return err
+	}
+	results, err := app.RecordedResults(ctx, l, id)
+	if err != nil {
+		return err
+	}
+	dir := o.Out
+	if isTarball(o.Out) {
+		if _, err := os.Stat(o.Out); err == nil {
+			return app.Usage(fmt.Errorf("%s already exists", o.Out))
+		}
+		if dir, err = os.MkdirTemp("", "inflatrace-export-"); err != nil {
+			return err
+		}
+		defer os.RemoveAll(dir)
+	} else {
+		if entries, err := os.ReadDir(dir); err == nil && len(entries) > 0 {
+			return app.Usage(fmt.Errorf("folder %s is not empty", dir))
+		}
+		if err := os.MkdirAll(dir, 0o755); err != nil {
+			return err
+		}
+	}
+	if err := os.WriteFile(filepath.Join(dir, "config.toml"), []byte(run.ConfigText), 0o644); err != nil {
+		return err
+	}
+	f, err := os.Create(filepath.Join(dir, "results.json"))
+	if err != nil {
+		return err
+	}
+	err = app.JSON(f, map[string]any{"run": id, "tool_version": run.ToolVersion, "config_hash": run.ConfigHash, "results": results})
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return err
+	}
+	if extra != nil {
+		if err := extra(ctx, dir, run, results); err != nil {
+			return err
+		}
+	}
+	if _, err := l.ExportRun(ctx, id, filepath.Join(dir, archive.LedgerName)); err != nil {
+		return err
+	}
+	// The exported ledger's WAL side files are checkpointed on close;
+	// none may remain in the archive.
+	for _, side := range []string{"-wal", "-shm"} {
+		os.Remove(filepath.Join(dir, archive.LedgerName+side))
+	}
+	m, err := archive.WriteManifest(dir, app.Version, id, o.Env.Now())
+	if err != nil {
+		return err
+	}
+	if isTarball(o.Out) {
+		if err := archive.Pack(dir, o.Out, run.Started); err != nil {
+			return err
+		}
+	}
+	fmt.Fprintf(o.Env.Stderr, "exported run %s to %s: %d files\n", id, o.Out, len(m.Files)+1)
+	return nil
+}
+
+// Import checks and merges an archive.
+func Import(ctx context.Context, o *Options) error {
+	dir := o.From
+	if isTarball(o.From) {
+		tmp, err := os.MkdirTemp("", "inflatrace-import-")
+		if err != nil {
+			return err
+		}
+		defer os.RemoveAll(tmp)
+		if err := archive.Unpack(o.From, tmp); err != nil {
+			return refuse(err)
+		}
+		dir = tmp
+	}
+	m, err := archive.Check(o.From, dir)
+	if err != nil {
+		return refuse(err)
+	}
+	// Merge from a private copy: opening a ledger may write side files.
+	tmp, err := os.MkdirTemp("", "inflatrace-import-ledger-")
+	if err != nil {
+		return err
+	}
+	defer os.RemoveAll(tmp)
+	data, err := os.ReadFile(filepath.Join(dir, archive.LedgerName))
+	if err != nil {
+		return err
+	}
+	copyPath := filepath.Join(tmp, archive.LedgerName)
+	if err := os.WriteFile(copyPath, data, 0o644); err != nil {
+		return err
+	}
+	l, err := o.Env.OpenLedger(o.Globals)
+	if err != nil {
+		return err
+	}
+	defer l.Close()
+	rep, err := l.Merge(ctx, copyPath)
+	if err != nil {
+		return refuse(err)
+	}
+	fmt.Fprintf(o.Env.Stderr, "imported run %s (inflatrace %s) from %s: %d run(s), %d node(s) new; %d node(s) already here\n",
+		m.Run, m.ToolVersion, o.From, rep.Runs, rep.Nodes, rep.NodesKept)
+	return nil
+}
+
+func refuse(err error) error {
+	var te *archive.TamperError
+	if errors.As(err, &te) || errors.Is(err, ledger.ErrIntegrity) {
+		return &app.RunFailedError{Run: pipeline.RunID("import"), Failed: 1, First: err}
+	}
+	return err
+}

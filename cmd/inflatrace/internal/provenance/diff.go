@@ -1,0 +1,419 @@
+package provenance
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"path/filepath"
+	"sort"
+	"strings"
+	"sync"
+	"time"
+
+	"github.com/inflatrace/inflatrace/ledger"
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/nodes"
+	"github.com/inflatrace/inflatrace/stages/study"
+)
+
+// MaxAttributed bounds the number of configuration differences attributed
+// (the Shapley decomposition evaluates 2^n configurations).
+const MaxAttributed = 10
+
+// Run is what the comparison needs of one recorded run.
+type Run struct {
+	Detail  ledger.RunDetail
+	Nodes   []ledger.RunNode
+	Results []study.Result
+}
+
+// Assumption is one thing that differs between the runs.
+type Assumption struct {
+	Kind       string // "config", "stage-version", "tool-version", "constraint-data"
+	What       string // human description
+	Attributed bool   // whether the attribution evaluates it
+	config     *Difference
+}
+
+// Quantities compared for each paired result.
+var Quantities = []string{"N_star", "n_s", "r", "alpha_s", "delta_chi2", "n_sigma"}
+
+// Change is the change of one quantity of one paired result.
+type Change struct {
+	A, B, Total float64
+	// Contributions holds one entry per attributed assumption, in the
+	// order of Report.Assumptions' attributed entries.
+	Contributions []float64
+	// Remainder is Total minus the contributions: the effect of what could
+	// not be re-evaluated, plus rounding.
+	Remainder float64
+}
+
+// Pair is a result of run A and its counterpart in run B.
+type Pair struct {
+	LabelA, LabelB string
+	Changes        map[string]Change
+}
+
+// Report is the comparison of two runs.
+type Report struct {
+	A, B        pipeline.RunID
+	Assumptions []Assumption
+	Pairs       []Pair
+	Unpaired    []string // results present in one run only
+	Evaluated   int      // intermediate configurations evaluated
+}
+
+// pairKey identifies a result across runs: its model (label up to the
+// first " | ") and its position among that model's results.
+func pairKeys(rs []study.Result) []string {
+	seen := map[string]int{}
+	keys := make([]string, len(rs))
+	for i, r := range rs {
+		model, _, _ := strings.Cut(r.Label, " | ")
+		keys[i] = fmt.Sprintf("%s#%d", model, seen[model])
+		seen[model]++
+	}
+	return keys
+}
+
+func quantity(r study.Result, q string) (float64, bool) {
+	if r.Error != "" || r.Band != nil {
+		return 0, false
+	}
+	switch q {
+	case "N_star":
+		return r.NStar, true
+	case "n_s":
+		return r.Ns, true
+	case "r":
+		return r.R, true
+	case "alpha_s":
+		return r.AlphaS, true
+	case "delta_chi2":
+		if r.DeltaChi2 != nil {
+			return *r.DeltaChi2, true
+		}
+	case "n_sigma":
+		if r.NSigma != nil {
+			return *r.NSigma, true
+		}
+	}
+	return 0, false
+}
+
+// Assumptions lists what differs between the runs.
+func Assumptions(a, b Run) ([]Assumption, error) {
+	ta, err := parseTree(a.Detail.ConfigText)
+	if err != nil {
+		return nil, fmt.Errorf("run %s configuration: %w", a.Detail.ID, err)
+	}
+	tb, err := parseTree(b.Detail.ConfigText)
+	if err != nil {
+		return nil, fmt.Errorf("run %s configuration: %w", b.Detail.ID, err)
+	}
+	var out []Assumption
+	for _, d := range Differences(ta, tb) {
+		d := d
+		out = append(out, Assumption{Kind: "config", What: d.String(), Attributed: true, config: &d})
+	}
+	if a.Detail.ToolVersion != b.Detail.ToolVersion {
+		out = append(out, Assumption{Kind: "tool-version", What: fmt.Sprintf("inflatrace %s -> %s", a.Detail.ToolVersion, b.Detail.ToolVersion)})
+	}
+	va, vb := stageVersions(a), stageVersions(b)
+	for _, st := range sortedKeys(va, vb) {
+		if va[st] != vb[st] {
+			out = append(out, Assumption{Kind: "stage-version", What: fmt.Sprintf("stage %s v%s -> v%s", st, va[st], vb[st])})
+		}
+	}
+	ca, cb := constraintData(a), constraintData(b)
+	for _, name := range sortedKeys(ca, cb) {
+		if ca[name] != "" && cb[name] != "" && ca[name] != cb[name] {
+			out = append(out, Assumption{Kind: "constraint-data", What: fmt.Sprintf("constraint set %s: %s -> %s", name, ca[name], cb[name])})
+		}
+	}
+	return out, nil
+}
+
+func stageVersions(r Run) map[string]string {
+	m := map[string]string{}
+	for _, n := range r.Nodes {
+		v := fmt.Sprint(n.Version)
+		if old, ok := m[n.Stage]; ok && old != v && !strings.Contains(old, v) {
+			v = old + "," + v
+		}
+		m[n.Stage] = v
+	}
+	return m
+}
+
+// constraintData is each constraint set's numbers as the run's compare
+// nodes recorded them.
+func constraintData(r Run) map[string]string {
+	m := map[string]string{}
+	for _, n := range r.Nodes {
+		if n.Stage != nodes.CompareStage {
+			continue
+		}
+		name, _ := n.Params.Text("constraint")
+		var parts []string
+		for _, p := range []string{"mean_n_s", "sigma_n_s", "mean_r", "sigma_r", "rho"} {
+			x, _ := n.Params.Num(p)
+			parts = append(parts, p+"="+pipeline.FormatFloat(x))
+		}
+		m[name] = strings.Join(parts, " ")
+	}
+	return m
+}
+
+func sortedKeys(a, b map[string]string) []string {
+	set := map[string]bool{}
+	for k := range a {
+		set[k] = true
+	}
+	for k := range b {
+		set[k] = true
+	}
+	var out []string
+	for k := range set {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}
+
+// Evaluate runs a configuration through the engine.
+type Evaluate func(ctx context.Context, configText string) ([]study.Result, error)
+
+// Compare builds the report. eval evaluates an intermediate configuration
+// (through the cached DAG); it is called for each of the 2^n subsets of
+// the n attributed assumptions, including run A's and run B's own
+// configurations.
+func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
+	as, err := Assumptions(a, b)
+	if err != nil {
+		return nil, err
+	}
+	rep := &Report{A: a.Detail.ID, B: b.Detail.ID, Assumptions: as}
+	var attributed []Difference
+	for _, x := range as {
+		if x.Attributed {
+			attributed = append(attributed, *x.config)
+		}
+	}
+	if len(attributed) > MaxAttributed {
+		return nil, fmt.Errorf("%d configuration fields differ; attribution evaluates 2^n configurations and is limited to %d", len(attributed), MaxAttributed)
+	}
+	// Results pair by position when both runs have as many (the same
+	// study shape), else by model and position within the model.
+	type pairIdx struct{ i, j int }
+	var pairs []pairIdx
+	if len(a.Results) == len(b.Results) {
+		for i := range a.Results {
+			pairs = append(pairs, pairIdx{i, i})
+		}
+	} else {
+		ka, kb := pairKeys(a.Results), pairKeys(b.Results)
+		idxB := map[string]int{}
+		for i, k := range kb {
+			idxB[k] = i
+		}
+		pairedB := map[int]bool{}
+		for i, k := range ka {
+			if j, ok := idxB[k]; ok {
+				pairs = append(pairs, pairIdx{i, j})
+				pairedB[j] = true
+			} else {
+				rep.Unpaired = append(rep.Unpaired, "A: "+a.Results[i].Label)
+			}
+		}
+		for j := range b.Results {
+			if !pairedB[j] {
+				rep.Unpaired = append(rep.Unpaired, "B: "+b.Results[j].Label)
+			}
+		}
+	}
+	// v[S][pair][quantity] for every subset S of the attributed differences.
+	n := len(attributed)
+	ta, err := parseTree(a.Detail.ConfigText)
+	if err != nil {
+		return nil, err
+	}
+	values := make([][]map[string]float64, 1<<n)
+	for mask := 0; mask < 1<<n; mask++ {
+		var sub []Difference
+		for i := 0; i < n; i++ {
+			if mask&(1<<i) != 0 {
+				sub = append(sub, attributed[i])
+			}
+		}
+		tree, err := apply(ta, sub)
+		if err != nil {
+			return nil, err
+		}
+		text, err := render(tree)
+		if err != nil {
+			return nil, err
+		}
+		res, err := eval(ctx, text)
+		if err != nil {
+			return nil, fmt.Errorf("intermediate configuration %s: %w", describeSubset(sub), err)
+		}
+		values[mask] = make([]map[string]float64, len(pairs))
+		for p, pr := range pairs {
+			ri := pr.i
+			if mask == (1<<n)-1 {
+				ri = pr.j
+			}
+			if (mask == (1<<n)-1 && len(res) != len(b.Results)) || (mask != (1<<n)-1 && len(res) != len(a.Results)) {
+				return nil, fmt.Errorf("intermediate configuration %s gives %d results: attribution needs every configuration to give the same results (%d)", describeSubset(sub), len(res), len(a.Results))
+			}
+			m := map[string]float64{}
+			for _, q := range Quantities {
+				if x, ok := quantity(res[ri], q); ok {
+					m[q] = x
+				}
+			}
+			values[mask][p] = m
+		}
+		rep.Evaluated++
+	}
+	weights := shapleyWeights(n)
+	for p, pr := range pairs {
+		ra, rb := a.Results[pr.i], b.Results[pr.j]
+		pair := Pair{LabelA: ra.Label, LabelB: rb.Label, Changes: map[string]Change{}}
+		for _, q := range Quantities {
+			xa, okA := quantity(ra, q)
+			xb, okB := quantity(rb, q)
+			if !okA || !okB {
+				continue
+			}
+			c := Change{A: xa, B: xb, Total: xb - xa, Contributions: make([]float64, n)}
+			complete := true
+			for mask := range values {
+				if _, ok := values[mask][p][q]; !ok {
+					complete = false
+				}
+			}
+			sum := 0.0
+			if complete {
+				for i := 0; i < n; i++ {
+					for mask := 0; mask < 1<<n; mask++ {
+						if mask&(1<<i) != 0 {
+							continue
+						}
+						size := popcount(mask)
+						c.Contributions[i] += weights[size] * (values[mask|1<<i][p][q] - values[mask][p][q])
+					}
+					sum += c.Contributions[i]
+				}
+			}
+			c.Remainder = c.Total - sum
+			pair.Changes[q] = c
+		}
+		rep.Pairs = append(rep.Pairs, pair)
+	}
+	return rep, nil
+}
+
+// shapleyWeights returns w[s] = s! (n - s - 1)! / n! for coalition size s.
+func shapleyWeights(n int) []float64 {
+	w := make([]float64, n)
+	for s := 0; s < n; s++ {
+		w[s] = math.Exp(lgammaInt(s+1) + lgammaInt(n-s) - lgammaInt(n+1))
+	}
+	return w
+}
+
+func lgammaInt(k int) float64 { v, _ := math.Lgamma(float64(k)); return v }
+
+func popcount(x int) int {
+	n := 0
+	for ; x != 0; x &= x - 1 {
+		n++
+	}
+	return n
+}
+
+func describeSubset(sub []Difference) string {
+	if len(sub) == 0 {
+		return "(run A's)"
+	}
+	var ps []string
+	for _, d := range sub {
+		ps = append(ps, d.Path)
+	}
+	return "{" + strings.Join(ps, ", ") + "}"
+}
+
+// ReadThrough is a Recorder that finds nodes in a ledger (and in what it
+// computed itself) but writes nothing to the ledger: intermediate
+// configurations are evaluated through the cached DAG without being
+// recorded as runs.
+type ReadThrough struct {
+	L     *ledger.Ledger
+	mu    sync.Mutex
+	extra map[pipeline.KeyID]pipeline.NodeRecord
+}
+
+// BeginRun implements pipeline.Recorder; nothing is written.
+func (r *ReadThrough) BeginRun(context.Context, pipeline.RunInfo) error { return nil }
+
+// Lookup implements pipeline.Recorder.
+func (r *ReadThrough) Lookup(ctx context.Context, k pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
+	r.mu.Lock()
+	n, ok := r.extra[k]
+	r.mu.Unlock()
+	if ok {
+		return n, true, nil
+	}
+	return r.L.Lookup(ctx, k)
+}
+
+// RecordNode implements pipeline.Recorder; computed nodes are kept in memory.
+func (r *ReadThrough) RecordNode(_ context.Context, _ pipeline.RunID, n pipeline.NodeRecord, a pipeline.Action) error {
+	if a == pipeline.Computed {
+		r.mu.Lock()
+		if r.extra == nil {
+			r.extra = map[pipeline.KeyID]pipeline.NodeRecord{}
+		}
+		r.extra[n.Key] = n
+		r.mu.Unlock()
+	}
+	return nil
+}
+
+// RecordResults implements pipeline.Recorder; nothing is written.
+func (r *ReadThrough) RecordResults(context.Context, pipeline.RunID, []pipeline.ResultRef) error {
+	return nil
+}
+
+// FinishRun implements pipeline.Recorder; nothing is written.
+func (r *ReadThrough) FinishRun(context.Context, pipeline.RunID, pipeline.RunStatus, time.Time, string) error {
+	return nil
+}
+
+// Evaluator returns an Evaluate that parses a configuration (relative
+// constraint files resolved against dir), expands it and executes it
+// through rec.
+func Evaluator(rec pipeline.Recorder, dir, tool string, jobs int, now func() time.Time) Evaluate {
+	return func(ctx context.Context, text string) ([]study.Result, error) {
+		s, err := study.Parse(filepath.Join(dir, "(intermediate)"), []byte(text), dir)
+		if err != nil {
+			return nil, err
+		}
+		g, err := s.Graph()
+		if err != nil {
+			return nil, err
+		}
+		rep, err := pipeline.Execute(ctx, rec, pipeline.RunInfo{ID: "intermediate"}, g, pipeline.Options{Jobs: jobs, Tool: tool, Now: now})
+		if err != nil {
+			return nil, err
+		}
+		if rep.Failed > 0 {
+			return nil, errors.New("some nodes failed")
+		}
+		return study.Results(g, rep), nil
+	}
+}
