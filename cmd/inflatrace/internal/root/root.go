@@ -13,6 +13,7 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/diffcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/exportcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/graphcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/modelscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/predictcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runcmd"
@@ -54,6 +55,7 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		diffcmd.NewCmd(env, g, nil),
 		exportcmd.NewExportCmd(env, g, nil),
 		exportcmd.NewImportCmd(env, g),
+		graphcmd.NewCmd(env, g, nil),
 	)
 	return root
 }
