@@ -27,7 +27,9 @@ type Options struct {
 	Lineage map[pipeline.KeyID]bool // nodes to highlight (nil: none)
 }
 
-func id(k pipeline.KeyID) string { return "n" + strings.TrimPrefix(string(k), pipeline.HashPrefix)[:16] }
+func id(k pipeline.KeyID) string {
+	return "n" + strings.TrimPrefix(string(k), pipeline.HashPrefix)[:16]
+}
 
 // Write writes the graph of a run's nodes.
 func Write(w io.Writer, nodes []ledger.RunNode, o Options) error {
