@@ -11,6 +11,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/dag"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/diffcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/exportcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/graphcmd"
@@ -55,7 +56,7 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		diffcmd.NewCmd(env, g, nil),
 		exportcmd.NewExportCmd(env, g, nil),
 		exportcmd.NewImportCmd(env, g),
-		graphcmd.NewCmd(env, g, nil),
+		graphcmd.NewCmd(env, g, dag.PNG),
 	)
 	return root
 }

@@ -39,7 +39,7 @@ func (h *harness) run(args ...string) (stdout, stderr string, code int) {
 			if k == app.LedgerEnv {
 				return h.ledger
 			}
-			return ""
+			return os.Getenv(k)
 		},
 		Now: func() time.Time {
 			return time.Date(2026, 12, 2, 5, 0, 0, 0, time.UTC).Add(time.Duration(h.tick.Add(1)) * time.Millisecond)
