@@ -7,6 +7,7 @@ import (
 
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/reheat"
+	"github.com/inflatrace/inflatrace/stages/slowroll"
 )
 
 // Reheating histories, as named in configurations and node parameters.
@@ -133,11 +134,17 @@ func (Reheat) Run(_ context.Context, params pipeline.Values, inputs []pipeline.V
 	if !(As > 0) {
 		return nil, fmt.Errorf("A_s = %g, want > 0", As)
 	}
-	ev, err := evaluator(in, reheat.Normalisation{As: As})
+	history, _ := params.Text("history")
+	nMax := 100.0 // room for the matched N* of any history
+	if history == HistoryFixed {
+		if N, err := params.Num("N_star"); err == nil {
+			nMax = N
+		}
+	}
+	ev, err := evaluator(in, reheat.Normalisation{As: As}, nMax)
 	if err != nil {
 		return nil, err
 	}
-	history, _ := params.Text("history")
 	if history == HistoryFixed {
 		v, err := need(params, history, "N_star")
 		if err != nil {
@@ -250,15 +257,31 @@ func bandValues(b reheat.BandResult, params pipeline.Values) pipeline.Values {
 }
 
 // evaluator returns the prediction at N for the slow-roll node's method.
-func evaluator(in pipeline.Values, n reheat.Normalisation) (reheat.Evaluator, error) {
+//
+// The exact method integrates the background far enough back for pivots
+// up to nMax e-folds before the end.
+func evaluator(in pipeline.Values, n reheat.Normalisation, nMax float64) (reheat.Evaluator, error) {
 	sol, err := solutionFrom(in)
 	if err != nil {
 		return nil, err
 	}
-	method, _ := in.Text("method")
-	switch method {
+	sp := decodeSlowRoll(in)
+	switch sp.Method {
 	case MethodFirst:
 		return reheat.FirstOrder{Sol: sol, Norm: n}, nil
+	case MethodSecond:
+		v, err := need(in, MethodSecond, "cal_phi", "cal_N_exact", "cal_delta_N", "phi_end_exact")
+		if err != nil {
+			return nil, err
+		}
+		cal := &slowroll.EndCalibration{Phi: v[0], NExact: v[1], DeltaN: v[2], PhiEnd: v[3]}
+		return reheat.SecondOrder{Sol: sol, Cal: cal, Norm: n}, nil
+	case MethodExact:
+		es, err := slowroll.SolveExact(sol.Model, nMax, sp.exactSettings())
+		if err != nil {
+			return nil, err
+		}
+		return reheat.Exact{Sol: es, Norm: n}, nil
 	}
-	return nil, fmt.Errorf("slow-roll method %q has no evaluator", method)
+	return nil, fmt.Errorf("slow-roll method %q has no evaluator", sp.Method)
 }

@@ -2,13 +2,11 @@ package nodes
 
 import (
 	"context"
-	"fmt"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/canonical"
 	"github.com/inflatrace/inflatrace/stages/compare"
 	"github.com/inflatrace/inflatrace/stages/model"
-	"github.com/inflatrace/inflatrace/stages/slowroll"
 )
 
 // Versions of the stages. Bump one whenever its numerics or its outputs
@@ -91,73 +89,6 @@ func maxOf(xs ...float64) float64 {
 		}
 	}
 	return m
-}
-
-// Slow-roll methods and end conditions.
-const (
-	MethodFirst    = "first"
-	EndEpsilonVOne = "epsilon_V=1"
-)
-
-// SlowRoll is the slow-roll stage: it finds the end of inflation.
-type SlowRoll struct{}
-
-// Spec declares the stage.
-func (SlowRoll) Spec() pipeline.Spec {
-	return pipeline.Spec{
-		Name: SlowRollStage, Version: SlowRollVersion, Inputs: []string{CanonicalStage},
-		Params: []pipeline.ParamSpec{
-			{Name: "method", Kind: pipeline.KindString},
-			{Name: "end", Kind: pipeline.KindString},
-		},
-	}
-}
-
-// Run locates the end of inflation.
-func (SlowRoll) Run(_ context.Context, params pipeline.Values, inputs []pipeline.Values) (pipeline.Values, error) {
-	in, err := onlyInput(SlowRollStage, inputs)
-	if err != nil {
-		return nil, err
-	}
-	if method, _ := params.Text("method"); method != MethodFirst {
-		return nil, fmt.Errorf("slow-roll method %q is not available (available: %s)", method, MethodFirst)
-	}
-	if end, _ := params.Text("end"); end != EndEpsilonVOne {
-		return nil, fmt.Errorf("end of inflation %q is not available (available: %s)", end, EndEpsilonVOne)
-	}
-	m, err := buildModel(in)
-	if err != nil {
-		return nil, err
-	}
-	e, err := slowroll.FindEnd(m, nil)
-	if err != nil {
-		return nil, err
-	}
-	out := specValues(m)
-	out["method"] = params["method"]
-	out["end"] = params["end"]
-	out["phi_end"] = pipeline.Float(e.Phi, pipeline.UnitMp)
-	out["roll_direction"] = pipeline.Float(e.Direction, pipeline.UnitNone)
-	out["V_end_shape"] = pipeline.Float(e.V, pipeline.UnitNone)
-	return out, nil
-}
-
-// solutionFrom rebuilds the slow-roll solution from a slow-roll node's
-// outputs, without searching for the end again.
-func solutionFrom(in pipeline.Values) (*slowroll.Solution, error) {
-	m, err := buildModel(in)
-	if err != nil {
-		return nil, err
-	}
-	phi, err := in.Num("phi_end")
-	if err != nil {
-		return nil, err
-	}
-	dir, err := in.Num("roll_direction")
-	if err != nil {
-		return nil, err
-	}
-	return &slowroll.Solution{Model: m, End: slowroll.End{Phi: phi, Direction: dir, V: m.At(phi).V}}, nil
 }
 
 // Compare is the constraint-comparison stage. The constraint's numbers are

@@ -85,6 +85,39 @@ func scanGrid(lo, hi float64, n int) []float64 {
 // never happens, or where the field would climb the potential, and a range
 // with several separate ends.
 func FindEnd(m *model.Model, s *Settings) (End, error) {
+	return FindEndWhere(m, EpsilonVCondition, s)
+}
+
+// Condition is a slow-roll criterion for the end of inflation, evaluated
+// on a Point: its name, with which the error messages speak, and its
+// value minus one (negative while inflating).
+type Condition struct {
+	Name  string
+	Minus func(p Point) float64
+}
+
+// EpsilonVCondition ends inflation where epsilon_V = 1.
+var EpsilonVCondition = Condition{"epsilon_V", func(p Point) float64 { return p.Epsilon - 1 }}
+
+// EtaVCondition ends inflation where |eta_V| = 1, for hilltop-like models
+// whose slow roll fails through eta first.
+var EtaVCondition = Condition{"|eta_V|", func(p Point) float64 { return math.Abs(p.Eta) - 1 }}
+
+// EndAtField ends inflation at a given field value (for models in which
+// another sector ends it); the roll direction is that of -V' there.
+func EndAtField(m *model.Model, phi float64) (End, error) {
+	if !(phi > m.Lo && phi < m.Hi) {
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("the end field %g is outside the range", phi)}
+	}
+	j := m.At(phi)
+	if !(j.V > 0) || j.D1 == 0 || !finite(j.D1) {
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("at the end field %g, V = %g and V' = %g: no roll", phi, j.V, j.D1)}
+	}
+	return End{Phi: phi, Direction: -math.Copysign(1, j.D1), V: j.V}, nil
+}
+
+// FindEndWhere is FindEnd for another slow-roll end condition.
+func FindEndWhere(m *model.Model, cond Condition, s *Settings) (End, error) {
 	xs := scanGrid(m.Lo, m.Hi, s.scanPoints())
 	g := make([]float64, len(xs))
 	minEps, maxEps := math.Inf(1), math.Inf(-1)
@@ -104,14 +137,14 @@ func FindEnd(m *model.Model, s *Settings) (End, error) {
 			}
 			return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("epsilon_V is %g at phi = %g", p.Epsilon, x)}
 		}
-		g[i] = p.Epsilon - 1
-		minEps, maxEps = math.Min(minEps, p.Epsilon), math.Max(maxEps, p.Epsilon)
+		g[i] = cond.Minus(p)
+		minEps, maxEps = math.Min(minEps, g[i]+1), math.Max(maxEps, g[i]+1)
 	}
 	if maxEps < 1 {
-		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("inflation never ends: epsilon_V < 1 everywhere (largest %.3g)", maxEps)}
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("inflation never ends: %s < 1 everywhere (largest %.3g)", cond.Name, maxEps)}
 	}
 	if minEps > 1 {
-		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("inflation never happens: epsilon_V > 1 everywhere (smallest %.3g)", minEps)}
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("inflation never happens: %s > 1 everywhere (smallest %.3g)", cond.Name, minEps)}
 	}
 	type cand struct {
 		i   int
@@ -133,7 +166,7 @@ func FindEnd(m *model.Model, s *Settings) (End, error) {
 		}
 	}
 	if len(ends) == 0 {
-		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, "epsilon_V crosses 1 only where the field would climb the potential: no end of inflation"}
+		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, cond.Name + " crosses 1 only where the field would climb the potential: no end of inflation"}
 	}
 	if len(ends) > 1 {
 		locs := ""
@@ -143,7 +176,7 @@ func FindEnd(m *model.Model, s *Settings) (End, error) {
 		return End{}, &RangeError{m.Describe(), m.Lo, m.Hi, "several separate ends of inflation near phi =" + locs + "; narrow the field range"}
 	}
 	c := ends[0]
-	f := func(x float64) float64 { return At(m, x).Epsilon - 1 }
+	f := func(x float64) float64 { return cond.Minus(At(m, x)) }
 	r, err := num.BrentF(f, xs[c.i], xs[c.i+1], g[c.i], g[c.i+1], &num.RootSettings{XTol: 1e-15})
 	if err != nil {
 		return End{}, fmt.Errorf("%s: end of inflation: %w", m.Describe(), err)

@@ -33,8 +33,16 @@ type fileConfig struct {
 }
 
 type slowRollConfig struct {
-	Method string `toml:"method"`
-	End    string `toml:"end"`
+	Method any `toml:"method"` // a method or a list of methods
+
+	End         string   `toml:"end"`
+	EndPhi      *float64 `toml:"end_phi"`
+	RTol        *float64 `toml:"rtol"`
+	ATol        *float64 `toml:"atol"`
+	DepthIn     *float64 `toml:"depth_in"`
+	DepthOut    *float64 `toml:"depth_out"`
+	StepLnK     *float64 `toml:"step_lnk"`
+	EarlyEfolds *float64 `toml:"early_efolds"`
 }
 
 type normConfig struct {
@@ -103,7 +111,7 @@ type Study struct {
 	Text        []byte // the exact bytes read
 	Title       string
 	Description string
-	Method, End string
+	SlowRoll    []nodes.SlowRollParams // one slow-roll solution per method
 	As          float64
 	Histories   []HistorySpec
 	Constraints []compare.Gaussian
@@ -140,21 +148,20 @@ func Parse(file string, data []byte, dir string) (*Study, error) {
 		return nil, c.decodeError(err)
 	}
 	c.pos = indexPositions(data)
-	s := &Study{File: file, Text: data, Title: fc.Title, Description: fc.Description,
-		Method: nodes.MethodFirst, End: nodes.EndEpsilonVOne, As: reheat.DefaultAs}
-	if fc.SlowRoll != nil {
-		if fc.SlowRoll.Method != "" {
-			s.Method = fc.SlowRoll.Method
-		}
-		if fc.SlowRoll.End != "" {
-			s.End = fc.SlowRoll.End
+	s := &Study{File: file, Text: data, Title: fc.Title, Description: fc.Description, As: reheat.DefaultAs}
+	methods := []string{nodes.MethodFirst}
+	if fc.SlowRoll != nil && fc.SlowRoll.Method != nil {
+		var err error
+		if methods, err = c.strings("slow_roll.method", fc.SlowRoll.Method); err != nil {
+			return nil, err
 		}
 	}
-	if s.Method != nodes.MethodFirst {
-		return nil, c.errAt("slow_roll.method", "unknown method %q (available: %s)", s.Method, nodes.MethodFirst)
-	}
-	if s.End != nodes.EndEpsilonVOne {
-		return nil, c.errAt("slow_roll.end", "unknown end of inflation %q (available: %s)", s.End, nodes.EndEpsilonVOne)
+	for _, m := range methods {
+		sp := nodes.SlowRollParams{Method: m, Exact: map[string]float64{}}
+		if err := c.slowRoll(fc.SlowRoll, &sp); err != nil {
+			return nil, err
+		}
+		s.SlowRoll = append(s.SlowRoll, sp)
 	}
 	if fc.Normalisation != nil && fc.Normalisation.As != nil {
 		s.As = *fc.Normalisation.As
@@ -173,6 +180,69 @@ func Parse(file string, data []byte, dir string) (*Study, error) {
 		return nil, err
 	}
 	return s, nil
+}
+
+// strings reads a string or a non-empty list of distinct strings.
+func (c *parser) strings(path string, v any) ([]string, error) {
+	if s, ok := v.(string); ok {
+		return []string{s}, nil
+	}
+	list, ok := v.([]any)
+	if !ok || len(list) == 0 {
+		return nil, c.errAt(path, "want a string or a non-empty list of strings")
+	}
+	seen := map[string]bool{}
+	var out []string
+	for _, e := range list {
+		s, ok := e.(string)
+		if !ok || seen[s] {
+			return nil, c.errAt(path, "want a list of distinct strings")
+		}
+		seen[s] = true
+		out = append(out, s)
+	}
+	return out, nil
+}
+
+// slowRoll reads the rest of the [slow_roll] table for sp.Method.
+func (c *parser) slowRoll(sc *slowRollConfig, sp *nodes.SlowRollParams) error {
+	sp.End = nodes.DefaultEnd(sp.Method)
+	if sc != nil && sc.End != "" {
+		sp.End = sc.End
+	}
+	if sc != nil {
+		if sc.EndPhi != nil {
+			if sp.End != nodes.EndField {
+				return c.errAt("slow_roll.end_phi", "end_phi is only used with end = %q", nodes.EndField)
+			}
+			sp.EndPhi = *sc.EndPhi
+		} else if sp.End == nodes.EndField {
+			return c.errAt("slow_roll.end", "end = %q needs end_phi (the field value [M_p] where inflation ends)", nodes.EndField)
+		}
+		for _, f := range []struct {
+			key string
+			v   *float64
+		}{{"rtol", sc.RTol}, {"atol", sc.ATol}, {"depth_in", sc.DepthIn}, {"depth_out", sc.DepthOut}, {"step_lnk", sc.StepLnK}, {"early_efolds", sc.EarlyEfolds}} {
+			if f.v == nil {
+				continue
+			}
+			if sp.Method == nodes.MethodFirst {
+				continue // a setting of the second and exact methods only
+			}
+			if !(*f.v > 0) {
+				return c.errAt("slow_roll."+f.key, "%s = %g, want > 0", f.key, *f.v)
+			}
+			sp.Exact[f.key] = *f.v
+		}
+	}
+	if err := sp.Check(); err != nil {
+		path := "slow_roll.end"
+		if !strings.Contains(err.Error(), "end") {
+			path = "slow_roll.method"
+		}
+		return c.errAt(path, "%v", err)
+	}
+	return nil
 }
 
 func (c *parser) decodeError(err error) error {

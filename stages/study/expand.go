@@ -23,32 +23,45 @@ func (s *Study) Graph() (*pipeline.Graph, error) {
 		if err != nil {
 			return nil, err
 		}
-		sp := pipeline.Values{"method": pipeline.String(s.Method), "end": pipeline.String(s.End)}
-		si, err := g.Add(nodes.SlowRoll{}, sp, label, ci)
-		if err != nil {
-			return nil, err
-		}
-		for _, h := range s.Histories {
-			rp := nodes.ReheatParams(h.HistoryParams, s.As)
-			hl := label + " | " + h.Describe()
-			ri, err := g.Add(nodes.Reheat{}, rp, hl, si)
-			if err != nil {
+		for _, sr := range s.SlowRoll {
+			if err := s.expandHistories(g, label, sr, ci); err != nil {
 				return nil, err
-			}
-			if h.Kind == nodes.HistoryBand {
-				// A band spans many (n_s, r): it is a result of its own.
-				g.MarkResult(hl, ri)
-				continue
-			}
-			for _, c := range s.Constraints {
-				cl := hl + " | " + c.Name
-				ki, err := g.Add(nodes.Compare{}, nodes.GaussianParams(c), cl, ri)
-				if err != nil {
-					return nil, err
-				}
-				g.MarkResult(cl, ki)
 			}
 		}
 	}
 	return g, nil
+}
+
+// expandHistories adds one slow-roll node below the canonical node ci,
+// and its reheat and compare nodes.
+func (s *Study) expandHistories(g *pipeline.Graph, label string, sr nodes.SlowRollParams, ci int) error {
+	if len(s.SlowRoll) > 1 {
+		label += " [" + sr.Method + "]"
+	}
+	si, err := g.Add(nodes.SlowRoll{}, sr.Values(), label, ci)
+	if err != nil {
+		return err
+	}
+	for _, h := range s.Histories {
+		rp := nodes.ReheatParams(h.HistoryParams, s.As)
+		hl := label + " | " + h.Describe()
+		ri, err := g.Add(nodes.Reheat{}, rp, hl, si)
+		if err != nil {
+			return err
+		}
+		if h.Kind == nodes.HistoryBand {
+			// A band spans many (n_s, r): it is a result of its own.
+			g.MarkResult(hl, ri)
+			continue
+		}
+		for _, c := range s.Constraints {
+			cl := hl + " | " + c.Name
+			ki, err := g.Add(nodes.Compare{}, nodes.GaussianParams(c), cl, ri)
+			if err != nil {
+				return err
+			}
+			g.MarkResult(cl, ki)
+		}
+	}
+	return nil
 }

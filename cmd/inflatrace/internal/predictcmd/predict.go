@@ -32,6 +32,8 @@ type Options struct {
 	Constraint string
 	As         float64
 	FieldRange []float64
+	Method     string
+	End        string
 	JSON       bool
 }
 
@@ -62,6 +64,8 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 	f.StringVar(&opts.Constraint, "constraint", DefaultConstraint, "shipped constraint set to compare with")
 	f.Float64Var(&opts.As, "A_s", 2.1e-9, "scalar amplitude the potential is normalised to")
 	f.Float64SliceVar(&opts.FieldRange, "field-range", nil, "canonical field range lo,hi [M_p] searched for inflation")
+	f.StringVar(&opts.Method, "method", "first", "slow-roll method: first, second or exact")
+	f.StringVar(&opts.End, "end", "", "end of inflation: epsilon_V=1, epsilon_H=1 (second, exact) or eta_V=1 (default: epsilon_V=1 at first order, epsilon_H=1 otherwise)")
 	f.BoolVar(&opts.JSON, "json", false, "print the result as one JSON object")
 	_ = cmd.MarkFlagRequired("family")
 	return cmd
@@ -74,7 +78,11 @@ func (o *Options) Config() (string, error) {
 	}
 	var b strings.Builder
 	fmt.Fprintf(&b, "# written by inflatrace predict\ntitle = %s\n\n", strconv.Quote("predict "+o.Family))
-	fmt.Fprintf(&b, "[normalisation]\nA_s = %s\n\n", strconv.FormatFloat(o.As, 'g', -1, 64))
+	fmt.Fprintf(&b, "[slow_roll]\nmethod = %s\n", strconv.Quote(o.Method))
+	if o.End != "" {
+		fmt.Fprintf(&b, "end = %s\n", strconv.Quote(o.End))
+	}
+	fmt.Fprintf(&b, "\n[normalisation]\nA_s = %s\n\n", strconv.FormatFloat(o.As, 'g', -1, 64))
 	if o.Efolds > 0 {
 		fmt.Fprintf(&b, "[[reheating]]\nhistory = \"fixed-efolds\"\nN_star = %s\n\n", tomlFloat(o.Efolds))
 	} else {

@@ -234,7 +234,7 @@ func TestBadInput(t *testing.T) {
 		want         []string // fragments of stderr
 	}{
 		{"unknown family", head + "[[model]]\nfamily = \"e-modle\"\nalpha = 1\n", app.ExitUsage,
-			[]string{"unknown-family.toml:9:", "unknown model family \"e-modle\"", "known: e-model"}},
+			[]string{"unknown-family.toml:9:", "unknown model family \"e-modle\"", "known: ", " e-model,"}},
 		{"unknown parameter", head + "[[model]]\nfamily = \"e-model\"\nalhpa = 1\n", app.ExitUsage,
 			[]string{"unknown-parameter.toml:10:1", "unknown parameter \"alhpa\"", "parameters: alpha, n"}},
 		{"missing parameter", head + "[[model]]\nfamily = \"power-law\"\n", app.ExitUsage,
