@@ -1,0 +1,154 @@
+package figures
+
+import (
+	"image/color"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/text"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+)
+
+// axisBox is the plot's data range.
+func axisBox(plt *plot.Plot) box {
+	return box{plt.X.Min, plt.X.Max, plt.Y.Min, plt.Y.Max}
+}
+
+// toCanvas maps data points to the canvas.
+func toCanvas(c *draw.Canvas, plt *plot.Plot, pts []xy) []vg.Point {
+	tx, ty := plt.Transforms(c)
+	out := make([]vg.Point, len(pts))
+	for i, p := range pts {
+		out[i] = vg.Point{X: tx(p.X), Y: ty(p.Y)}
+	}
+	return out
+}
+
+// region draws filled rings (one path, nonzero winding, so holes oriented
+// against their outer ring stay empty) and stroked curves, all clipped to
+// the axis range in data coordinates first (a log axis cannot map r <= 0).
+type region struct {
+	rings [][]xy
+	lines [][]xy
+	fill  color.Color
+	line  draw.LineStyle
+}
+
+// Plot implements plot.Plotter.
+func (r *region) Plot(c draw.Canvas, plt *plot.Plot) {
+	b := axisBox(plt)
+	if r.fill != nil {
+		var path vg.Path
+		for _, ring := range r.rings {
+			pts := toCanvas(&c, plt, clipPolygon(ring, b))
+			if len(pts) < 3 {
+				continue
+			}
+			path.Move(pts[0])
+			for _, p := range pts[1:] {
+				path.Line(p)
+			}
+			path.Close()
+		}
+		if len(path) > 0 {
+			c.SetColor(r.fill)
+			c.Fill(path)
+		}
+	}
+	if r.line.Width > 0 {
+		for _, l := range r.lines {
+			for _, piece := range clipPolyline(l, b) {
+				c.StrokeLines(r.line, toCanvas(&c, plt, piece))
+			}
+		}
+	}
+}
+
+// Thumbnail implements plot.Thumbnailer: a filled box with its outline,
+// or for an unfilled region (a band along a path) a line in its style.
+func (r *region) Thumbnail(c *draw.Canvas) {
+	if r.fill == nil {
+		y := c.Center().Y
+		c.StrokeLine2(r.line, c.Min.X, y, c.Max.X, y)
+		return
+	}
+	pts := []vg.Point{
+		{X: c.Min.X, Y: c.Min.Y}, {X: c.Min.X, Y: c.Max.Y},
+		{X: c.Max.X, Y: c.Max.Y}, {X: c.Max.X, Y: c.Min.Y},
+	}
+	c.FillPolygon(r.fill, pts)
+	if r.line.Width > 0 {
+		c.StrokeLines(r.line, append(pts, pts[0]))
+	}
+}
+
+// curve draws points with glyphs, optionally joined, with optional text
+// beside each point.
+type curve struct {
+	pts   []xy
+	tags  []string
+	join  bool
+	line  draw.LineStyle
+	glyph draw.GlyphStyle
+	font  text.Style
+}
+
+// Plot implements plot.Plotter.
+func (cv *curve) Plot(c draw.Canvas, plt *plot.Plot) {
+	b := axisBox(plt)
+	if cv.join && len(cv.pts) > 1 {
+		for _, piece := range clipPolyline(cv.pts, b) {
+			c.StrokeLines(cv.line, toCanvas(&c, plt, piece))
+		}
+	}
+	tx, ty := plt.Transforms(&c)
+	for i, p := range cv.pts {
+		if !b.contains(p) {
+			continue
+		}
+		at := vg.Point{X: tx(p.X), Y: ty(p.Y)}
+		c.DrawGlyph(cv.glyph, at)
+		if i < len(cv.tags) && cv.tags[i] != "" {
+			off := cv.glyph.Radius + vg.Points(2)
+			c.FillText(cv.font, vg.Point{X: at.X + off, Y: at.Y + off}, cv.tags[i])
+		}
+	}
+}
+
+// Thumbnail implements plot.Thumbnailer: a line segment if joined, and
+// the glyph.
+func (cv *curve) Thumbnail(c *draw.Canvas) {
+	y := c.Center().Y
+	if cv.join {
+		c.StrokeLine2(cv.line, c.Min.X, y, c.Max.X, y)
+	}
+	c.DrawGlyph(cv.glyph, c.Center())
+}
+
+// hline is a horizontal line across the plot at data y, labelled above
+// its left end.
+type hline struct {
+	y     float64
+	label string
+	line  draw.LineStyle
+	font  text.Style
+}
+
+// Plot implements plot.Plotter.
+func (h *hline) Plot(c draw.Canvas, plt *plot.Plot) {
+	if h.y < plt.Y.Min || h.y > plt.Y.Max {
+		return
+	}
+	_, ty := plt.Transforms(&c)
+	y := ty(h.y)
+	c.StrokeLine2(h.line, c.Min.X, y, c.Max.X, y)
+	if h.label != "" {
+		c.FillText(h.font, vg.Point{X: c.Min.X + vg.Points(4), Y: y + vg.Points(2)}, h.label)
+	}
+}
+
+// Thumbnail implements plot.Thumbnailer.
+func (h *hline) Thumbnail(c *draw.Canvas) {
+	y := c.Center().Y
+	c.StrokeLine2(h.line, c.Min.X, y, c.Max.X, y)
+}

@@ -1,0 +1,193 @@
+package tables
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+
+	"github.com/inflatrace/inflatrace/stages/study"
+)
+
+// kind is how a column's cells are typed and aligned.
+type kind int
+
+const (
+	text   kind = iota // left-aligned text
+	number             // right-aligned number, digits per Options
+	input              // right-aligned number given as input: always exact
+	flag               // centred yes/no
+	params             // the parameter list: text, or an object in JSON
+)
+
+// column is one selectable column.
+type column struct {
+	name  string // CSV header and JSON key
+	plain string // Markdown header, units in brackets
+	latex string // LaTeX header
+	kind  kind
+	get   func(r study.Result) cell
+}
+
+// cell is one value; ok is false for a missing value.
+type cell struct {
+	ok     bool
+	text   string
+	num    float64
+	flag   bool
+	params map[string]float64
+}
+
+func txt(s string) cell  { return cell{ok: true, text: s} }
+func num(x float64) cell { return cell{ok: true, num: x} }
+
+func opt(p *float64) cell {
+	if p == nil {
+		return cell{}
+	}
+	return num(*p)
+}
+
+func optFlag(p *bool) cell {
+	if p == nil {
+		return cell{}
+	}
+	return cell{ok: true, flag: *p}
+}
+
+// pred reads a predicted number, missing when the result failed.
+func pred(f func(r study.Result) float64) func(r study.Result) cell {
+	return func(r study.Result) cell {
+		if r.Error != "" {
+			return cell{}
+		}
+		return num(f(r))
+	}
+}
+
+func predOpt(f func(r study.Result) *float64) func(r study.Result) cell {
+	return func(r study.Result) cell {
+		if r.Error != "" {
+			return cell{}
+		}
+		return opt(f(r))
+	}
+}
+
+func band(f func(b *study.Band) float64) func(r study.Result) cell {
+	return func(r study.Result) cell {
+		if r.Error != "" || r.Band == nil {
+			return cell{}
+		}
+		return num(f(r.Band))
+	}
+}
+
+// history is the history part of a result label
+// "model(params) | history | constraint", else the reheating kind.
+func history(r study.Result) string {
+	parts := strings.Split(r.Label, " | ")
+	if len(parts) >= 2 {
+		return parts[1]
+	}
+	return r.Reheating
+}
+
+// columns are the selectable columns in their documented order (see the
+// package documentation); param.NAME columns are made on demand.
+var columns = []column{
+	{"label", "Label", "Label", text, func(r study.Result) cell { return txt(r.Label) }},
+	{"model", "Model", "Model", text, func(r study.Result) cell { return txt(r.Model) }},
+	{"params", "Parameters", "Parameters", params, func(r study.Result) cell { return cell{ok: true, params: r.Params} }},
+	{"method", "Method", "Method", text, func(r study.Result) cell { return txt(r.Method) }},
+	{"reheating", "Reheating", "Reheating", text, func(r study.Result) cell { return txt(r.Reheating) }},
+	{"history", "History", "History", text, func(r study.Result) cell { return txt(history(r)) }},
+	{"N_star", "N*", `$N_*$`, number, pred(func(r study.Result) float64 { return r.NStar })},
+	{"phi_star", "phi* [M_Pl]", `$\phi_*$ [$M_{\rm Pl}$]`, number, pred(func(r study.Result) float64 { return r.PhiStar })},
+	{"phi_end", "phi_end [M_Pl]", `$\phi_{\rm end}$ [$M_{\rm Pl}$]`, number, pred(func(r study.Result) float64 { return r.PhiEnd })},
+	{"n_s", "n_s", `$n_s$`, number, pred(func(r study.Result) float64 { return r.Ns })},
+	{"r", "r", `$r$`, number, pred(func(r study.Result) float64 { return r.R })},
+	{"alpha_s", "alpha_s", `$\alpha_s$`, number, pred(func(r study.Result) float64 { return r.AlphaS })},
+	{"n_t", "n_t", `$n_t$`, number, pred(func(r study.Result) float64 { return r.Nt })},
+	{"energy_scale_GeV", "V*^(1/4) [GeV]", `$V_*^{1/4}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.EnergyScaleGeV })},
+	{"H_star_GeV", "H* [GeV]", `$H_*$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.HStarGeV })},
+	{"T_reh_GeV", "T_reh [GeV]", `$T_{\rm reh}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.TRehGeV })},
+	{"T_max_GeV", "T_max [GeV]", `$T_{\rm max}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.TMaxGeV })},
+	{"w_reh", "w_reh", `$w_{\rm reh}$`, number, predOpt(func(r study.Result) *float64 { return r.WReh })},
+	{"N_reh", "N_reh", `$N_{\rm reh}$`, number, predOpt(func(r study.Result) *float64 { return r.NReh })},
+	{"below_bbn", "below BBN", "below BBN", flag, func(r study.Result) cell { return optFlag(r.BelowBBN) }},
+	{"N_star_min", "N*_min", `$N_*^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.NStar[0] })},
+	{"N_star_max", "N*_max", `$N_*^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.NStar[1] })},
+	{"n_s_min", "n_s,min", `$n_s^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.Ns[0] })},
+	{"n_s_max", "n_s,max", `$n_s^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.Ns[1] })},
+	{"r_min", "r_min", `$r^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.R[0] })},
+	{"r_max", "r_max", `$r^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.R[1] })},
+	{"constraint", "Constraint", "Constraint", text, func(r study.Result) cell { return txt(r.Constraint) }},
+	{"delta_chi2", "Delta chi^2", `$\Delta\chi^2$`, number, predOpt(func(r study.Result) *float64 { return r.DeltaChi2 })},
+	{"n_sigma", "n_sigma", `$n_\sigma$`, number, predOpt(func(r study.Result) *float64 { return r.NSigma })},
+	{"inside_68", "in 68%", `in 68\%`, flag, func(r study.Result) cell { return optFlag(r.Inside68) }},
+	{"inside_95", "in 95%", `in 95\%`, flag, func(r study.Result) cell { return optFlag(r.Inside95) }},
+	{"key", "Key", "Key", text, func(r study.Result) cell { return txt(r.Key) }},
+	{"error", "Error", "Error", text, func(r study.Result) cell { return txt(r.Error) }},
+}
+
+// ParamPrefix starts a column holding one model parameter:
+// "param.alpha" is the parameter alpha.
+const ParamPrefix = "param."
+
+// DefaultColumns are used when Options.Columns is empty.
+var DefaultColumns = []string{"model", "params", "history", "N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV"}
+
+// ColumnNames returns the names of the fixed columns in documented order
+// (a param.NAME column may be added for any parameter).
+func ColumnNames() []string {
+	out := make([]string, len(columns))
+	for i, c := range columns {
+		out[i] = c.name
+	}
+	return out
+}
+
+// greek maps parameter names spelled as Greek letters to LaTeX (common
+// practice in papers).
+var greek = map[string]string{
+	"alpha": `\alpha`, "beta": `\beta`, "gamma": `\gamma`, "delta": `\delta`, "epsilon": `\epsilon`,
+	"zeta": `\zeta`, "eta": `\eta`, "theta": `\theta`, "kappa": `\kappa`, "lambda": `\lambda`,
+	"mu": `\mu`, "nu": `\nu`, "xi": `\xi`, "rho": `\rho`, "sigma": `\sigma`, "tau": `\tau`,
+	"phi": `\phi`, "chi": `\chi`, "psi": `\psi`, "omega": `\omega`,
+}
+
+// lookup resolves column names.
+func lookup(names []string) ([]column, error) {
+	if len(names) == 0 {
+		names = DefaultColumns
+	}
+	byName := map[string]column{}
+	for _, c := range columns {
+		byName[c.name] = c
+	}
+	out := make([]column, 0, len(names))
+	for _, n := range names {
+		if p, ok := strings.CutPrefix(n, ParamPrefix); ok && p != "" {
+			head := escapeLaTeX(p)
+			if g, ok := greek[p]; ok {
+				head = "$" + g + "$"
+			}
+			out = append(out, column{name: n, plain: p, latex: head, kind: input, get: func(r study.Result) cell {
+				v, ok := r.Params[p]
+				if !ok {
+					return cell{}
+				}
+				return num(v)
+			}})
+			continue
+		}
+		c, ok := byName[n]
+		if !ok {
+			known := ColumnNames()
+			sort.Strings(known)
+			return nil, fmt.Errorf("tables: unknown column %q (known: %s, or %sNAME)", n, strings.Join(known, ", "), ParamPrefix)
+		}
+		out = append(out, c)
+	}
+	return out, nil
+}
