@@ -130,11 +130,27 @@ func (Reheat) Run(_ context.Context, params pipeline.Values, inputs []pipeline.V
 	if err != nil {
 		return nil, err
 	}
-	As, _ := params.Num("A_s")
-	if !(As > 0) {
+	if As, _ := params.Num("A_s"); !(As > 0) {
 		return nil, fmt.Errorf("A_s = %g, want > 0", As)
 	}
 	history, _ := params.Text("history")
+	out, err := reheatOutputs(params, in, history)
+	if err != nil {
+		return nil, err
+	}
+	// The model's specification is carried forward so that the outputs,
+	// and so the keys below, of two models that happen to predict the same
+	// numbers stay distinct: each result's lineage is then unambiguous.
+	for k, v := range in {
+		if k == keyFamily || k == keyFieldLo || k == keyFieldHi || strings.HasPrefix(k, ParamPrefix) {
+			out[k] = v
+		}
+	}
+	return out, nil
+}
+
+func reheatOutputs(params, in pipeline.Values, history string) (pipeline.Values, error) {
+	As, _ := params.Num("A_s")
 	nMax := 100.0 // room for the matched N* of any history
 	if history == HistoryFixed {
 		if N, err := params.Num("N_star"); err == nil {
@@ -253,6 +269,10 @@ func bandValues(b reheat.BandResult, params pipeline.Values) pipeline.Values {
 		"T_reh_at_N_star_min_GeV": pipeline.Float(reheat.GeV(b.NMin.T), pipeline.UnitGeV),
 		"T_reh_at_N_star_max_GeV": pipeline.Float(reheat.GeV(b.NMax.T), pipeline.UnitGeV),
 		"T_max_GeV":               pipeline.Float(reheat.GeV(b.TMax), pipeline.UnitGeV),
+		"n_s_at_N_star_min":       f(b.NMin.Pred.Obs.Ns),
+		"n_s_at_N_star_max":       f(b.NMax.Pred.Obs.Ns),
+		"r_at_N_star_min":         f(b.NMin.Pred.Obs.R),
+		"r_at_N_star_max":         f(b.NMax.Pred.Obs.R),
 	}
 }
 

@@ -91,21 +91,31 @@ func maxOf(xs ...float64) float64 {
 	return m
 }
 
-// Compare is the constraint-comparison stage. The constraint's numbers are
-// its parameters, so editing a constraint set recomputes exactly the
-// comparisons that use it.
+// Compare is the constraint-comparison stage: a Gaussian (n_s, r)
+// constraint (Delta chi^2, sigmas, inside the 68%/95% regions) or a
+// forecast sigma(r) at fiducial r = 0 (detection significance r/sigma(r)).
+// The constraint's numbers are its parameters, so editing a constraint set
+// recomputes exactly the comparisons that use it.
 type Compare struct{}
+
+// Kinds of comparison.
+const (
+	KindGaussian = "gaussian"
+	KindForecast = "forecast"
+)
 
 // Spec declares the stage.
 func (Compare) Spec() pipeline.Spec {
 	f := func(name string) pipeline.ParamSpec {
-		return pipeline.ParamSpec{Name: name, Kind: pipeline.KindFloat, Unit: pipeline.UnitNone}
+		return pipeline.ParamSpec{Name: name, Kind: pipeline.KindFloat, Unit: pipeline.UnitNone, Optional: true}
 	}
 	return pipeline.Spec{
 		Name: CompareStage, Version: CompareVersion, Inputs: []string{ReheatStage},
 		Params: []pipeline.ParamSpec{
 			{Name: "constraint", Kind: pipeline.KindString},
 			{Name: "citation", Kind: pipeline.KindString},
+			{Name: "kind", Kind: pipeline.KindString, Optional: true}, // absent: gaussian
+			{Name: "samples", Kind: pipeline.KindString, Optional: true},
 			f("mean_n_s"), f("sigma_n_s"), f("mean_r"), f("sigma_r"), f("rho"),
 		},
 	}
@@ -124,11 +134,20 @@ func GaussianParams(g compare.Gaussian) pipeline.Values {
 	}
 }
 
-// Run compares the prediction with the constraint.
-func (Compare) Run(_ context.Context, params pipeline.Values, inputs []pipeline.Values) (pipeline.Values, error) {
-	in, err := onlyInput(CompareStage, inputs)
-	if err != nil {
-		return nil, err
+// ForecastParams returns the compare parameters for a forecast.
+func ForecastParams(f compare.Forecast) pipeline.Values {
+	return pipeline.Values{
+		"constraint": pipeline.String(f.Name),
+		"citation":   pipeline.String(f.Citation),
+		"kind":       pipeline.String(KindForecast),
+		"sigma_r":    pipeline.Float(f.SigmaR, pipeline.UnitNone),
+	}
+}
+
+// GaussianFrom reads a Gaussian constraint back from compare parameters.
+func GaussianFrom(params pipeline.Values) (compare.Gaussian, bool) {
+	if k, err := params.Text("kind"); err == nil && k != KindGaussian {
+		return compare.Gaussian{}, false
 	}
 	var g compare.Gaussian
 	g.Name, _ = params.Text("constraint")
@@ -138,7 +157,13 @@ func (Compare) Run(_ context.Context, params pipeline.Values, inputs []pipeline.
 	g.MeanR, _ = params.Num("mean_r")
 	g.SigmaR, _ = params.Num("sigma_r")
 	g.Rho, _ = params.Num("rho")
-	if err := g.Check(); err != nil {
+	return g, true
+}
+
+// Run compares the prediction with the constraint.
+func (Compare) Run(_ context.Context, params pipeline.Values, inputs []pipeline.Values) (pipeline.Values, error) {
+	in, err := onlyInput(CompareStage, inputs)
+	if err != nil {
 		return nil, err
 	}
 	ns, err := in.Num("n_s")
@@ -149,9 +174,40 @@ func (Compare) Run(_ context.Context, params pipeline.Values, inputs []pipeline.
 	if err != nil {
 		return nil, err
 	}
-	c := g.Compare(ns, r)
+	if kind, _ := params.Text("kind"); kind == KindForecast {
+		var f compare.Forecast
+		f.Name, _ = params.Text("constraint")
+		f.Citation, _ = params.Text("citation")
+		f.SigmaR, _ = params.Num("sigma_r")
+		if err := f.Check(); err != nil {
+			return nil, err
+		}
+		return pipeline.Values{
+			"constraint":      pipeline.String(f.Name),
+			"detection_sigma": pipeline.Float(f.Significance(r), pipeline.UnitNone),
+			"detected_5sigma": pipeline.String(yesNo(f.Detects(r, 5))),
+		}, nil
+	}
+	var c compare.Comparison
+	if kind, _ := params.Text("kind"); kind == KindSamples {
+		name, _ := params.Text("constraint")
+		citation, _ := params.Text("citation")
+		text, _ := params.Text("samples")
+		k, err := kdeFor(name, citation, text)
+		if err != nil {
+			return nil, err
+		}
+		c = k.Compare(ns, r)
+	} else {
+		g, _ := GaussianFrom(params)
+		if err := g.Check(); err != nil {
+			return nil, err
+		}
+		c = g.Compare(ns, r)
+	}
+	name, _ := params.Text("constraint")
 	return pipeline.Values{
-		"constraint": pipeline.String(g.Name),
+		"constraint": pipeline.String(name),
 		"delta_chi2": pipeline.Float(c.DeltaChi2, pipeline.UnitNone),
 		"n_sigma":    pipeline.Float(c.Sigmas, pipeline.UnitNone),
 		"inside_68":  pipeline.String(yesNo(c.Inside68)),

@@ -29,6 +29,7 @@ type fileConfig struct {
 	Normalisation *normConfig      `toml:"normalisation"`
 	Reheating     []map[string]any `toml:"reheating"`
 	Constraint    []constraintRef  `toml:"constraint"`
+	Forecast      []constraintRef  `toml:"forecast"`
 	Model         []map[string]any `toml:"model"`
 }
 
@@ -115,6 +116,8 @@ type Study struct {
 	As          float64
 	Histories   []HistorySpec
 	Constraints []compare.Gaussian
+	SampleSets  []SampleSet
+	Forecasts   []compare.Forecast
 	Models      []ModelSpec
 }
 
@@ -132,9 +135,10 @@ func Load(path string) (*Study, error) {
 }
 
 type parser struct {
-	file string
-	dir  string
-	pos  positions
+	file    string
+	dir     string
+	pos     positions
+	samples []SampleSet // sample-based constraint sets met so far
 }
 
 // Parse checks a configuration given as bytes; file names it in errors and
@@ -174,6 +178,10 @@ func Parse(file string, data []byte, dir string) (*Study, error) {
 		return nil, err
 	}
 	if s.Constraints, err = c.constraints(fc.Constraint); err != nil {
+		return nil, err
+	}
+	s.SampleSets = c.samples
+	if s.Forecasts, err = c.forecasts(fc.Forecast); err != nil {
 		return nil, err
 	}
 	if s.Models, err = c.models(fc.Model); err != nil {
@@ -531,6 +539,17 @@ func (c *parser) constraints(refs []constraintRef) ([]compare.Gaussian, error) {
 			if !filepath.IsAbs(f) {
 				f = filepath.Join(c.dir, f)
 			}
+			if ss, isSamples, serr := LoadSampleSet(f); isSamples || serr != nil {
+				if serr != nil {
+					return nil, c.errAt(path+".file", "%v", serr)
+				}
+				if seen[ss.Name] {
+					return nil, c.errAt(path, "constraint set %q named twice", ss.Name)
+				}
+				seen[ss.Name] = true
+				c.samples = append(c.samples, ss)
+				continue
+			}
 			if g, err = LoadConstraint(f); err != nil {
 				return nil, c.errAt(path+".file", "%v", err)
 			}
@@ -542,6 +561,44 @@ func (c *parser) constraints(refs []constraintRef) ([]compare.Gaussian, error) {
 		}
 		seen[g.Name] = true
 		out = append(out, g)
+	}
+	return out, nil
+}
+
+func (c *parser) forecasts(refs []constraintRef) ([]compare.Forecast, error) {
+	var out []compare.Forecast
+	seen := map[string]bool{}
+	for i, r := range refs {
+		path := fmt.Sprintf("forecast[%d]", i)
+		var f compare.Forecast
+		var err error
+		switch {
+		case r.Use != "" && r.File != "":
+			return nil, c.errAt(path, "give use or file, not both")
+		case r.Use != "":
+			if f, err = ShippedForecast(r.Use); err != nil {
+				return nil, c.errAt(path+".use", "%v", err)
+			}
+		case r.File != "":
+			p := r.File
+			if !filepath.IsAbs(p) {
+				p = filepath.Join(c.dir, p)
+			}
+			data, rerr := os.ReadFile(p)
+			if rerr != nil {
+				return nil, c.errAt(path+".file", "%v", rerr)
+			}
+			if f, err = ParseForecast(p, data); err != nil {
+				return nil, err
+			}
+		default:
+			return nil, c.errAt(path, "give use = \"name\" (one of %s) or file = \"path\"", strings.Join(ForecastNames(), ", "))
+		}
+		if seen[f.Name] {
+			return nil, c.errAt(path, "forecast %q named twice", f.Name)
+		}
+		seen[f.Name] = true
+		out = append(out, f)
 	}
 	return out, nil
 }

@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path"
+	"path/filepath"
 	"sort"
 	"strings"
 
@@ -33,6 +34,53 @@ type constraintFile struct {
 	Approximation struct {
 		Correlation float64 `toml:"correlation"`
 	} `toml:"approximation"`
+	Samples struct {
+		File string `toml:"file"`
+	} `toml:"samples"`
+}
+
+// SampleSet is a constraint given as samples of (n_s, r): a two-column
+// text turned into a smooth density by a kernel density estimate.
+type SampleSet struct {
+	Name, Citation string
+	Points         []compare.Point
+}
+
+// LoadSampleSet reads a constraint file whose [samples] table names a
+// two-column file of (n_s, r) samples (relative to the constraint file).
+// It returns ok = false for a file that is not a sample set.
+func LoadSampleSet(file string) (SampleSet, bool, error) {
+	data, err := os.ReadFile(file)
+	if err != nil {
+		return SampleSet{}, false, err
+	}
+	var cf constraintFile
+	if err := toml.Unmarshal(data, &cf); err != nil || cf.Samples.File == "" {
+		return SampleSet{}, false, nil
+	}
+	c := &parser{file: file, pos: indexPositions(data)}
+	if cf.Name == "" || cf.Citation == "" {
+		return SampleSet{}, true, c.errAt("name", "a sample set needs name and citation")
+	}
+	if cf.Ns.Mean != nil || cf.R.Mean != nil || cf.R.Upper95 != nil {
+		return SampleSet{}, true, c.errAt("samples", "give samples or Gaussian numbers, not both")
+	}
+	sf := cf.Samples.File
+	if !filepath.IsAbs(sf) {
+		sf = filepath.Join(filepath.Dir(file), sf)
+	}
+	raw, err := os.ReadFile(sf)
+	if err != nil {
+		return SampleSet{}, true, c.errAt("samples.file", "%v", err)
+	}
+	pts, err := compare.ParseSamples(sf, raw)
+	if err != nil {
+		return SampleSet{}, true, err
+	}
+	if len(pts) < compare.MinSamples || len(pts) > compare.MaxKDESamples {
+		return SampleSet{}, true, c.errAt("samples.file", "%d samples, want %d to %d", len(pts), compare.MinSamples, compare.MaxKDESamples)
+	}
+	return SampleSet{Name: cf.Name, Citation: cf.Citation, Points: pts}, true, nil
 }
 
 // ParseConstraint reads a constraint set: n_s as mean and 68% sigma; r as

@@ -62,6 +62,22 @@ func (s *Study) expandHistories(g *pipeline.Graph, label string, sr nodes.SlowRo
 			}
 			g.MarkResult(cl, ki)
 		}
+		for _, ss := range s.SampleSets {
+			cl := hl + " | " + ss.Name
+			ki, err := g.Add(nodes.Compare{}, nodes.SamplesParams(ss.Name, ss.Citation, ss.Points), cl, ri)
+			if err != nil {
+				return err
+			}
+			g.MarkResult(cl, ki)
+		}
+		for _, f := range s.Forecasts {
+			cl := hl + " | forecast " + f.Name
+			ki, err := g.Add(nodes.Compare{}, nodes.ForecastParams(f), cl, ri)
+			if err != nil {
+				return err
+			}
+			g.MarkResult(cl, ki)
+		}
 	}
 	return nil
 }

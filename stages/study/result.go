@@ -34,6 +34,8 @@ type Result struct {
 	NSigma         *float64           `json:"n_sigma,omitempty"`
 	Inside68       *bool              `json:"inside_68,omitempty"`
 	Inside95       *bool              `json:"inside_95,omitempty"`
+	DetectionSigma *float64           `json:"detection_sigma,omitempty"`
+	Detected5Sigma *bool              `json:"detected_5sigma,omitempty"`
 	Key            string             `json:"key"`
 	Error          string             `json:"error,omitempty"`
 }
@@ -48,6 +50,10 @@ type Band struct {
 	WAtNStar       [2]float64 `json:"w_reh_at_N_star"`
 	TRehAtNStarGeV [2]float64 `json:"T_reh_at_N_star_GeV"`
 	TMaxGeV        float64    `json:"T_max_GeV"`
+	// NsAtNStar and RAtNStar are the predictions at the two ends of the
+	// N* span: the edges of the stripe a scanned model draws.
+	NsAtNStar [2]float64 `json:"n_s_at_N_star"`
+	RAtNStar  [2]float64 `json:"r_at_N_star"`
 }
 
 // StageOutputs is one node of a result's lineage: its stage and outputs.
@@ -112,6 +118,8 @@ func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
 					WAtNStar:       [2]float64{num(vs, "w_at_N_star_min"), num(vs, "w_at_N_star_max")},
 					TRehAtNStarGeV: [2]float64{num(vs, "T_reh_at_N_star_min_GeV"), num(vs, "T_reh_at_N_star_max_GeV")},
 					TMaxGeV:        num(vs, "T_max_GeV"),
+					NsAtNStar:      [2]float64{num(vs, "n_s_at_N_star_min"), num(vs, "n_s_at_N_star_max")},
+					RAtNStar:       [2]float64{num(vs, "r_at_N_star_min"), num(vs, "r_at_N_star_max")},
 				}
 			}
 		case nodes.CompareStage:
@@ -120,6 +128,8 @@ func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
 			res.NSigma = opt(vs, "n_sigma")
 			res.Inside68 = flag(vs, "inside_68")
 			res.Inside95 = flag(vs, "inside_95")
+			res.DetectionSigma = opt(vs, "detection_sigma")
+			res.Detected5Sigma = flag(vs, "detected_5sigma")
 		}
 	}
 	return res

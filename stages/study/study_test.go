@@ -133,3 +133,45 @@ func TestShippedConstraint(t *testing.T) {
 		t.Error("a constraint without a citation was accepted")
 	}
 }
+
+// The shipped sets hold the published numbers exactly (quoted here from
+// the papers, with the status of each in shared/reference/published-values.md).
+func TestShippedSetsHoldPublishedNumbers(t *testing.T) {
+	cases := []struct {
+		name           string
+		ns, sigNs, r95 float64
+		source         string
+	}{
+		// Balkenhol et al. 2025, arXiv:2512.10613, abstract: "n_s = 0.9682 ± 0.0032, r < 0.034 (95%)".
+		{"cmb-combined-2025", 0.9682, 0.0032, 0.034, "Balkenhol et al. 2025 abstract"},
+		// Same abstract, with DESI BAO: "n_s = 0.9728 ± 0.0029".
+		{"cmb-combined-desi-2025", 0.9728, 0.0029, 0.034, "Balkenhol et al. 2025 abstract"},
+		// Planck 2018 VI, arXiv:1807.06209, Table 2: 0.9649 ± 0.0042; BK XIII, arXiv:2110.00483: r_0.05 < 0.036.
+		{"planck2018-bk18", 0.9649, 0.0042, 0.036, "Planck 2018 VI; BICEP/Keck 2021"},
+		// Louis et al. 2025, arXiv:2503.14452, abstract: "n_s = 0.974 ± 0.003"; r < 0.038 (Calabrese et al. 2025, secondary).
+		{"act-dr6-bk18-2025", 0.974, 0.003, 0.038, "ACT DR6 2025"},
+	}
+	for _, c := range cases {
+		g, err := Shipped(c.name)
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		if g.MeanNs != c.ns || g.SigmaNs != c.sigNs || math.Abs(g.SigmaR*compare.HalfNormal95-c.r95) > 1e-15 || g.Rho != 0 {
+			t.Errorf("%s (%s): holds %+v", c.name, c.source, g)
+		}
+	}
+	forecasts := []struct {
+		name  string
+		sigma float64
+	}{
+		{"litebird", 0.001},           // Ghigna et al. 2024, arXiv:2406.02724: delta r = 0.001
+		{"simons-observatory", 0.003}, // SO 2019, arXiv:1808.07445: sigma(r) = 0.003
+		{"cmb-s4", 0.0005},            // derived from CMB-S4 2022, arXiv:2008.12619: r < 0.001 at 95% if r = 0
+	}
+	for _, c := range forecasts {
+		f, err := ShippedForecast(c.name)
+		if err != nil || f.SigmaR != c.sigma {
+			t.Errorf("forecast %s: %+v %v", c.name, f, err)
+		}
+	}
+}

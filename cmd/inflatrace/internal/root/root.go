@@ -17,12 +17,14 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/graphcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/modelscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/predictcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/reportcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/showcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tagcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tracecmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/verifycmd"
+	"github.com/inflatrace/inflatrace/ledger"
 )
 
 // NewCmd returns the root command with every subcommand.
@@ -54,7 +56,9 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		tracecmd.NewCmd(env, g, nil),
 		verifycmd.NewCmd(env, g, nil),
 		diffcmd.NewCmd(env, g, nil),
-		exportcmd.NewExportCmd(env, g, nil),
+		exportcmd.NewExportCmd(env, g, reportcmd.ArchiveExtra(func() (*ledger.Ledger, error) { return env.OpenLedger(g) })),
+		reportcmd.NewTableCmd(env, g),
+		reportcmd.NewPlotCmd(env, g),
 		exportcmd.NewImportCmd(env, g),
 		graphcmd.NewCmd(env, g, dag.PNG),
 	)

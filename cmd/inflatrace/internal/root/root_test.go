@@ -130,16 +130,17 @@ func TestDemoColdWarmAndOneChange(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	ch := decodeRun(t, out)
-	// Starobinsky and the E-model with alpha = n = 1 are one potential, so
-	// their comparisons share a key and are computed once.
+	// Starobinsky and the E-model with alpha = n = 1 are one potential;
+	// their predictions carry the model's specification, so their
+	// comparisons keep distinct keys and lineages.
 	compareKeys := map[any]bool{}
 	for _, r := range ch.Results {
 		if r["reheating"] == "instantaneous" {
 			compareKeys[r["key"]] = true
 		}
 	}
-	if len(compareKeys) != 15 || ch.Computed != 16+len(compareKeys) {
-		t.Fatalf("changing g_reh computed %d nodes, want 16 reheat + %d distinct compare nodes (15 expected)", ch.Computed, len(compareKeys))
+	if len(compareKeys) != 16 || ch.Computed != 16+len(compareKeys) {
+		t.Fatalf("changing g_reh computed %d nodes, want 16 reheat + %d distinct compare nodes (16 expected)", ch.Computed, len(compareKeys))
 	}
 	out, _, _ = h.run("show", ch.Run, "--json")
 	var shown struct {
@@ -211,6 +212,23 @@ func TestPredictMatchesRunAndIsRecorded(t *testing.T) {
 	}
 	if runs[1]["config"] != "predict flags" {
 		t.Errorf("oldest run config %v, want the predict run", runs[1]["config"])
+	}
+	// Every recorded result's lineage leads back to its own model, even
+	// where two models predict the same numbers (Starobinsky and the
+	// E-model with alpha = n = 1).
+	out, _, _ = h.run("show", "latest", "--json")
+	var shown struct {
+		Results []struct {
+			Label, Model string
+		} `json:"results"`
+	}
+	if err := json.Unmarshal([]byte(out), &shown); err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range shown.Results {
+		if strings.HasPrefix(r.Label, "Starobinsky") != (r.Model == "starobinsky") {
+			t.Errorf("result %q traces back to model %q", r.Label, r.Model)
+		}
 	}
 	out, _, code = h.run("show", "latest")
 	if code != 0 || !strings.Contains(out, "# results (64)") || !strings.Contains(out, "# configuration") {

@@ -1,0 +1,89 @@
+package root
+
+import (
+	"archive/tar"
+	"bytes"
+	"compress/gzip"
+	"encoding/xml"
+	"image/png"
+	"io"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/figures"
+)
+
+func TestTablePlotAndArchiveContents(t *testing.T) {
+	h := newHarness(t)
+	r := decodeRun(t, h.mustRun("run", h.write("a.toml", studyA), "--json"))
+	tex := h.mustRun("table", r.Run, "--format", "latex", "--digits", "3")
+	if !strings.HasPrefix(tex, "\\begin{tabular}") || !strings.Contains(tex, "\\end{tabular}") || strings.Count(tex, "\\\\") != 1+3 {
+		t.Errorf("LaTeX table:\n%s", tex)
+	}
+	csv := h.mustRun("table", r.Run, "--format", "csv", "--columns", "model,param.alpha,n_s", "--exact")
+	if lines := strings.Split(strings.TrimSpace(csv), "\r\n"); len(lines) != 4 || !strings.HasPrefix(lines[0], "model,") {
+		t.Errorf("CSV table:\n%q", csv)
+	}
+	if _, _, code := h.run("table", r.Run, "--columns", "nonsense"); code == 0 {
+		t.Error("an unknown column was accepted")
+	}
+	dir := filepath.Join(h.dir, "figs")
+	h.mustRun("plot", r.Run, "--out", dir, "--forecast", "litebird")
+	data, err := os.ReadFile(filepath.Join(dir, "ns-r.png"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	img, err := png.Decode(bytes.NewReader(data))
+	if err != nil {
+		t.Fatal(err)
+	}
+	// figures.Width x figures.Height at figures.DPI (6 x 4.5 inches at 150 dpi).
+	if b := img.Bounds(); b.Dx() != 900 || b.Dy() != 675 {
+		t.Errorf("PNG %dx%d, want 900x675", b.Dx(), b.Dy())
+	}
+	if _, err := os.Stat(filepath.Join(dir, "r-alpha.png")); err != nil {
+		t.Errorf("no r against alpha figure for a scan over alpha: %v", err)
+	}
+	svgDir := filepath.Join(h.dir, "svg")
+	h.mustRun("plot", r.Run, "--out", svgDir, "--format", "svg", "--r-scale", "linear")
+	svg, _ := os.ReadFile(filepath.Join(svgDir, "ns-r.svg"))
+	dec := xml.NewDecoder(bytes.NewReader(svg))
+	for {
+		if _, err := dec.Token(); err == io.EOF {
+			break
+		} else if err != nil {
+			t.Fatalf("SVG is not well-formed XML: %v", err)
+		}
+	}
+	_ = figures.DPI
+	// The archive holds the configuration, the results as CSV, JSON and
+	// LaTeX, the figures, the run's ledger and the manifest.
+	arc := filepath.Join(h.dir, "rel.tgz")
+	h.mustRun("export", r.Run, "--out", arc)
+	f, _ := os.Open(arc)
+	defer f.Close()
+	gz, err := gzip.NewReader(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tr := tar.NewReader(gz)
+	var names []string
+	for {
+		hdr, err := tr.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		names = append(names, hdr.Name)
+	}
+	sort.Strings(names)
+	want := "config.toml,figures/ns-r.png,figures/r-alpha.png,ledger.db,manifest.json,results.csv,results.json,results.tex"
+	if strings.Join(names, ",") != want {
+		t.Errorf("archive holds %v, want %s", names, want)
+	}
+}
