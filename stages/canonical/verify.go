@@ -15,7 +15,20 @@ type Settings struct {
 	Tol float64
 	// Quad controls the quadrature of sqrt(K); default relative 1e-13.
 	Quad *num.QuadSettings
+	// NumericalMapTol is the largest accepted deviation of a numerical
+	// map from the independent quadrature, relative to max(1, |phi|);
+	// default NumericalMapFactor times the map's own relative accuracy
+	// (kinetic.Map.RelTol, 1e-13 by default, so 1e-10).
+	NumericalMapTol float64
 }
+
+// NumericalMapFactor: a numerical map is accepted when it agrees with the
+// independent quadrature to this many times its own relative accuracy.
+// The two integrals are each accurate to about 1e-13; near a pole of K the
+// rounding of x itself limits both (the phi-width of one ulp of x, about
+// 1e-11 relative at the closest sampled distance, 1e-6 of the domain),
+// and the factor covers that.
+const NumericalMapFactor = 1000
 
 // Report is what Verify measured.
 type Report struct {
@@ -27,26 +40,44 @@ type Report struct {
 	InverseDev float64 // max |x(phi(x)) - x| / max(1, |x|)
 	PotDev     float64 // max relative deviation of V(x) from V(phi(x))
 	SlopeDev   float64 // max relative deviation of V_x/sqrt(K) from dV/dphi
+	// Numerical is set when the map is computed numerically
+	// (model.NativeField.Map); then MapTol is the tolerance applied to
+	// MapDev and CurvatureDev compares d2V/dphi2 with the chain rule
+	// V_xx/K - V_x K_x/(2 K^2) from the kinetic function's jet.
+	Numerical    bool
+	MapTol       float64
+	CurvatureDev float64
 }
 
 // sampleFractions are the positions, as fractions of the canonical range,
-// at which the map is checked.
-var sampleFractions = []float64{0.01, 0.03, 0.07, 0.12, 0.2, 0.3, 0.4, 0.5}
+// at which the map is checked; numerical maps are also checked at
+// numericalFractions, up to the top of the range, between and beyond the
+// analytic sample.
+var (
+	sampleFractions    = []float64{0.01, 0.03, 0.07, 0.12, 0.2, 0.3, 0.4, 0.5}
+	numericalFractions = []float64{1e-6, 1e-3, 0.045, 0.25, 0.6, 0.7, 0.8, 0.9, 0.97, 0.999}
+)
 
-// Verify checks the analytic canonical map of m numerically. For a
-// canonical model it reports the identity. Otherwise, at field values
-// spread over the canonical range, it compares
+// Verify checks the canonical map of m numerically. For a canonical model
+// it reports the identity. Otherwise, at field values spread over the
+// canonical range, it compares
 //   - phi(x) with the quadrature of sqrt(K) from the origin to x,
 //   - the inverse map's round trip,
 //   - V(x) with the canonical V(phi(x)), and V_x/sqrt(K) with dV/dphi,
 //
-// and fails when any deviation exceeds the tolerance.
+// and fails when any deviation exceeds the tolerance. A numerical map
+// (model.NativeField.Map, from model.NewNative) is checked the same way
+// against this independent adaptive quadrature, at more points (up to the
+// top of the canonical range), with the tolerance NumericalMapTol suited
+// to the map's precision, and d2V/dphi2 is also compared with the chain
+// rule from the kinetic function's jet (CurvatureDev, to Tol).
 func Verify(m *model.Model, s *Settings) (Report, error) {
 	if m.Native == nil {
 		return Report{Canonical: true, Field: "phi", MapFormula: "phi (canonical kinetic term)"}, nil
 	}
 	tol := 1e-9
 	quad := &num.QuadSettings{RelTol: 1e-13, AbsTol: 1e-14}
+	numTol := 0.0
 	if s != nil {
 		if s.Tol > 0 {
 			tol = s.Tol
@@ -54,9 +85,16 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 		if s.Quad != nil {
 			quad = s.Quad
 		}
+		numTol = s.NumericalMapTol
 	}
 	nf := m.Native
-	rep := Report{Field: nf.Name, MapFormula: nf.MapFormula}
+	rep := Report{Field: nf.Name, MapFormula: nf.MapFormula, Numerical: nf.Map != nil, MapTol: tol}
+	if rep.Numerical {
+		rep.MapTol = NumericalMapFactor * nf.Map.RelTol()
+		if numTol > 0 {
+			rep.MapTol = numTol
+		}
+	}
 	sqrtK := func(x float64) float64 { return math.Sqrt(nf.Kinetic(x)) }
 	phi0 := nf.ToCanonical(nf.Origin)
 	for _, phi := range samplePoints(m) {
@@ -85,18 +123,23 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 		vc := m.At(pa)
 		rep.PotDev = math.Max(rep.PotDev, relDev(vn.V, vc.V))
 		rep.SlopeDev = math.Max(rep.SlopeDev, relDev(vn.D1/math.Sqrt(k), vc.D1))
+		if rep.Numerical && nf.KineticJet != nil {
+			kj := nf.KineticJet(num.Var(x))
+			rep.CurvatureDev = math.Max(rep.CurvatureDev, relDev(vn.D2/kj.V-vn.D1*kj.D1/(2*kj.V*kj.V), vc.D2))
+		}
 		rep.Points++
 	}
 	if rep.Points == 0 {
 		return rep, fmt.Errorf("%s: no field value in the range could be checked", m.Describe())
 	}
 	for _, d := range []struct {
-		what string
-		v    float64
-	}{{"canonical map against the quadrature of sqrt(K)", rep.MapDev}, {"inverse map", rep.InverseDev},
-		{"potential in the two fields", rep.PotDev}, {"potential slope in the two fields", rep.SlopeDev}} {
-		if !(d.v <= tol) {
-			return rep, fmt.Errorf("%s: %s deviates by %.3g (tolerance %g)", m.Describe(), d.what, d.v, tol)
+		what   string
+		v, tol float64
+	}{{"canonical map against the quadrature of sqrt(K)", rep.MapDev, rep.MapTol}, {"inverse map", rep.InverseDev, tol},
+		{"potential in the two fields", rep.PotDev, tol}, {"potential slope in the two fields", rep.SlopeDev, tol},
+		{"potential curvature in the two fields", rep.CurvatureDev, tol}} {
+		if !(d.v <= d.tol) {
+			return rep, fmt.Errorf("%s: %s deviates by %.3g (tolerance %g)", m.Describe(), d.what, d.v, d.tol)
 		}
 	}
 	return rep, nil
@@ -111,6 +154,11 @@ func samplePoints(m *model.Model) []float64 {
 	var out []float64
 	for _, t := range sampleFractions {
 		out = append(out, m.Lo+(m.Hi-m.Lo)*t)
+	}
+	if nf.Map != nil {
+		for _, t := range numericalFractions {
+			out = append(out, m.Lo+(m.Hi-m.Lo)*t)
+		}
 	}
 	for _, edge := range []float64{nf.Lo, nf.Hi} {
 		if math.IsInf(edge, 0) {

@@ -10,12 +10,14 @@ var inf = math.Inf(1)
 var noDefault = math.NaN()
 
 func init() {
-	register(tModel)
-	register(eModel)
-	register(starobinsky)
-	register(powerLaw)
-	register(natural)
-	register(hilltop)
+	for _, f := range []*Family{
+		tModel, eModel, starobinsky, powerLaw, natural, hilltop,
+		hilltopQuadratic, hilltopQuartic, colemanWeinberg,
+		brane, exponentialPlateau, loop, radionGauge,
+		higgs, twoPlateau,
+	} {
+		register(f)
+	}
 }
 
 var alphaParam = Param{Name: "alpha", Unit: "1", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
@@ -33,7 +35,9 @@ var tModel = &Family{
 	Formula:   "V = V0 tanh^(2n)(phi/sqrt(6 alpha)) = V0 (chi^2/(6 alpha))^n on the disk chi^2 < 6 alpha",
 	Reference: "Kallosh & Linde 2013, JCAP 07 (2013) 002, arXiv:1306.5220; Kallosh, Linde & Roest 2013, JHEP 11 (2013) 198, arXiv:1311.0472",
 	Params:    []Param{alphaParam, nParam},
-	build: func(p map[string]float64) *Model {
+	Kind:      KindPlateau,
+	Tags:      []string{"alpha-attractor", "supergravity"},
+	build: func(p map[string]float64) (*Model, error) {
 		alpha, n := p["alpha"], p["n"]
 		s := math.Sqrt(6 * alpha)
 		return &Model{
@@ -55,7 +59,7 @@ var tModel = &Family{
 				FromCanonical: func(phi float64) float64 { return s * math.Tanh(phi/s) },
 				MapFormula:    "chi = sqrt(6 alpha) tanh(phi/sqrt(6 alpha))",
 			},
-		}
+		}, nil
 	},
 }
 
@@ -71,7 +75,9 @@ var eModel = &Family{
 	Formula:   "V = V0 (1 - exp(-sqrt(2/(3 alpha)) phi))^(2n) = V0 (1 - 1/y)^(2n) on the half-plane y > 0",
 	Reference: "Kallosh, Linde & Roest 2013, JHEP 11 (2013) 198, arXiv:1311.0472",
 	Params:    []Param{alphaParam, nParam},
-	build: func(p map[string]float64) *Model {
+	Kind:      KindPlateau,
+	Tags:      []string{"alpha-attractor", "supergravity"},
+	build: func(p map[string]float64) (*Model, error) {
 		alpha, n := p["alpha"], p["n"]
 		b := math.Sqrt(2 / (3 * alpha))
 		return &Model{
@@ -88,7 +94,7 @@ var eModel = &Family{
 				FromCanonical: func(phi float64) float64 { return math.Exp(b * phi) },
 				MapFormula:    "y = exp(sqrt(2/(3 alpha)) phi)",
 			},
-		}
+		}, nil
 	},
 }
 
@@ -103,13 +109,15 @@ var starobinsky = &Family{
 	Name:      "starobinsky",
 	Formula:   "V = V0 (1 - exp(-sqrt(2/3) phi))^2",
 	Reference: "Starobinsky 1980, Phys. Lett. B 91, 99",
-	build: func(p map[string]float64) *Model {
+	Kind:      KindPlateau,
+	Tags:      []string{"modified gravity"},
+	build: func(p map[string]float64) (*Model, error) {
 		b := math.Sqrt(2.0 / 3)
 		return &Model{
 			Family: "starobinsky", Params: p,
 			V:  func(phi num.Jet) num.Jet { return plateauExp(phi, b, 2) },
 			Lo: 0, Hi: 30 / b,
-		}
+		}, nil
 	},
 }
 
@@ -119,14 +127,16 @@ var powerLaw = &Family{
 	Formula:   "V = V0 phi^p",
 	Reference: "Linde 1983, Phys. Lett. B 129, 177",
 	Params: []Param{{Name: "p", Unit: "1", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
-		Doc: "power of the monomial"}},
-	build: func(p map[string]float64) *Model {
+		Doc: "power of the monomial (2/3, 1 and 4/3 for axion monodromy)"}},
+	Kind: KindLargeField,
+	Tags: []string{"chaotic", "axion monodromy"},
+	build: func(p map[string]float64) (*Model, error) {
 		q := p["p"]
 		return &Model{
 			Family: "power-law", Params: p,
 			V:  func(phi num.Jet) num.Jet { return num.PowConst(phi, q) },
 			Lo: 0, Hi: 200 * math.Sqrt(q),
-		}
+		}, nil
 	},
 }
 
@@ -140,13 +150,15 @@ var natural = &Family{
 	Reference: "Freese, Frieman & Olinto 1990, PRL 65, 3233; Adams, Bond, Freese, Frieman & Olinto 1993, PRD 47, 426, hep-ph/9207245",
 	Params: []Param{{Name: "f", Unit: "M_p", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
 		Doc: "axion decay constant"}},
-	build: func(p map[string]float64) *Model {
+	Kind: KindSmallField,
+	Tags: []string{"axion"},
+	build: func(p map[string]float64) (*Model, error) {
 		f := p["f"]
 		return &Model{
 			Family: "natural", Params: p,
 			V:  func(phi num.Jet) num.Jet { return num.AddConst(num.Cos(num.Scale(1/f, phi)), 1) },
 			Lo: 0, Hi: math.Pi * f,
-		}
+		}, nil
 	},
 }
 
@@ -161,7 +173,9 @@ var hilltop = &Family{
 		{Name: "mu", Unit: "M_p", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault, Doc: "hilltop width"},
 		{Name: "p", Unit: "1", Min: 2, Max: inf, MaxOpen: true, Default: 2, Doc: "power (2 quadratic, 4 quartic)"},
 	},
-	build: func(p map[string]float64) *Model {
+	Kind: KindSmallField,
+	Tags: []string{"hilltop"},
+	build: func(p map[string]float64) (*Model, error) {
 		mu, q := p["mu"], p["p"]
 		return &Model{
 			Family: "hilltop", Params: p,
@@ -169,6 +183,6 @@ var hilltop = &Family{
 				return num.Sub(num.Const(1), num.PowConst(num.Scale(1/mu, phi), q))
 			},
 			Lo: 0, Hi: mu,
-		}
+		}, nil
 	},
 }

@@ -20,13 +20,39 @@ type Param struct {
 	Doc     string
 }
 
+// Kinds of potential, for listing: the shape of V where the observable
+// scales leave the horizon, after the classification by the sign of V” of
+// Dodelson, Kinney & Kolb 1997 (PRD 56, 3207, astro-ph/9702166; from
+// memory), with plateaus set apart.
+const (
+	// KindLargeField: V” > 0, monomial-like, the field rolls towards a
+	// minimum at the origin from super-Planckian values.
+	KindLargeField = "large-field"
+	// KindSmallField: V” < 0, the field rolls off a maximum (or down a
+	// logarithm) towards a minimum.
+	KindSmallField = "small-field"
+	// KindPlateau: V approaches a constant at large field, V” < 0.
+	KindPlateau = "plateau"
+)
+
 // Family is a built-in model family.
 type Family struct {
 	Name      string
 	Formula   string // the potential, in words
 	Reference string // a published reference for the family
 	Params    []Param
-	build     func(p map[string]float64) *Model
+	// Kind is one of KindLargeField, KindSmallField, KindPlateau.
+	Kind string
+	// Tags are short labels for listing ("alpha-attractor", "string
+	// theory", "numerical canonical map", ...).
+	Tags []string
+	// AsymptoticW, when not nil, returns the equation of state w the
+	// family implies for the field's late-time evolution, long after
+	// inflation, for parameters as validated by New (Model.Params); ok is
+	// false where the family has no such attractor. Nil for families whose
+	// field ends in a minimum.
+	AsymptoticW func(params map[string]float64) (w float64, ok bool)
+	build       func(p map[string]float64) (*Model, error)
 }
 
 // ParamNames returns the declared parameter names in order.
@@ -87,7 +113,9 @@ func (f *Family) New(given map[string]float64) (*Model, error) {
 		}
 		p[d.Name] = v
 	}
-	return f.build(p), nil
+	// A build fails only where the model is computed (a numerical canonical
+	// map); its error already names the family.
+	return f.build(p)
 }
 
 func (d Param) check(v float64) error {

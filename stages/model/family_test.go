@@ -3,27 +3,41 @@ package model
 import (
 	"errors"
 	"math"
+	"regexp"
 	"sort"
 	"strings"
 	"testing"
 )
 
 // The built-in families and their declared parameters, as documented in
-// families.go (alpha-attractors: Kallosh, Linde & Roest 2013,
-// arXiv:1311.0472; others as cited there).
+// families.go and the catalogue files (alpha-attractors: Kallosh, Linde &
+// Roest 2013, arXiv:1311.0472; others as cited there). Every family has a
+// formula, a reference with a year, a kind and at least one tag.
 func TestRegistry(t *testing.T) {
-	want := []string{"e-model", "hilltop", "natural", "power-law", "starobinsky", "t-model"}
+	params := map[string]string{
+		"t-model": "alpha,n", "e-model": "alpha,n", "starobinsky": "",
+		"power-law": "p", "natural": "f", "hilltop": "mu,p",
+		"hilltop-quadratic": "mu", "hilltop-quartic": "mu", "coleman-weinberg": "v",
+		"brane": "mu,p", "exponential-plateau": "q", "loop": "alpha", "radion-gauge": "alpha",
+		"higgs": "xi", "two-plateau": "alpha,gamma",
+	}
+	var want []string
+	for n := range params {
+		want = append(want, n)
+	}
+	sort.Strings(want)
 	got := Names()
 	if strings.Join(got, ",") != strings.Join(want, ",") {
 		t.Errorf("Names() = %v, want %v", got, want)
 	}
+	if len(got) < 14 {
+		t.Errorf("%d families, the catalogue promises at least 14", len(got))
+	}
 	if !sort.StringsAreSorted(got) {
 		t.Errorf("Names() not sorted: %v", got)
 	}
-	params := map[string]string{
-		"t-model": "alpha,n", "e-model": "alpha,n", "starobinsky": "",
-		"power-law": "p", "natural": "f", "hilltop": "mu,p",
-	}
+	kinds := map[string]bool{KindLargeField: true, KindSmallField: true, KindPlateau: true}
+	year := regexp.MustCompile(`(19|20)[0-9][0-9]`)
 	for name, ps := range params {
 		f, err := Lookup(name)
 		if err != nil {
@@ -32,8 +46,19 @@ func TestRegistry(t *testing.T) {
 		if got := strings.Join(f.ParamNames(), ","); got != ps {
 			t.Errorf("%s: parameters %q, want %q", name, got, ps)
 		}
-		if f.Reference == "" || f.Formula == "" {
-			t.Errorf("%s: missing formula or reference", name)
+		if f.Reference == "" || f.Formula == "" || !year.MatchString(f.Reference) {
+			t.Errorf("%s: missing formula or dated reference (%q)", name, f.Reference)
+		}
+		if !kinds[f.Kind] || len(f.Tags) == 0 {
+			t.Errorf("%s: kind %q, tags %v", name, f.Kind, f.Tags)
+		}
+		for _, p := range f.Params {
+			if p.Unit == "" || p.Doc == "" {
+				t.Errorf("%s: parameter %s has no unit or doc", name, p.Name)
+			}
+		}
+		if (f.AsymptoticW != nil) != (name == "two-plateau") {
+			t.Errorf("%s: AsymptoticW set = %v", name, f.AsymptoticW != nil)
 		}
 	}
 }
@@ -69,6 +94,24 @@ func TestParameterValidation(t *testing.T) {
 		{"natural", map[string]float64{"f": -2}, "f", []string{"outside"}},
 		{"hilltop", map[string]float64{"mu": 1, "p": 1.5}, "p", []string{"outside [2, +Inf)"}},
 		{"hilltop", map[string]float64{"mu": 0, "p": 4}, "mu", []string{"outside"}},
+		// The catalogue's range checks: each refuses what makes the
+		// potential ill-defined (a non-positive scale or power, a drop
+		// beyond float64, a coupling beyond what the canonical map resolves).
+		{"hilltop-quadratic", map[string]float64{"mu": -1}, "mu", []string{"outside (0, +Inf)"}},
+		{"hilltop-quartic", nil, "mu", []string{"missing"}},
+		{"hilltop-quartic", map[string]float64{"mu": 1, "p": 4}, "p", []string{"unknown", "allowed: mu"}},
+		{"coleman-weinberg", map[string]float64{"v": 0}, "v", []string{"outside"}},
+		{"brane", map[string]float64{"mu": 1, "p": 0}, "p", []string{"outside (0, +Inf)"}},
+		{"brane", map[string]float64{"mu": math.Inf(1)}, "mu", []string{"not finite"}},
+		{"exponential-plateau", map[string]float64{"q": -0.5}, "q", []string{"outside"}},
+		{"loop", map[string]float64{"alpha": 0}, "alpha", []string{"outside"}},
+		{"radion-gauge", map[string]float64{"alpha": -1}, "alpha", []string{"outside"}},
+		{"higgs", map[string]float64{"xi": 0}, "xi", []string{"outside (0, 1e+10]"}},
+		{"higgs", map[string]float64{"xi": 1e11}, "xi", []string{"outside"}},
+		{"higgs", map[string]float64{"xi": 1e4, "lambda": 0.1}, "lambda", []string{"unknown", "allowed: xi"}},
+		{"two-plateau", map[string]float64{"alpha": 1}, "gamma", []string{"missing"}},
+		{"two-plateau", map[string]float64{"alpha": 1, "gamma": 400}, "gamma", []string{"outside (0, 350]"}},
+		{"two-plateau", map[string]float64{"alpha": -1, "gamma": 100}, "alpha", []string{"outside"}},
 	}
 	for _, c := range cases {
 		f, err := Lookup(c.family)

@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strings"
 
+	"github.com/inflatrace/inflatrace/stages/kinetic"
 	"github.com/inflatrace/inflatrace/stages/num"
 )
 
@@ -27,8 +28,9 @@ type Model struct {
 }
 
 // NativeField is a model's own field variable x with Lagrangian
-// L = ½ K(x) (∂x)² − V(x), and the analytic canonical map phi(x) with
-// dphi/dx = sqrt(K(x)).
+// L = ½ K(x) (∂x)² − V(x), and the canonical map phi(x) with
+// dphi/dx = sqrt(K(x)): analytic for the alpha-attractors, numerical
+// (Map != nil) for models built with NewNative.
 type NativeField struct {
 	// Name of the variable (e.g. "chi" for the Poincaré disk).
 	Name string
@@ -40,11 +42,21 @@ type NativeField struct {
 	Kinetic func(x float64) float64
 	// V is the potential in terms of x (V0 = 1).
 	V func(x num.Jet) num.Jet
-	// ToCanonical is the analytic phi(x); FromCanonical its inverse.
+	// ToCanonical is phi(x); FromCanonical its inverse. For a numerical
+	// map both return NaN outside the range the map resolves.
 	ToCanonical, FromCanonical func(float64) float64
-	// MapFormula is the analytic map in words, recorded with results.
+	// MapFormula is the map in words, recorded with results
+	// (NumericalMapFormula for numerical maps).
 	MapFormula string
+	// KineticJet is K(x) with its derivatives; set for numerical maps
+	// (nil for the analytic families).
+	KineticJet func(x num.Jet) num.Jet
+	// Map is the numerical canonical map; nil when the map is analytic.
+	Map *kinetic.Map
 }
+
+// Numerical reports whether the canonical map is computed numerically.
+func (nf *NativeField) Numerical() bool { return nf.Map != nil }
 
 // At returns V and its first three derivatives at the canonical field phi.
 func (m *Model) At(phi float64) num.Jet { return m.V(num.Var(phi)) }
