@@ -141,11 +141,7 @@ func (Reheat) Run(_ context.Context, params pipeline.Values, inputs []pipeline.V
 	// The model's specification is carried forward so that the outputs,
 	// and so the keys below, of two models that happen to predict the same
 	// numbers stay distinct: each result's lineage is then unambiguous.
-	for k, v := range in {
-		if k == keyFamily || k == keyFieldLo || k == keyFieldHi || strings.HasPrefix(k, ParamPrefix) {
-			out[k] = v
-		}
-	}
+	carrySpec(in, out)
 	return out, nil
 }
 

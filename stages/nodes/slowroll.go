@@ -173,7 +173,7 @@ func (SlowRoll) Run(_ context.Context, params pipeline.Values, inputs []pipeline
 	if sol.End, err = sp.potentialEnd(sol); err != nil {
 		return nil, err
 	}
-	out := specValues(m)
+	out := specOf(m, in)
 	for k, v := range params {
 		out[k] = v
 	}

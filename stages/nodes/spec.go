@@ -55,6 +55,13 @@ func buildModel(vs pipeline.Values) (*model.Model, error) {
 	if err != nil {
 		return nil, err
 	}
+	if family == CustomFamily {
+		c, err := customFrom(vs)
+		if err != nil {
+			return nil, err
+		}
+		return c.Model()
+	}
 	fam, err := model.Lookup(family)
 	if err != nil {
 		return nil, err
@@ -86,8 +93,42 @@ func buildModel(vs pipeline.Values) (*model.Model, error) {
 	return m, nil
 }
 
+// customKeys are the values that specify a user-written model besides its
+// parameters and search range.
+var customKeys = []string{"potential", "kinetic", "field", "origin", "domain_lo", "domain_hi"}
+
+// carrySpec copies the values that specify a model from in to out: the
+// family, its parameters, the search range and, for a user-written model,
+// its expressions and domain.
+func carrySpec(in, out pipeline.Values) {
+	for k, v := range in {
+		if k == keyFamily || k == keyFieldLo || k == keyFieldHi || strings.HasPrefix(k, ParamPrefix) {
+			out[k] = v
+		}
+	}
+	for _, k := range customKeys {
+		if v, ok := in[k]; ok {
+			out[k] = v
+		}
+	}
+}
+
+// specOf returns the specification to carry forward from a node whose
+// input specified m.
+func specOf(m *model.Model, in pipeline.Values) pipeline.Values {
+	if m.Family == CustomFamily {
+		out := pipeline.Values{}
+		carrySpec(in, out)
+		return out
+	}
+	return specValues(m)
+}
+
 // specValues returns the values that specify m, to carry forward.
 func specValues(m *model.Model) pipeline.Values {
+	if m.Family == CustomFamily {
+		panic("specValues: a user-written model's specification is carried with carrySpec")
+	}
 	fam, _ := model.Lookup(m.Family)
 	vs := pipeline.Values{keyFamily: pipeline.String(m.Family)}
 	for _, p := range fam.Params {

@@ -31,6 +31,13 @@ func (Model) Spec() pipeline.Spec {
 			{Name: keyFamily, Kind: pipeline.KindString},
 			{Name: keyFieldLo, Kind: pipeline.KindFloat, Unit: pipeline.UnitMp, Optional: true},
 			{Name: keyFieldHi, Kind: pipeline.KindFloat, Unit: pipeline.UnitMp, Optional: true},
+			// user-written models
+			{Name: "potential", Kind: pipeline.KindString, Optional: true},
+			{Name: "kinetic", Kind: pipeline.KindString, Optional: true},
+			{Name: "field", Kind: pipeline.KindString, Optional: true},
+			{Name: "origin", Kind: pipeline.KindFloat, Unit: pipeline.UnitMp, Optional: true},
+			{Name: "domain_lo", Kind: pipeline.KindFloat, Unit: pipeline.UnitMp, Optional: true},
+			{Name: "domain_hi", Kind: pipeline.KindFloat, Unit: pipeline.UnitMp, Optional: true},
 		},
 		OpenParams: []string{ParamPrefix},
 	}
@@ -41,6 +48,14 @@ func (Model) Run(_ context.Context, params pipeline.Values, _ []pipeline.Values)
 	m, err := buildModel(params)
 	if err != nil {
 		return nil, err
+	}
+	if m.Family == CustomFamily {
+		out := pipeline.Values{}
+		carrySpec(params, out)
+		v, _ := params.Text("potential")
+		out["formula"] = pipeline.String("V = " + v)
+		out["reference"] = pipeline.String("user-written")
+		return out, nil
 	}
 	fam, _ := model.Lookup(m.Family)
 	out := specValues(m)
@@ -73,7 +88,7 @@ func (Canonical) Run(_ context.Context, _ pipeline.Values, inputs []pipeline.Val
 	if err != nil {
 		return nil, err
 	}
-	out := specValues(m)
+	out := specOf(m, in)
 	out["native_field"] = pipeline.String(rep.Field)
 	out["canonical_map"] = pipeline.String(rep.MapFormula)
 	out["map_check_points"] = pipeline.Float(float64(rep.Points), pipeline.UnitNone)

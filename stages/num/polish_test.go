@@ -18,7 +18,7 @@ func TestPolishIsBracketIndependent(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		got = append(got, Polish(f, r.X))
+		got = append(got, Polish(f, r.X, lo, br[1]))
 	}
 	for _, g := range got[1:] {
 		if g != got[0] {
@@ -31,5 +31,27 @@ func TestPolishIsBracketIndependent(t *testing.T) {
 	}
 	if math.Abs(x-math.Sqrt2) > 2e-16 {
 		t.Fatalf("Polish returned %v, want %v", x, math.Sqrt2)
+	}
+}
+
+// Where rounding noise makes |f| smaller on the side away from the root,
+// Polish must still stay at the root and inside its bracket (a case found
+// in a slow-roll end: f = epsilon_V - 1 of V = 1 - (1 - t) e^t,
+// t = 4 ln(phi/10)).
+func TestPolishStaysAtANoisyRoot(t *testing.T) {
+	f := func(phi float64) float64 {
+		tt := 4 * math.Log(phi/10)
+		v := 1 - (1-tt)*math.Exp(tt)
+		dv := tt * math.Exp(tt) * 4 / phi // dV/dphi
+		u := dv / v
+		return 0.5*u*u - 1
+	}
+	r, err := Brent(f, 8, 9.5, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := Polish(f, r.X, 8, 9.5)
+	if math.Abs(x-r.X) > 1e-12*r.X || x < 8 || x > 9.5 {
+		t.Fatalf("Polish moved the root from %v to %v", r.X, x)
 	}
 }

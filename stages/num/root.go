@@ -128,39 +128,46 @@ func BrentF(f func(float64) float64, a, b, fa, fb float64, s *RootSettings) (Roo
 	return res, fmt.Errorf("root search did not converge in %d iterations (x=%g, f=%g)", maxIter, b, fb)
 }
 
-// Polish narrows a root x of f found by a root finder to the pair of
-// adjacent float64 values between which f changes sign, and returns the
-// member of the pair with f >= 0. The search walks away from x in steps
-// that double in units in the last place (up to 2^52 of them), then bisects
-// on the float64 grid. The result no longer depends on the bracket the
-// root finder started from, so the same function gives the same bits. When
-// no sign change is found (f is noisy or has no root nearby), x is
-// returned.
-func Polish(f func(float64) float64, x float64) float64 {
+// Polish narrows a root x of f, found by a root finder inside the bracket
+// [lo, hi], to the pair of adjacent float64 values between which f changes
+// sign, and returns the member of the pair with f >= 0. It looks for the
+// sign change nearest to x, on both sides, in steps that double in units
+// in the last place, never leaving [lo, hi]; then it bisects on the
+// float64 grid. The result no longer depends on the bracket the root
+// finder started from, so the same function gives the same bits. When no
+// sign change is found (f is noisy or has no root nearby), x is returned.
+func Polish(f func(float64) float64, x, lo, hi float64) float64 {
 	fx := f(x)
-	if fx == 0 || math.IsNaN(fx) || math.IsInf(x, 0) {
+	if fx == 0 || math.IsNaN(fx) || math.IsInf(x, 0) || !(lo <= x && x <= hi) {
 		return x
 	}
-	ox := ordered(x)
-	// Walk in the direction in which |f| decreases.
-	dir := int64(1)
-	if fu := f(fromOrdered(ox + 1)); math.Abs(fu) > math.Abs(fx) {
-		dir = -1
-	}
-	a, fa := ox, fx
-	b, fb := ox, fx
-	for step := int64(1); step <= 1<<52; step *= 2 {
-		b = a + dir*step
-		fb = f(fromOrdered(b))
-		if math.IsNaN(fb) {
-			return x
+	ox, olo, ohi := ordered(x), ordered(lo), ordered(hi)
+	var a, b int64 // a holds fx's sign, b the other
+	fa := fx
+	found := false
+	for step := int64(1); step <= 1<<52 && !found; step *= 2 {
+		for _, dir := range []int64{1, -1} {
+			o := ox + dir*step
+			if o < olo || o > ohi {
+				continue
+			}
+			fo := f(fromOrdered(o))
+			if math.IsNaN(fo) {
+				continue
+			}
+			if (fo >= 0) != (fx >= 0) {
+				// The nearest change lies between the last step on this side
+				// and this one.
+				a, b, found = ox+dir*(step/2), o, true
+				if step == 1 {
+					a = ox
+				}
+				fa = f(fromOrdered(a))
+				break
+			}
 		}
-		if (fb >= 0) != (fa >= 0) {
-			break
-		}
-		a, fa = b, fb
 	}
-	if (fb >= 0) == (fa >= 0) {
+	if !found {
 		return x
 	}
 	for a-b > 1 || b-a > 1 {
@@ -168,7 +175,7 @@ func Polish(f func(float64) float64, x float64) float64 {
 		if fm := f(fromOrdered(m)); (fm >= 0) == (fa >= 0) {
 			a, fa = m, fm
 		} else {
-			b, fb = m, fm
+			b = m
 		}
 	}
 	if fa >= 0 {

@@ -132,21 +132,21 @@ func TestPolish(t *testing.T) {
 		{"e^x - 3", func(x float64) float64 { return math.Exp(x) - 3 }, 1.1},
 	}
 	for _, c := range cases {
-		x := Polish(c.f, c.start)
+		x := Polish(c.f, c.start, c.start-1, c.start+1)
 		up, down := math.Nextafter(x, math.Inf(1)), math.Nextafter(x, math.Inf(-1))
 		if !(c.f(x) >= 0) || !(c.f(up) < 0 || c.f(down) < 0) {
 			t.Errorf("%s: Polish = %.17g, f there %g, neighbours %g %g", c.name, x, c.f(x), c.f(down), c.f(up))
 		}
 	}
-	if x := Polish(func(x float64) float64 { return x - 0.5 }, 0.5); x != 0.5 {
+	if x := Polish(func(x float64) float64 { return x - 0.5 }, 0.5, 0, 1); x != 0.5 {
 		t.Errorf("exact root moved to %g", x)
 	}
-	if x := Polish(func(x float64) float64 { return x*x + 1 }, 0.25); x != 0.25 {
+	if x := Polish(func(x float64) float64 { return x*x + 1 }, 0.25, 0, 1); x != 0.25 {
 		t.Errorf("no root: moved to %g", x)
 	}
 	// From either side, the same bits.
 	f := func(x float64) float64 { return x*x*x - 2*x - 5 }
-	if a, b := Polish(f, 2.09), Polish(f, 2.1); a != b {
+	if a, b := Polish(f, 2.09, 2, 3), Polish(f, 2.1, 2, 3); a != b {
 		t.Errorf("Polish from 2.09 gives %.17g, from 2.1 %.17g", a, b)
 	}
 }

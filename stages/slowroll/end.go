@@ -181,6 +181,6 @@ func FindEndWhere(m *model.Model, cond Condition, s *Settings) (End, error) {
 	if err != nil {
 		return End{}, fmt.Errorf("%s: end of inflation: %w", m.Describe(), err)
 	}
-	phi := num.Polish(f, r.X)
+	phi := num.Polish(f, r.X, xs[c.i], xs[c.i+1])
 	return End{Phi: phi, Direction: c.dir, V: m.At(phi).V}, nil
 }

@@ -15,6 +15,7 @@ import (
 
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/compare"
+	"github.com/inflatrace/inflatrace/stages/expr"
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/nodes"
 	"github.com/inflatrace/inflatrace/stages/reheat"
@@ -62,6 +63,8 @@ type ModelSpec struct {
 	Params     map[string]float64 // family parameters
 	ParamText  map[string]string  // each parameter as written ("1/3")
 	FieldRange []float64          // nil for the family's default
+	// Custom is set for a user-written model (Family is "custom").
+	Custom *nodes.Custom
 }
 
 // Describe returns "label(alpha=1/3, n=1)" with parameters as written.
@@ -298,6 +301,9 @@ func number(v any) (float64, string, error) {
 
 // numbers reads a number or a non-empty list of numbers.
 func numbers(v any) ([]float64, []string, error) {
+	if t, ok := v.(map[string]any); ok {
+		return grid(t)
+	}
 	list, ok := v.([]any)
 	if !ok {
 		list = []any{v}
@@ -316,6 +322,69 @@ func numbers(v any) ([]float64, []string, error) {
 			return nil, nil, fmt.Errorf("%s is not finite", t)
 		}
 		xs[i], ts[i] = x, t
+	}
+	return xs, ts, nil
+}
+
+// MaxGridPoints bounds one range's points.
+const MaxGridPoints = 10_000_000
+
+// grid expands a range table: {linear = [a, b], points = n} gives n values
+// evenly spaced from a to b, both included; {log = [a, b], points = n}
+// evenly spaced in log (a, b > 0).
+func grid(t map[string]any) ([]float64, []string, error) {
+	var kind string
+	var ends []any
+	for _, k := range []string{"linear", "log"} {
+		if e, ok := t[k]; ok {
+			if kind != "" {
+				return nil, nil, errors.New("a range is linear or log, not both")
+			}
+			kind = k
+			ends, _ = e.([]any)
+		}
+	}
+	for k := range t {
+		if k != "linear" && k != "log" && k != "points" {
+			return nil, nil, fmt.Errorf("unknown range key %q (a range has linear or log, and points)", k)
+		}
+	}
+	if kind == "" || len(ends) != 2 {
+		return nil, nil, errors.New("a range is {linear = [a, b], points = n} or {log = [a, b], points = n}")
+	}
+	a, _, err := number(ends[0])
+	if err != nil {
+		return nil, nil, err
+	}
+	b, _, err := number(ends[1])
+	if err != nil {
+		return nil, nil, err
+	}
+	n, ok := t["points"].(int64)
+	if !ok || n < 1 || n > MaxGridPoints {
+		return nil, nil, fmt.Errorf("points: want an integer from 1 to %d", MaxGridPoints)
+	}
+	if kind == "log" && !(a > 0 && b > 0) {
+		return nil, nil, fmt.Errorf("a log range needs positive ends, got [%g, %g]", a, b)
+	}
+	xs := make([]float64, n)
+	ts := make([]string, n)
+	for i := range xs {
+		f := 0.0
+		if n > 1 {
+			f = float64(i) / float64(n-1)
+		}
+		switch {
+		case i == 0:
+			xs[i] = a
+		case i == int(n)-1:
+			xs[i] = b
+		case kind == "linear":
+			xs[i] = a + (b-a)*f
+		default:
+			xs[i] = math.Exp(math.Log(a) + (math.Log(b)-math.Log(a))*f)
+		}
+		ts[i] = strconv.FormatFloat(xs[i], 'g', 6, 64)
 	}
 	return xs, ts, nil
 }
@@ -610,6 +679,14 @@ func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
 	var out []ModelSpec
 	for i, t := range tables {
 		path := fmt.Sprintf("model[%d]", i)
+		if _, ok := t["potential"]; ok {
+			ms, err := c.customModels(path, t)
+			if err != nil {
+				return nil, err
+			}
+			out = append(out, ms...)
+			continue
+		}
 		family, ok := t["family"].(string)
 		if !ok || family == "" {
 			return nil, c.errAt(path, "missing family = \"...\" (known: %s)", strings.Join(model.Names(), ", "))
@@ -638,11 +715,6 @@ func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
 		for _, p := range fam.Params {
 			declared[p.Name] = true
 		}
-		type axis struct {
-			name  string
-			xs    []float64
-			texts []string
-		}
 		var axes []axis
 		var keys []string
 		for k := range t {
@@ -651,7 +723,7 @@ func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
 		sort.Strings(keys)
 		for _, k := range keys {
 			switch k {
-			case "family", "label", "field_range":
+			case "family", "label", "field_range", "combine":
 				continue
 			}
 			if !declared[k] {
@@ -667,8 +739,22 @@ func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
 			}
 			axes = append(axes, axis{k, xs, ts})
 		}
-		// Cartesian product, first axis slowest, in sorted parameter order.
+		combine := "product"
+		if v, ok := t["combine"]; ok {
+			combine, _ = v.(string)
+			if combine != "product" && combine != "zip" {
+				return nil, c.errAt(path+".combine", "combine = \"product\" (every combination) or \"zip\" (the i-th values together)")
+			}
+		}
 		combos := []ModelSpec{{Family: family, Label: label, Params: map[string]float64{}, ParamText: map[string]string{}, FieldRange: fieldRange}}
+		if combine == "zip" {
+			var err error
+			if combos, err = c.zip(path, combos[0], axes); err != nil {
+				return nil, err
+			}
+			axes = nil
+		}
+		// Cartesian product, first axis slowest, in sorted parameter order.
 		for _, a := range axes {
 			var next []ModelSpec
 			for _, base := range combos {
@@ -707,6 +793,161 @@ func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
 			}
 			out = append(out, m)
 		}
+	}
+	return out, nil
+}
+
+// customModels reads a user-written model: potential (and optionally
+// kinetic) as expressions of the field, its parameters (every other key,
+// fanned out like a family's), the native domain and origin, and the range
+// searched for inflation (required, in the field).
+func (c *parser) customModels(path string, t map[string]any) ([]ModelSpec, error) {
+	if _, ok := t["family"]; ok {
+		return nil, c.errAt(path+".family", "give a family or a potential, not both")
+	}
+	str := func(key string) (string, error) {
+		v, ok := t[key]
+		if !ok {
+			return "", nil
+		}
+		s, ok := v.(string)
+		if !ok {
+			return "", c.errAt(path+"."+key, "%s must be a string", key)
+		}
+		return s, nil
+	}
+	base := nodes.Custom{Field: "phi", DomainLo: math.Inf(-1), DomainHi: math.Inf(1)}
+	var err error
+	if base.Potential, err = str("potential"); err != nil {
+		return nil, err
+	}
+	if base.Kinetic, err = str("kinetic"); err != nil {
+		return nil, err
+	}
+	if f, err := str("field"); err != nil {
+		return nil, err
+	} else if f != "" {
+		base.Field = f
+	}
+	label, err := str("label")
+	if err != nil {
+		return nil, err
+	}
+	if label == "" {
+		label = nodes.CustomFamily
+	}
+	fr, ok := t["field_range"]
+	if !ok {
+		return nil, c.errAt(path, "a user-written model needs field_range = [lo, hi]: the range of %s searched for inflation", base.Field)
+	}
+	xs, _, err := numbers(fr)
+	if err != nil || len(xs) != 2 || !(xs[0] < xs[1]) {
+		return nil, c.errAt(path+".field_range", "want [lo, hi] with lo < hi")
+	}
+	base.SearchLo, base.SearchHi = xs[0], xs[1]
+	if d, ok := t["domain"]; ok {
+		ds, _, err := numbers(d)
+		if err != nil || len(ds) != 2 || !(ds[0] < ds[1]) {
+			return nil, c.errAt(path+".domain", "want [lo, hi] with lo < hi (the open domain of %s)", base.Field)
+		}
+		base.DomainLo, base.DomainHi = ds[0], ds[1]
+	}
+	if o, ok := t["origin"]; ok {
+		x, _, err := number(o)
+		if err != nil {
+			return nil, c.errAt(path+".origin", "%v", err)
+		}
+		base.Origin = x
+	}
+	reserved := map[string]bool{"potential": true, "kinetic": true, "field": true, "label": true, "field_range": true, "domain": true, "origin": true, "combine": true}
+	var axes []axis
+	var keys []string
+	for k := range t {
+		if !reserved[k] {
+			keys = append(keys, k)
+		}
+	}
+	sort.Strings(keys)
+	for _, k := range keys {
+		vals, texts, err := numbers(t[k])
+		if err != nil {
+			return nil, c.errAt(path+"."+k, "%v", err)
+		}
+		axes = append(axes, axis{k, vals, texts})
+	}
+	seed := ModelSpec{Family: nodes.CustomFamily, Label: label, Params: map[string]float64{}, ParamText: map[string]string{}, FieldRange: xs}
+	combos := []ModelSpec{seed}
+	if comb, _ := t["combine"].(string); comb == "zip" {
+		if combos, err = c.zip(path, seed, axes); err != nil {
+			return nil, err
+		}
+	} else {
+		for _, a := range axes {
+			var next []ModelSpec
+			for _, b := range combos {
+				for j, x := range a.xs {
+					m := b
+					m.Params, m.ParamText = cloneF(b.Params), cloneS(b.ParamText)
+					m.Params[a.name], m.ParamText[a.name] = x, a.texts[j]
+					next = append(next, m)
+				}
+			}
+			combos = next
+		}
+	}
+	for i := range combos {
+		cu := base
+		cu.Params = combos[i].Params
+		combos[i].Custom = &cu
+	}
+	// Names and syntax do not depend on the values: one compile checks all.
+	if err := nodes.CompileCustom(*combos[0].Custom); err != nil {
+		key := "potential"
+		if strings.HasPrefix(err.Error(), "kinetic") {
+			key = "kinetic"
+		}
+		msg := err.Error()
+		var se *expr.SyntaxError
+		if errors.As(err, &se) {
+			msg += "\n" + se.Caret()
+		}
+		return nil, c.errAt(path+"."+key, "%s", msg)
+	}
+	return combos, nil
+}
+
+// axis is one fanned-out model parameter.
+type axis struct {
+	name  string
+	xs    []float64
+	texts []string
+}
+
+// zip pairs the i-th values of every list-valued parameter; single values
+// go with every point.
+func (c *parser) zip(path string, base ModelSpec, axes []axis) ([]ModelSpec, error) {
+	n := 1
+	for _, a := range axes {
+		if len(a.xs) > 1 {
+			if n > 1 && len(a.xs) != n {
+				return nil, c.errAt(path+"."+a.name, "combine = \"zip\" needs lists of one length: %s has %d values, another %d", a.name, len(a.xs), n)
+			}
+			n = len(a.xs)
+		}
+	}
+	out := make([]ModelSpec, n)
+	for i := range out {
+		m := base
+		m.Params = cloneF(base.Params)
+		m.ParamText = cloneS(base.ParamText)
+		for _, a := range axes {
+			j := 0
+			if len(a.xs) > 1 {
+				j = i
+			}
+			m.Params[a.name], m.ParamText[a.name] = a.xs[j], a.texts[j]
+		}
+		out[i] = m
 	}
 	return out, nil
 }

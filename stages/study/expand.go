@@ -11,7 +11,13 @@ func (s *Study) Graph() (*pipeline.Graph, error) {
 	g := &pipeline.Graph{}
 	for _, m := range s.Models {
 		label := m.Describe()
-		mp, err := nodes.ModelParams(m.Family, m.Params, m.FieldRange)
+		var mp pipeline.Values
+		var err error
+		if m.Custom != nil {
+			mp, err = nodes.CustomParams(*m.Custom)
+		} else {
+			mp, err = nodes.ModelParams(m.Family, m.Params, m.FieldRange)
+		}
 		if err != nil {
 			return nil, err
 		}

@@ -12,6 +12,8 @@ type Result struct {
 	Label          string             `json:"label"`
 	Model          string             `json:"model"`
 	Params         map[string]float64 `json:"params"`
+	Potential      string             `json:"potential,omitempty"` // a user-written model's V
+	Kinetic        string             `json:"kinetic,omitempty"`   // and K
 	Method         string             `json:"method,omitempty"`
 	Reheating      string             `json:"reheating,omitempty"`
 	NStar          float64            `json:"N_star"`
@@ -86,6 +88,8 @@ func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
 		switch l.Stage {
 		case nodes.ModelStage:
 			res.Model, _ = vs.Text("family")
+			res.Potential, _ = vs.Text("potential")
+			res.Kinetic, _ = vs.Text("kinetic")
 			for n, v := range vs {
 				if p, ok := strings.CutPrefix(n, nodes.ParamPrefix); ok {
 					res.Params[p] = v.Float

@@ -175,3 +175,42 @@ func TestShippedSetsHoldPublishedNumbers(t *testing.T) {
 		}
 	}
 }
+
+func TestGridsAndZip(t *testing.T) {
+	base := "[[reheating]]\nhistory = \"fixed-efolds\"\nN_star = 55\n[[constraint]]\nuse = \"cmb-combined-2025\"\n"
+	s, err := Parse("g.toml", []byte(base+"[[model]]\nfamily = \"t-model\"\nalpha = {log = [0.01, 100], points = 5}\nn = {linear = [1, 2], points = 3}\n"), ".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(s.Models) != 15 {
+		t.Fatalf("%d models, want 5 x 3", len(s.Models))
+	}
+	// Log spacing: 0.01, 0.1, 1, 10, 100 (to rounding), ends exact.
+	want := []float64{0.01, 0.1, 1, 10, 100}
+	for i, w := range want {
+		if got := s.Models[3*i].Params["alpha"]; math.Abs(got-w) > 1e-12*w {
+			t.Errorf("alpha[%d] = %v, want %v", i, got, w)
+		}
+	}
+	if s.Models[1].Params["n"] != 1.5 {
+		t.Errorf("linear midpoint %v, want 1.5", s.Models[1].Params["n"])
+	}
+	z, err := Parse("z.toml", []byte(base+"[[model]]\nfamily = \"t-model\"\ncombine = \"zip\"\nalpha = [1, 2, 3]\nn = [1, 2, 3]\n"), ".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(z.Models) != 3 || z.Models[2].Params["alpha"] != 3 || z.Models[2].Params["n"] != 3 {
+		t.Fatalf("zip gave %d models: %+v", len(z.Models), z.Models)
+	}
+	for _, bad := range []string{
+		"alpha = {log = [0, 1], points = 3}",
+		"alpha = {linear = [1, 2]}",
+		"alpha = {linear = [1, 2], points = 3, step = 1}",
+		"combine = \"zip\"\nalpha = [1, 2]\nn = [1, 2, 3]",
+		"combine = \"cross\"\nalpha = 1",
+	} {
+		if _, err := Parse("b.toml", []byte(base+"[[model]]\nfamily = \"t-model\"\n"+bad+"\n"), "."); err == nil {
+			t.Errorf("accepted %q", bad)
+		}
+	}
+}
