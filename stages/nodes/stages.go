@@ -61,6 +61,13 @@ func (Model) Run(_ context.Context, params pipeline.Values, _ []pipeline.Values)
 	out := specValues(m)
 	out["formula"] = pipeline.String(fam.Formula)
 	out["reference"] = pipeline.String(fam.Reference)
+	if fam.AsymptoticW != nil {
+		// The equation of state the family implies after inflation, on its
+		// far tail (a dark-energy plateau), recorded with the model.
+		if w, ok := fam.AsymptoticW(m.Params); ok {
+			out["w_asymptotic"] = pipeline.Float(w, pipeline.UnitNone)
+		}
+	}
 	return out, nil
 }
 

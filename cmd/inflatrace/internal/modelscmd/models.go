@@ -51,10 +51,12 @@ type Param struct {
 
 // Family is the JSON shape of a family.
 type Family struct {
-	Name      string  `json:"name"`
-	Formula   string  `json:"formula"`
-	Reference string  `json:"reference"`
-	Params    []Param `json:"params"`
+	Name      string   `json:"name"`
+	Kind      string   `json:"kind"`
+	Tags      []string `json:"tags,omitempty"`
+	Formula   string   `json:"formula"`
+	Reference string   `json:"reference"`
+	Params    []Param  `json:"params"`
 }
 
 func finite(x float64) *float64 {
@@ -69,7 +71,7 @@ func Catalogue() []Family {
 	var out []Family
 	for _, n := range model.Names() {
 		f, _ := model.Lookup(n)
-		fam := Family{Name: f.Name, Formula: f.Formula, Reference: f.Reference, Params: []Param{}}
+		fam := Family{Name: f.Name, Kind: f.Kind, Tags: f.Tags, Formula: f.Formula, Reference: f.Reference, Params: []Param{}}
 		for _, p := range f.Params {
 			fam.Params = append(fam.Params, Param{Name: p.Name, Unit: p.Unit, Min: finite(p.Min), Max: finite(p.Max),
 				MinOpen: p.MinOpen, MaxOpen: p.MaxOpen, Default: finite(p.Default), Doc: p.Doc, Interval: p.Interval()})
@@ -98,7 +100,7 @@ func Run(_ context.Context, o *Options) error {
 		if len(ps) == 0 {
 			ps = []string{"-"}
 		}
-		rows[i] = []string{f.Name, strings.Join(ps, "; "), f.Formula, f.Reference}
+		rows[i] = []string{f.Name, f.Kind, strings.Join(ps, "; "), f.Formula, f.Reference}
 	}
-	return o.Env.Table(o.Env.Stdout, []string{"family", "parameters", "potential", "reference"}, rows)
+	return o.Env.Table(o.Env.Stdout, []string{"family", "kind", "parameters", "potential", "reference"}, rows)
 }

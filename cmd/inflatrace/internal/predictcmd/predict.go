@@ -34,6 +34,11 @@ type Options struct {
 	FieldRange []float64
 	Method     string
 	End        string
+	Potential  string
+	Kinetic    string
+	Field      string
+	Domain     []float64
+	Origin     float64
 	JSON       bool
 }
 
@@ -44,10 +49,12 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 		run = Run
 	}
 	cmd := &cobra.Command{
-		Use:   "predict --family NAME [--param k=v]... [--efolds N | --instantaneous]",
+		Use:   "predict (--family NAME | --potential EXPR [--kinetic EXPR] --field-range lo,hi) [--param k=v]... [--efolds N | --instantaneous]",
 		Short: "Predict one model without a configuration file (and record it)",
 		Example: `  inflatrace predict --family e-model --param alpha=1 --efolds 55 --json
-  inflatrace predict --family t-model --param alpha=7/3 --instantaneous`,
+  inflatrace predict --family t-model --param alpha=7/3 --instantaneous
+  inflatrace predict --potential "(chi^2/(6*a))" --kinetic "1/(1-chi^2/(6*a))^2" --field chi \
+      --domain=-2.449,2.449 --field-range 0.01,2.4489 --param a=1 --efolds 55`,
 		Args: cobra.NoArgs,
 		RunE: func(c *cobra.Command, _ []string) error {
 			if c.Flags().Changed("efolds") && opts.Efolds <= 0 {
@@ -67,7 +74,11 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 	f.StringVar(&opts.Method, "method", "first", "slow-roll method: first, second or exact")
 	f.StringVar(&opts.End, "end", "", "end of inflation: epsilon_V=1, epsilon_H=1 (second, exact) or eta_V=1 (default: epsilon_V=1 at first order, epsilon_H=1 otherwise)")
 	f.BoolVar(&opts.JSON, "json", false, "print the result as one JSON object")
-	_ = cmd.MarkFlagRequired("family")
+	f.StringVar(&opts.Potential, "potential", "", "a user-written potential V(field), e.g. \"(1 - exp(-sqrt(2/3)*phi))^2\" (instead of --family)")
+	f.StringVar(&opts.Kinetic, "kinetic", "", "a user-written kinetic function K(field); the canonical field is computed numerically")
+	f.StringVar(&opts.Field, "field", "phi", "the field's name in --potential and --kinetic")
+	f.Float64SliceVar(&opts.Domain, "domain", nil, "the open domain lo,hi of the field (with --kinetic; default unbounded)")
+	f.Float64Var(&opts.Origin, "origin", 0, "the field value where the canonical field is 0 (with --kinetic)")
 	return cmd
 }
 
@@ -89,7 +100,23 @@ func (o *Options) Config() (string, error) {
 		b.WriteString("[[reheating]]\nhistory = \"instantaneous\"\n\n")
 	}
 	fmt.Fprintf(&b, "[[constraint]]\nuse = %s\n\n", strconv.Quote(o.Constraint))
-	fmt.Fprintf(&b, "[[model]]\nfamily = %s\n", strconv.Quote(o.Family))
+	switch {
+	case (o.Family == "") == (o.Potential == ""):
+		return "", errors.New("give --family or --potential (one of them)")
+	case o.Family != "":
+		fmt.Fprintf(&b, "[[model]]\nfamily = %s\n", strconv.Quote(o.Family))
+	default:
+		fmt.Fprintf(&b, "[[model]]\npotential = %s\nfield = %s\n", strconv.Quote(o.Potential), strconv.Quote(o.Field))
+		if o.Kinetic != "" {
+			fmt.Fprintf(&b, "kinetic = %s\norigin = %s\n", strconv.Quote(o.Kinetic), tomlFloat(o.Origin))
+		}
+		if o.Domain != nil {
+			if len(o.Domain) != 2 {
+				return "", errors.New("--domain: want lo,hi")
+			}
+			fmt.Fprintf(&b, "domain = [%s, %s]\n", tomlFloat(o.Domain[0]), tomlFloat(o.Domain[1]))
+		}
+	}
 	seen := map[string]bool{}
 	params := append([]string(nil), o.Params...)
 	sort.Strings(params)
