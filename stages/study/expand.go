@@ -87,3 +87,17 @@ func (s *Study) expandHistories(g *pipeline.Graph, label string, sr nodes.SlowRo
 	}
 	return nil
 }
+
+// Shard keeps the i-th of n deterministic shares of the study's model
+// points (1 <= i <= n): the points whose index in expansion order is
+// i-1 modulo n. Every point belongs to exactly one shard, and the shares
+// do not depend on anything but the configuration.
+func (s *Study) Shard(i, n int) {
+	var kept []ModelSpec
+	for k, m := range s.Models {
+		if k%n == i-1 {
+			kept = append(kept, m)
+		}
+	}
+	s.Models = kept
+}

@@ -15,6 +15,7 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/diffcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/exportcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/graphcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/mergecmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/modelscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/predictcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/reportcmd"
@@ -57,6 +58,7 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		verifycmd.NewCmd(env, g, nil),
 		diffcmd.NewCmd(env, g, nil),
 		exportcmd.NewExportCmd(env, g, reportcmd.ArchiveExtra(func() (*ledger.Ledger, error) { return env.OpenLedger(g) })),
+		mergecmd.NewCmd(env, g),
 		reportcmd.NewTableCmd(env, g),
 		reportcmd.NewPlotCmd(env, g),
 		exportcmd.NewImportCmd(env, g),

@@ -6,6 +6,7 @@ package runcmd
 import (
 	"context"
 	"errors"
+	"fmt"
 
 	"github.com/spf13/cobra"
 
@@ -20,6 +21,7 @@ type Options struct {
 	Config  string
 	Jobs    int
 	JSON    bool
+	Shard   string // "I/N": evaluate the I-th of N deterministic shares
 }
 
 // NewCmd returns the run command; run is called with the parsed options
@@ -43,6 +45,7 @@ the ledger is reused, not recomputed. Results go to stdout, progress to stderr.`
 	}
 	cmd.Flags().IntVarP(&opts.Jobs, "jobs", "j", 0, "nodes evaluated at once (default: the number of CPUs)")
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print one JSON object: run, computed, reused, failed, results")
+	cmd.Flags().StringVar(&opts.Shard, "shard", "", "evaluate only share I of N (I/N, 1 <= I <= N): model points i with i mod N = I-1")
 	return cmd
 }
 
@@ -65,6 +68,14 @@ func Run(ctx context.Context, o *Options) error {
 	s, err := study.Load(o.Config)
 	if err != nil {
 		return app.Usage(err)
+	}
+	if o.Shard != "" {
+		var i, n int
+		if _, err := fmt.Sscanf(o.Shard, "%d/%d", &i, &n); err != nil || n < 1 || i < 1 || i > n || fmt.Sprintf("%d/%d", i, n) != o.Shard {
+			return app.Usage(fmt.Errorf("--shard %q: want I/N with 1 <= I <= N", o.Shard))
+		}
+		s.Shard(i, n)
+		s.File += fmt.Sprintf(" [shard %d/%d]", i, n) // recorded as the run's config path
 	}
 	out, err := o.Env.ExecuteStudy(ctx, o.Globals, s, o.Jobs)
 	if out == nil {
