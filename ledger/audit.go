@@ -2,7 +2,6 @@ package ledger
 
 import (
 	"context"
-	"database/sql"
 	"errors"
 	"fmt"
 
@@ -25,7 +24,7 @@ type Problem struct {
 // were written. It changes nothing.
 func (l *Ledger) Audit(ctx context.Context) ([]Problem, error) {
 	var out []Problem
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		rows, err := tx.QueryContext(ctx, "SELECT key FROM nodes ORDER BY key")
 		if err != nil {
 			return err

@@ -221,12 +221,53 @@ func checkOwner(ctx context.Context, db *sql.DB) error {
 	return nil
 }
 
+// qtx is a transaction whose statements are prepared once per query text
+// and reused for the rest of the transaction: a batch of a thousand nodes
+// runs the same few statements thousands of times, and preparing each
+// anew would cost more than running it.
+type qtx struct {
+	*sql.Tx
+	stmts map[string]*sql.Stmt
+}
+
+func (q *qtx) stmt(ctx context.Context, query string) (*sql.Stmt, error) {
+	if s, ok := q.stmts[query]; ok {
+		return s, nil
+	}
+	s, err := q.Tx.PrepareContext(ctx, query)
+	if err != nil {
+		return nil, err
+	}
+	q.stmts[query] = s
+	return s, nil
+}
+
+// ExecContext runs a prepared statement.
+func (q *qtx) ExecContext(ctx context.Context, query string, args ...any) (sql.Result, error) {
+	s, err := q.stmt(ctx, query)
+	if err != nil {
+		return nil, err
+	}
+	return s.ExecContext(ctx, args...)
+}
+
+// QueryRowContext runs a prepared single-row query. A preparation error
+// surfaces through the returned row's Scan.
+func (q *qtx) QueryRowContext(ctx context.Context, query string, args ...any) *sql.Row {
+	s, err := q.stmt(ctx, query)
+	if err != nil {
+		return q.Tx.QueryRowContext(ctx, query, args...)
+	}
+	return s.QueryRowContext(ctx, args...)
+}
+
 // inTx runs fn in one transaction, committing only if fn succeeds.
-func (l *Ledger) inTx(ctx context.Context, fn func(*sql.Tx) error) error {
-	tx, err := l.db.BeginTx(ctx, nil)
+func (l *Ledger) inTx(ctx context.Context, fn func(*qtx) error) error {
+	sqlTx, err := l.db.BeginTx(ctx, nil)
 	if err != nil {
 		return fmt.Errorf("begin transaction: %w", err)
 	}
+	tx := &qtx{Tx: sqlTx, stmts: map[string]*sql.Stmt{}}
 	defer tx.Rollback()
 	if err := fn(tx); err != nil {
 		return err

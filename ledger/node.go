@@ -54,7 +54,7 @@ func scanNode(s scanner, extra ...any) (pipeline.NodeRecord, error) {
 
 // completeNode loads a scanned node's inputs and checks that the stored
 // description is still the one its key and fields say.
-func completeNode(ctx context.Context, tx *sql.Tx, rec *pipeline.NodeRecord) error {
+func completeNode(ctx context.Context, tx *qtx, rec *pipeline.NodeRecord) error {
 	rows, err := tx.QueryContext(ctx,
 		"SELECT position, input_key, input_stage, input_output_hash FROM node_inputs WHERE key = ? ORDER BY position", string(rec.Key))
 	if err != nil {
@@ -85,7 +85,7 @@ func completeNode(ctx context.Context, tx *sql.Tx, rec *pipeline.NodeRecord) err
 }
 
 // loadNode reads one node of any status, with its inputs.
-func loadNode(ctx context.Context, tx *sql.Tx, key pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
+func loadNode(ctx context.Context, tx *qtx, key pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
 	row := tx.QueryRowContext(ctx, "SELECT "+nodeColumns+" FROM nodes n WHERE n.key = ?", string(key))
 	rec, err := scanNode(row)
 	if errors.Is(err, sql.ErrNoRows) {

@@ -21,7 +21,7 @@ const newestFirst = "ORDER BY r.started_at DESC, r.rowid DESC"
 // Runs lists every run, newest first, with counts of what each did.
 func (l *Ledger) Runs(ctx context.Context) ([]RunSummary, error) {
 	out := []RunSummary{}
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		rows, err := tx.QueryContext(ctx, `SELECT r.id, r.started_at, r.finished_at, r.status, r.tool_version, r.config_path, r.config_hash,
 			(SELECT count(*) FROM run_nodes rn WHERE rn.run_id = r.id AND rn.action = 'computed'),
 			(SELECT count(*) FROM run_nodes rn WHERE rn.run_id = r.id AND rn.action = 'reused'),
@@ -78,7 +78,7 @@ func runTimes(started string, finished sql.NullString) (time.Time, time.Time, er
 // ErrAmbiguous and lists them.
 func (l *Ledger) ResolveRun(ctx context.Context, ref string) (pipeline.RunID, error) {
 	var id pipeline.RunID
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		var err error
 		id, err = resolveRun(ctx, tx, ref)
 		return err
@@ -92,7 +92,7 @@ func (l *Ledger) ResolveRun(ctx context.Context, ref string) (pipeline.RunID, er
 // maxCandidates bounds how many ids an ambiguity error lists.
 const maxCandidates = 10
 
-func resolveRun(ctx context.Context, tx *sql.Tx, ref string) (pipeline.RunID, error) {
+func resolveRun(ctx context.Context, tx *qtx, ref string) (pipeline.RunID, error) {
 	if ref == "" {
 		return "", errors.New("empty run reference")
 	}
@@ -148,7 +148,7 @@ func resolveRun(ctx context.Context, tx *sql.Tx, ref string) (pipeline.RunID, er
 // wraps ErrNotFound.
 func (l *Ledger) Run(ctx context.Context, id pipeline.RunID) (RunDetail, error) {
 	var d RunDetail
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		var err error
 		d, err = readRun(ctx, tx, id)
 		return err
@@ -159,7 +159,7 @@ func (l *Ledger) Run(ctx context.Context, id pipeline.RunID) (RunDetail, error) 
 	return d, nil
 }
 
-func readRun(ctx context.Context, tx *sql.Tx, id pipeline.RunID) (RunDetail, error) {
+func readRun(ctx context.Context, tx *qtx, id pipeline.RunID) (RunDetail, error) {
 	var (
 		d        RunDetail
 		rid      string
@@ -187,7 +187,7 @@ func readRun(ctx context.Context, tx *sql.Tx, id pipeline.RunID) (RunDetail, err
 // each with what the run did. An unknown run wraps ErrNotFound.
 func (l *Ledger) RunNodes(ctx context.Context, id pipeline.RunID) ([]RunNode, error) {
 	out := []RunNode{}
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
@@ -231,7 +231,7 @@ func (l *Ledger) RunNodes(ctx context.Context, id pipeline.RunID) ([]RunNode, er
 // run wraps ErrNotFound.
 func (l *Ledger) RunResults(ctx context.Context, id pipeline.RunID) ([]pipeline.ResultRef, error) {
 	out := []pipeline.ResultRef{}
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
@@ -266,7 +266,7 @@ func (l *Ledger) Node(ctx context.Context, key pipeline.KeyID) (pipeline.NodeRec
 		rec   pipeline.NodeRecord
 		found bool
 	)
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		var err error
 		rec, found, err = loadNode(ctx, tx, key)
 		return err
@@ -288,7 +288,7 @@ const maxLineageDepth = 1000
 // deterministic. An unknown key wraps ErrNotFound.
 func (l *Ledger) Lineage(ctx context.Context, key pipeline.KeyID) ([]pipeline.NodeRecord, error) {
 	var out []pipeline.NodeRecord
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		var n int
 		if err := tx.QueryRowContext(ctx, "SELECT count(*) FROM nodes WHERE key = ?", string(key)).Scan(&n); err != nil {
 			return err
@@ -348,7 +348,7 @@ func (l *Ledger) ResolveKey(ctx context.Context, ref string) (pipeline.KeyID, er
 	}
 	full := pipeline.HashPrefix + hexPart
 	var keys []string
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		rows, err := tx.QueryContext(ctx, "SELECT key FROM nodes WHERE substr(key, 1, length(?1)) = ?1 ORDER BY key LIMIT 11", full)
 		if err != nil {
 			return err

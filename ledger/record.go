@@ -30,7 +30,7 @@ func (l *Ledger) beginRun(ctx context.Context, info pipeline.RunInfo) error {
 	if want := pipeline.Sum([]byte(info.ConfigText)); info.ConfigHash != want {
 		return fmt.Errorf("%w: config hash: expected %s (hash of the configuration text), found %s", ErrIntegrity, want, info.ConfigHash)
 	}
-	return l.inTx(ctx, func(tx *sql.Tx) error {
+	return l.inTx(ctx, func(tx *qtx) error {
 		var n int
 		if err := tx.QueryRowContext(ctx, "SELECT count(*) FROM runs WHERE id = ?", string(info.ID)).Scan(&n); err != nil {
 			return err
@@ -56,7 +56,7 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 		rec   pipeline.NodeRecord
 		found bool
 	)
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		var err error
 		rec, found, err = loadNode(ctx, tx, key)
 		return err
@@ -91,7 +91,7 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 func (l *Ledger) RecordNode(ctx context.Context, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
 	err := checkRecord(rec, action)
 	if err == nil {
-		err = l.inTx(ctx, func(tx *sql.Tx) error { return l.recordNode(ctx, tx, run, rec, action) })
+		err = l.inTx(ctx, func(tx *qtx) error { return l.recordNode(ctx, tx, run, rec, action) })
 	}
 	if err != nil {
 		return fmt.Errorf("ledger: record %s node %s in run %s: %w", action, rec.Key, run, err)
@@ -107,7 +107,7 @@ type storedNode struct {
 	description string
 }
 
-func readStored(ctx context.Context, tx *sql.Tx, key pipeline.KeyID) (storedNode, bool, error) {
+func readStored(ctx context.Context, tx *qtx, key pipeline.KeyID) (storedNode, bool, error) {
 	var s storedNode
 	var status, hash string
 	err := tx.QueryRowContext(ctx, "SELECT status, output_hash, stage, description FROM nodes WHERE key = ?", string(key)).
@@ -122,7 +122,7 @@ func readStored(ctx context.Context, tx *sql.Tx, key pipeline.KeyID) (storedNode
 	return s, true, nil
 }
 
-func (l *Ledger) recordNode(ctx context.Context, tx *sql.Tx, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
+func (l *Ledger) recordNode(ctx context.Context, tx *qtx, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
 	if err := requireRunning(ctx, tx, run); err != nil {
 		return err
 	}
@@ -179,7 +179,7 @@ func (l *Ledger) recordNode(ctx context.Context, tx *sql.Tx, run pipeline.RunID,
 }
 
 // requireRunning fails unless run exists and is still running.
-func requireRunning(ctx context.Context, tx *sql.Tx, run pipeline.RunID) error {
+func requireRunning(ctx context.Context, tx *qtx, run pipeline.RunID) error {
 	var status string
 	err := tx.QueryRowContext(ctx, "SELECT status FROM runs WHERE id = ?", string(run)).Scan(&status)
 	if errors.Is(err, sql.ErrNoRows) {
@@ -209,7 +209,7 @@ func rowValues(rec pipeline.NodeRecord) (params, outputs string, err error) {
 
 // insertNode writes a new node row and its inputs. Each input must be an ok
 // node of the named stage with the output hash the record names.
-func (l *Ledger) insertNode(ctx context.Context, tx *sql.Tx, rec pipeline.NodeRecord) error {
+func (l *Ledger) insertNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord) error {
 	params, outputs, err := rowValues(rec)
 	if err != nil {
 		return err
@@ -250,7 +250,7 @@ func (l *Ledger) insertNode(ctx context.Context, tx *sql.Tx, rec pipeline.NodeRe
 // updateNode rewrites the mutable part of a row that is currently failed:
 // to ok with outputs, or to failed with a newer error. The WHERE clause
 // makes "an ok row never changes" hold even if the caller got it wrong.
-func (l *Ledger) updateNode(ctx context.Context, tx *sql.Tx, rec pipeline.NodeRecord) error {
+func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord) error {
 	_, outputs, err := rowValues(rec)
 	if err != nil {
 		return err
@@ -269,7 +269,7 @@ func (l *Ledger) updateNode(ctx context.Context, tx *sql.Tx, rec pipeline.NodeRe
 }
 
 // insertRunNode links a node to a run, as the next node the run touched.
-func insertRunNode(ctx context.Context, tx *sql.Tx, run pipeline.RunID, key pipeline.KeyID, action pipeline.Action, d time.Duration, errText string) error {
+func insertRunNode(ctx context.Context, tx *qtx, run pipeline.RunID, key pipeline.KeyID, action pipeline.Action, d time.Duration, errText string) error {
 	var prev string
 	err := tx.QueryRowContext(ctx, "SELECT action FROM run_nodes WHERE run_id = ? AND key = ?", string(run), string(key)).Scan(&prev)
 	if err == nil {
@@ -278,9 +278,15 @@ func insertRunNode(ctx context.Context, tx *sql.Tx, run pipeline.RunID, key pipe
 	if !errors.Is(err, sql.ErrNoRows) {
 		return fmt.Errorf("read run node: %w", err)
 	}
-	var ordinal int
-	if err := tx.QueryRowContext(ctx, "SELECT coalesce(max(ordinal) + 1, 0) FROM run_nodes WHERE run_id = ?", string(run)).Scan(&ordinal); err != nil {
+	// A bare max() over the (run_id, ordinal) index is answered from the
+	// index's last entry; wrapped in an expression it would scan the run.
+	var last sql.NullInt64
+	if err := tx.QueryRowContext(ctx, "SELECT max(ordinal) FROM run_nodes WHERE run_id = ?", string(run)).Scan(&last); err != nil {
 		return fmt.Errorf("next ordinal: %w", err)
+	}
+	ordinal := 0
+	if last.Valid {
+		ordinal = int(last.Int64) + 1
 	}
 	if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal)
 		VALUES (?, ?, ?, ?, ?, ?)`, string(run), string(key), string(action), int64(d), errText, ordinal); err != nil {
@@ -293,7 +299,7 @@ func insertRunNode(ctx context.Context, tx *sql.Tx, run pipeline.RunID, key pipe
 // Each must name an ok node that the run computed or reused, and no
 // ordinal may be recorded twice.
 func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results []pipeline.ResultRef) error {
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
 		}
@@ -340,7 +346,7 @@ func (l *Ledger) finishRun(ctx context.Context, run pipeline.RunID, status pipel
 	if finished.IsZero() {
 		return errors.New("finish time is zero")
 	}
-	return l.inTx(ctx, func(tx *sql.Tx) error {
+	return l.inTx(ctx, func(tx *qtx) error {
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
 		}

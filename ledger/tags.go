@@ -22,7 +22,7 @@ func (l *Ledger) Tag(ctx context.Context, run pipeline.RunID, name string, move 
 	if !tagName.MatchString(name) || name == Latest {
 		return fmt.Errorf("ledger: tag %q: want a letter followed by letters, digits, '.', '_' or '-' (and not %q)", name, Latest)
 	}
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		if _, err := readRun(ctx, tx, run); err != nil {
 			return err
 		}
@@ -51,7 +51,7 @@ func (l *Ledger) Tag(ctx context.Context, run pipeline.RunID, name string, move 
 // TagsOf returns the names of a run, sorted.
 func (l *Ledger) TagsOf(ctx context.Context, run pipeline.RunID) ([]string, error) {
 	var out []string
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		rows, err := tx.QueryContext(ctx, "SELECT name FROM tags WHERE run_id = ? ORDER BY name", string(run))
 		if err != nil {
 			return err
@@ -73,7 +73,7 @@ func (l *Ledger) TagsOf(ctx context.Context, run pipeline.RunID) ([]string, erro
 }
 
 // taggedRun returns the run a tag names, if it is one.
-func taggedRun(ctx context.Context, tx *sql.Tx, name string) (pipeline.RunID, bool, error) {
+func taggedRun(ctx context.Context, tx *qtx, name string) (pipeline.RunID, bool, error) {
 	var id string
 	err := tx.QueryRowContext(ctx, "SELECT run_id FROM tags WHERE name = ?", name).Scan(&id)
 	if errors.Is(err, sql.ErrNoRows) {

@@ -2,7 +2,6 @@ package ledger
 
 import (
 	"context"
-	"database/sql"
 	"errors"
 	"fmt"
 	"os"
@@ -86,7 +85,7 @@ func (l *Ledger) read(ctx context.Context, ids []pipeline.RunID) (*snapshot, err
 // nothing is written.
 func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 	var rep MergeReport
-	err := l.inTx(ctx, func(tx *sql.Tx) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
 		// Inputs refer to nodes inserted in the same transaction, in any
 		// order: check foreign keys at commit.
 		if _, err := tx.ExecContext(ctx, "PRAGMA defer_foreign_keys = ON"); err != nil {
@@ -216,7 +215,7 @@ func (s *snapshot) topological() ([]pipeline.NodeRecord, error) {
 	return out, nil
 }
 
-func insertFinishedRun(ctx context.Context, tx *sql.Tx, d RunDetail) error {
+func insertFinishedRun(ctx context.Context, tx *qtx, d RunDetail) error {
 	if want := pipeline.Sum([]byte(d.ConfigText)); d.ConfigHash != want {
 		return fmt.Errorf("%w: run %s: configuration hashes to %s, record says %s", ErrIntegrity, d.ID, want, d.ConfigHash)
 	}

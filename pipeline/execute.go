@@ -24,6 +24,12 @@ type Options struct {
 	// OnNode, if set, is called after each node settles (from the
 	// scheduling goroutine, never concurrently).
 	OnNode func(NodeOutcome)
+	// Batch, when above one and the recorder is a BatchRecorder, writes
+	// nodes in transactions of up to Batch nodes from a writer goroutine
+	// (also flushing whatever is pending every FlushEvery, default 1 s), so
+	// that large scans are not bound by the cost of a commit.
+	Batch      int
+	FlushEvery time.Duration
 }
 
 // NodeOutcome is what happened to one node in a run.
@@ -36,6 +42,8 @@ type NodeOutcome struct {
 	Err        error // the stage's error for a failed node
 	Skipped    bool  // not run because an upstream node failed
 	Duration   time.Duration
+
+	record *Recorded // to be written in a batch
 }
 
 // Report summarises a run.
@@ -116,6 +124,49 @@ type scheduler struct {
 
 	mu      sync.Mutex
 	flights map[KeyID]*flight // nodes of this run by key, for in-run duplicates
+	batched bool              // records go to the writer, not straight to rec
+}
+
+// writer writes batches of records in order from its own goroutine.
+type writer struct {
+	rec  BatchRecorder
+	run  RunID
+	in   chan []Recorded
+	done chan struct{}
+	mu   sync.Mutex
+	err  error
+	ctx  context.Context
+}
+
+func newWriter(ctx context.Context, rec BatchRecorder, run RunID) *writer {
+	w := &writer{rec: rec, run: run, in: make(chan []Recorded, 4), done: make(chan struct{}), ctx: ctx}
+	go func() {
+		defer close(w.done)
+		for b := range w.in {
+			if w.failed() != nil {
+				continue
+			}
+			if err := rec.RecordNodes(ctx, run, b); err != nil {
+				w.mu.Lock()
+				w.err = fmt.Errorf("record a batch of %d nodes: %w", len(b), err)
+				w.mu.Unlock()
+			}
+		}
+	}()
+	return w
+}
+
+func (w *writer) failed() error {
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	return w.err
+}
+
+// close writes what is left and waits.
+func (w *writer) close() error {
+	close(w.in)
+	<-w.done
+	return w.failed()
 }
 
 func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Options) (*Report, error) {
@@ -126,6 +177,27 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 		jobs = 1
 	}
 	s := &scheduler{ctx: ctx, rec: rec, run: run, opts: opts, flights: map[KeyID]*flight{}}
+	var wr *writer
+	var buffered []Recorded
+	lastFlush := opts.Now()
+	flushEvery := opts.FlushEvery
+	if flushEvery <= 0 {
+		flushEvery = time.Second
+	}
+	if br, ok := rec.(BatchRecorder); ok && opts.Batch > 1 {
+		s.batched = true
+		wr = newWriter(context.WithoutCancel(ctx), br, run)
+	}
+	flush := func(force bool) {
+		if wr == nil || len(buffered) == 0 {
+			return
+		}
+		if force || len(buffered) >= opts.Batch || opts.Now().Sub(lastFlush) >= flushEvery {
+			wr.in <- buffered
+			buffered = nil
+			lastFlush = opts.Now()
+		}
+	}
 	pending := make([]int, n)
 	dependents := make([][]int, n)
 	var ready []int
@@ -170,6 +242,10 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 		case o.Action == Failed:
 			rep.Failed++
 		}
+		if o.record != nil {
+			buffered = append(buffered, *o.record)
+			flush(false)
+		}
 		if opts.OnNode != nil {
 			opts.OnNode(o)
 		}
@@ -212,6 +288,11 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 		}
 		d := <-results
 		inflight--
+		if wr != nil && d.err == nil {
+			if err := wr.failed(); err != nil {
+				d.err = err
+			}
+		}
 		if d.err != nil {
 			if firstErr == nil {
 				firstErr = d.err
@@ -223,6 +304,12 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 	}
 	close(work)
 	wg.Wait()
+	if wr != nil {
+		flush(true)
+		if err := wr.close(); err != nil && firstErr == nil {
+			firstErr = err
+		}
+	}
 	if firstErr == nil && settled < n {
 		firstErr = errors.New("graph has nodes that can never run (a cycle or a dangling input)")
 	}
@@ -279,10 +366,13 @@ func (s *scheduler) node(g *Graph, rep *Report, i int) (NodeOutcome, error) {
 			// The run's own time for a reused node is the look-up's.
 			stored.Duration = s.opts.Now().Sub(lookStart)
 			out.Duration = stored.Duration
-			if err := s.rec.RecordNode(s.ctx, s.run, stored, Reused); err != nil {
+			if s.batched {
+				out.record = &Recorded{Node: stored, Action: Reused}
+			} else if err := s.rec.RecordNode(s.ctx, s.run, stored, Reused); err != nil {
 				return out, fmt.Errorf("record reuse of %s (%s): %w", key, nd.Label, err)
 			}
 			f.out = out
+			f.out.record = nil
 			return out, nil
 		}
 	}
@@ -305,10 +395,13 @@ func (s *scheduler) node(g *Graph, rep *Report, i int) (NodeOutcome, error) {
 		out.Action, out.Outputs, out.OutputHash = Computed, outputs, hash
 		nr.Status, nr.Outputs, nr.OutputHash = NodeOK, outputs, hash
 	}
-	if err := s.rec.RecordNode(s.ctx, s.run, nr, out.Action); err != nil {
+	if s.batched {
+		out.record = &Recorded{Node: nr, Action: out.Action}
+	} else if err := s.rec.RecordNode(s.ctx, s.run, nr, out.Action); err != nil {
 		return out, fmt.Errorf("record %s (%s): %w", key, nd.Label, err)
 	}
 	f.out = out
+	f.out.record = nil
 	return out, nil
 }
 

@@ -350,3 +350,60 @@ func BenchmarkExecuteWarm(b *testing.B) {
 		execute(b, rec, g, 2)
 	}
 }
+
+// batchMem is a memRecorder that also takes batches, counting them.
+type batchMem struct {
+	*memRecorder
+	batches int
+	failAt  int // fail the batch with this number (1-based); 0 never
+}
+
+func (b *batchMem) RecordNodes(ctx context.Context, run RunID, recs []Recorded) error {
+	b.mu.Lock()
+	b.batches++
+	n := b.batches
+	b.mu.Unlock()
+	if n == b.failAt {
+		return errors.New("disk full")
+	}
+	for _, r := range recs {
+		if err := b.RecordNode(ctx, run, r.Node, r.Action); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func TestBatchedEqualsUnbatched(t *testing.T) {
+	plain := execute(t, newMem(), wideGraph(t), 2)
+	bm := &batchMem{memRecorder: newMem()}
+	runCounter++
+	rep, err := Execute(context.Background(), bm, RunInfo{ID: RunID(fmt.Sprint("b", runCounter))}, wideGraph(t),
+		Options{Jobs: 2, Tool: "test/1", Now: time.Now, Batch: 50})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if bm.batches < 240/50 || bm.writes != 240 {
+		t.Fatalf("%d batches, %d nodes written; want >= 4 batches and 240 nodes", bm.batches, bm.writes)
+	}
+	for i := range plain.Outcomes {
+		if plain.Outcomes[i].OutputHash != rep.Outcomes[i].OutputHash {
+			t.Fatalf("node %d differs between batched and unbatched runs", i)
+		}
+	}
+	// A warm batched run reuses everything.
+	runCounter++
+	warm, err := Execute(context.Background(), bm, RunInfo{ID: RunID(fmt.Sprint("b", runCounter))}, wideGraph(t),
+		Options{Jobs: 2, Tool: "test/1", Now: time.Now, Batch: 50})
+	if err != nil || warm.Computed != 0 || warm.Reused != 240 {
+		t.Fatalf("warm batched run: %v, computed %d reused %d", err, warm.Computed, warm.Reused)
+	}
+}
+
+func TestBatchStorageErrorStopsRun(t *testing.T) {
+	bm := &batchMem{memRecorder: newMem(), failAt: 1}
+	_, err := Execute(context.Background(), bm, RunInfo{ID: "bf"}, wideGraph(t), Options{Jobs: 2, Tool: "t", Now: time.Now, Batch: 10})
+	if err == nil || bm.status["bf"] != RunFailed {
+		t.Fatalf("err %v, status %s", err, bm.status["bf"])
+	}
+}

@@ -86,3 +86,18 @@ type Recorder interface {
 	// FinishRun closes a run with its final status.
 	FinishRun(ctx context.Context, run RunID, status RunStatus, finished time.Time, errText string) error
 }
+
+// Recorded is one node and what a run did with it, for batched writes.
+type Recorded struct {
+	Node   NodeRecord
+	Action Action
+}
+
+// BatchRecorder is a Recorder that can store many nodes of a run in one
+// transaction. Execute uses it when Options.Batch is above one; a batch is
+// written whole or not at all, so an interrupted run loses at most the
+// nodes of its last unwritten batch, which a re-run recomputes.
+type BatchRecorder interface {
+	Recorder
+	RecordNodes(ctx context.Context, run RunID, batch []Recorded) error
+}

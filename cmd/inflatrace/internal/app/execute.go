@@ -17,6 +17,11 @@ type Outcome struct {
 	Ledger  string
 }
 
+// Batch is the number of nodes written to the ledger per transaction (at
+// most a second apart), so that an interrupted run loses at most that
+// much work.
+const Batch = 500
+
 // ExecuteStudy records and runs a checked study in the ledger with the
 // given parallelism. A run with failed nodes returns its outcome together
 // with a *RunFailedError.
@@ -42,7 +47,7 @@ func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs
 	if jobs < 1 {
 		jobs = e.CPUs
 	}
-	rep, err := pipeline.Execute(ctx, l, info, graph, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now})
+	rep, err := pipeline.Execute(ctx, l, info, graph, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now, Batch: Batch})
 	if err != nil {
 		return nil, err
 	}
