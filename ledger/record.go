@@ -39,10 +39,10 @@ func (l *Ledger) beginRun(ctx context.Context, info pipeline.RunInfo) error {
 			return fmt.Errorf("run %s already exists", info.ID)
 		}
 		_, err := tx.ExecContext(ctx, `INSERT INTO runs
-			(id, started_at, tool_version, config_path, config_text, config_hash, status)
-			VALUES (?, ?, ?, ?, ?, ?, ?)`,
+			(id, started_at, tool_version, config_path, config_text, config_hash, status, owner)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
 			string(info.ID), formatTime(info.Started), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash,
-			string(pipeline.RunRunning))
+			string(pipeline.RunRunning), info.Owner)
 		return err
 	})
 }
@@ -354,4 +354,47 @@ func (l *Ledger) finishRun(ctx context.Context, run pipeline.RunID, status pipel
 			string(status), formatTime(finished), errText, string(run))
 		return err
 	})
+}
+
+// CloseAbandoned marks as failed ("interrupted") every run still recorded
+// as running whose owner alive says is gone (a process killed mid-run),
+// and returns their ids. The nodes such a run recorded stay in the ledger:
+// a re-run reuses them.
+func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bool) ([]pipeline.RunID, error) {
+	var closed []pipeline.RunID
+	err := l.inTx(ctx, func(tx *qtx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT id, owner FROM runs WHERE status = 'running'")
+		if err != nil {
+			return err
+		}
+		type cand struct{ id, owner string }
+		var cs []cand
+		for rows.Next() {
+			var c cand
+			if err := rows.Scan(&c.id, &c.owner); err != nil {
+				rows.Close()
+				return err
+			}
+			cs = append(cs, c)
+		}
+		rows.Close()
+		if err := rows.Err(); err != nil {
+			return err
+		}
+		for _, c := range cs {
+			if c.owner == "" || alive(c.owner) {
+				continue
+			}
+			if _, err := tx.ExecContext(ctx, "UPDATE runs SET status = 'failed', finished_at = ?, error = ? WHERE id = ?",
+				formatTime(l.now()), "interrupted: its process ("+c.owner+") is gone", c.id); err != nil {
+				return err
+			}
+			closed = append(closed, pipeline.RunID(c.id))
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: close abandoned runs: %w", err)
+	}
+	return closed, nil
 }

@@ -46,6 +46,9 @@ type RunInfo struct {
 	ConfigPath  string // as given by the user; informational
 	ConfigText  string // the exact bytes of the configuration
 	ConfigHash  string // prefixed SHA-256 of ConfigText
+	// Owner identifies the process running the run ("host:pid"), so that a
+	// run left running by a killed process can be told from a live one.
+	Owner string
 }
 
 // NodeRecord is everything stored about one node.

@@ -8,6 +8,9 @@ import (
 	"io"
 	"os"
 	"runtime"
+	"strconv"
+	"strings"
+	"syscall"
 	"time"
 
 	"github.com/inflatrace/inflatrace/ledger"
@@ -52,6 +55,34 @@ func System() *Env {
 func isTerminal(f *os.File) bool {
 	st, err := f.Stat()
 	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}
+
+// Owner returns this process's identity, "host:pid", recorded with runs.
+func (e *Env) Owner() string {
+	host, _ := os.Hostname()
+	return fmt.Sprintf("%s:%d", host, os.Getpid())
+}
+
+// Alive reports whether the process of an owner recorded by Owner still
+// runs: on this host, by signalling its pid with signal 0; a process on
+// another host is assumed alive.
+func (e *Env) Alive(owner string) bool {
+	host, pidText, ok := strings.Cut(owner, ":")
+	if !ok {
+		return true
+	}
+	if h, _ := os.Hostname(); h != host {
+		return true
+	}
+	pid, err := strconv.Atoi(pidText)
+	if err != nil || pid <= 0 {
+		return true
+	}
+	if pid == os.Getpid() {
+		return true
+	}
+	err = syscall.Kill(pid, 0)
+	return err == nil || errors.Is(err, syscall.EPERM) // EPERM: alive, another user's
 }
 
 // Globals are the flags every command shares.

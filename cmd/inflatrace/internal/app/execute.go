@@ -42,7 +42,14 @@ func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs
 	}
 	info := pipeline.RunInfo{
 		ID: id, Started: start, ToolVersion: Version,
-		ConfigPath: s.File, ConfigText: string(s.Text), ConfigHash: s.Hash(),
+		ConfigPath: s.File, ConfigText: string(s.Text), ConfigHash: s.Hash(), Owner: e.Owner(),
+	}
+	if closed, err := l.CloseAbandoned(ctx, e.Alive); err != nil {
+		return nil, err
+	} else {
+		for _, c := range closed {
+			fmt.Fprintf(e.Stderr, "run %s was interrupted (its process is gone): marked failed; its recorded nodes are reused\n", c)
+		}
 	}
 	if jobs < 1 {
 		jobs = e.CPUs
