@@ -22,6 +22,7 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/runscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/showcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/slurmcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tagcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tracecmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/verifycmd"
@@ -59,6 +60,7 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		diffcmd.NewCmd(env, g, nil),
 		exportcmd.NewExportCmd(env, g, reportcmd.ArchiveExtra(func() (*ledger.Ledger, error) { return env.OpenLedger(g) })),
 		mergecmd.NewCmd(env, g),
+		slurmcmd.NewCmd(env),
 		reportcmd.NewTableCmd(env, g),
 		reportcmd.NewPlotCmd(env, g),
 		exportcmd.NewImportCmd(env, g),
