@@ -2,6 +2,7 @@ package ledger
 
 import (
 	"context"
+	"database/sql"
 	"fmt"
 
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -18,8 +19,19 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 		}
 	}
 	err := l.inTx(ctx, func(tx *qtx) error {
+		if err := requireRunning(ctx, tx, run); err != nil {
+			return err
+		}
+		bs := &batchState{known: map[pipeline.KeyID]storedNode{}}
+		var last sql.NullInt64
+		if err := tx.QueryRowContext(ctx, "SELECT max(ordinal) FROM run_nodes WHERE run_id = ?", string(run)).Scan(&last); err != nil {
+			return err
+		}
+		if last.Valid {
+			bs.ordinal = int(last.Int64) + 1
+		}
 		for _, b := range batch {
-			if err := l.recordNode(ctx, tx, run, b.Node, b.Action); err != nil {
+			if err := l.recordNodeIn(ctx, tx, run, b.Node, b.Action, bs); err != nil {
 				return fmt.Errorf("node %s (%s): %w", b.Node.Key, b.Action, err)
 			}
 		}

@@ -26,7 +26,8 @@ const applicationID = 0x696e6674
 // Ledger is an open provenance database. Its methods are safe for
 // concurrent use; each exported method runs in one transaction.
 type Ledger struct {
-	db   *sql.DB
+	db   *sql.DB // the writer: one connection, immediate transactions
+	rdb  *sql.DB // readers: several connections, reading in WAL snapshots
 	path string
 	now  func() time.Time
 }
@@ -77,6 +78,13 @@ func Open(path string, opts ...Option) (*Ledger, error) {
 		db.Close()
 		return nil, fmt.Errorf("open ledger %s: %w", path, err)
 	}
+	rdb, err := sql.Open("sqlite3", readDSN(path))
+	if err != nil {
+		db.Close()
+		return nil, fmt.Errorf("open ledger %s for reading: %w", path, err)
+	}
+	rdb.SetMaxOpenConns(4)
+	l.rdb = rdb
 	return l, nil
 }
 
@@ -106,6 +114,9 @@ func (l *Ledger) Path() string { return l.path }
 
 // Close closes the database.
 func (l *Ledger) Close() error {
+	if l.rdb != nil {
+		l.rdb.Close()
+	}
 	if err := l.db.Close(); err != nil {
 		return fmt.Errorf("close ledger %s: %w", l.path, err)
 	}
@@ -143,6 +154,19 @@ func dsn(path string) string {
 	q.Set("_foreign_keys", "1")
 	q.Set("_busy_timeout", fmt.Sprint(BusyTimeout.Milliseconds()))
 	q.Set("_txlock", "immediate")
+	// In WAL mode, NORMAL keeps every commit atomic and the file
+	// consistent after a crash of the process; only a power loss or OS
+	// crash may lose the last commits (which a re-run recomputes). FULL
+	// would add an fsync to every commit.
+	q.Set("_synchronous", "NORMAL")
+	return fileURI(path) + "?" + q.Encode()
+}
+
+// readDSN is the DSN of the reader pool: deferred (read) transactions.
+func readDSN(path string) string {
+	q := url.Values{}
+	q.Set("_foreign_keys", "1")
+	q.Set("_busy_timeout", fmt.Sprint(BusyTimeout.Milliseconds()))
 	return fileURI(path) + "?" + q.Encode()
 }
 
@@ -175,6 +199,13 @@ func checkPragmas(ctx context.Context, db *sql.DB) error {
 	}
 	if busy != BusyTimeout.Milliseconds() {
 		return fmt.Errorf("busy_timeout is %d ms, want %d ms", busy, BusyTimeout.Milliseconds())
+	}
+	var sync int
+	if err := db.QueryRowContext(ctx, "PRAGMA synchronous").Scan(&sync); err != nil {
+		return fmt.Errorf("read synchronous: %w", err)
+	}
+	if sync != 1 {
+		return fmt.Errorf("synchronous is %d, want 1 (NORMAL)", sync)
 	}
 	return nil
 }
@@ -276,6 +307,18 @@ func (l *Ledger) inTx(ctx context.Context, fn func(*qtx) error) error {
 		return fmt.Errorf("commit: %w", err)
 	}
 	return nil
+}
+
+// inReadTx runs fn in a read transaction of the reader pool: a consistent
+// WAL snapshot that does not wait for the writer.
+func (l *Ledger) inReadTx(ctx context.Context, fn func(*qtx) error) error {
+	sqlTx, err := l.rdb.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
+	if err != nil {
+		return fmt.Errorf("begin read transaction: %w", err)
+	}
+	tx := &qtx{Tx: sqlTx, stmts: map[string]*sql.Stmt{}}
+	defer tx.Rollback()
+	return fn(tx)
 }
 
 // timeLayout is RFC 3339 with a fixed nine-digit fraction: any RFC 3339

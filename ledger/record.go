@@ -56,7 +56,7 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 		rec   pipeline.NodeRecord
 		found bool
 	)
-	err := l.inTx(ctx, func(tx *qtx) error {
+	err := l.inReadTx(ctx, func(tx *qtx) error {
 		var err error
 		rec, found, err = loadNode(ctx, tx, key)
 		return err
@@ -122,11 +122,25 @@ func readStored(ctx context.Context, tx *qtx, key pipeline.KeyID) (storedNode, b
 	return s, true, nil
 }
 
+// batchState carries what a batch of RecordNodes already knows: that the
+// run is running, the next ordinal, and the nodes it stored (so their
+// consumers need not read them back).
+type batchState struct {
+	ordinal int
+	known   map[pipeline.KeyID]storedNode
+}
+
 func (l *Ledger) recordNode(ctx context.Context, tx *qtx, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
-	if err := requireRunning(ctx, tx, run); err != nil {
-		return err
+	return l.recordNodeIn(ctx, tx, run, rec, action, nil)
+}
+
+func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action, bs *batchState) error {
+	if bs == nil {
+		if err := requireRunning(ctx, tx, run); err != nil {
+			return err
+		}
 	}
-	old, exists, err := readStored(ctx, tx, rec.Key)
+	old, exists, err := readStoredIn(ctx, tx, rec.Key, bs)
 	if err != nil {
 		return err
 	}
@@ -138,7 +152,7 @@ func (l *Ledger) recordNode(ctx context.Context, tx *qtx, run pipeline.RunID, re
 	case pipeline.Computed:
 		switch {
 		case !exists:
-			if err := l.insertNode(ctx, tx, rec); err != nil {
+			if err := l.insertNodeIn(ctx, tx, rec, bs); err != nil {
 				return err
 			}
 		case old.status == pipeline.NodeOK:
@@ -175,7 +189,30 @@ func (l *Ledger) recordNode(ctx context.Context, tx *qtx, run pipeline.RunID, re
 			return fmt.Errorf("%w: reused node output hash: expected %s (as stored), found %s", ErrIntegrity, old.outputHash, rec.OutputHash)
 		}
 	}
+	if bs != nil {
+		if action == pipeline.Computed {
+			bs.known[rec.Key] = storedNode{status: pipeline.NodeOK, outputHash: rec.OutputHash, stage: rec.Stage, description: rec.Description}
+		}
+		// A second link of the key in this run fails on the primary key.
+		if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal)
+			VALUES (?, ?, ?, ?, ?, ?)`, string(run), string(rec.Key), string(action), int64(rec.Duration), runErr, bs.ordinal); err != nil {
+			return fmt.Errorf("insert run node (a run touches each key once): %w", err)
+		}
+		bs.ordinal++
+		return nil
+	}
 	return insertRunNode(ctx, tx, run, rec.Key, action, rec.Duration, runErr)
+}
+
+// readStoredIn is readStored, answered from the batch when it stored the
+// node itself.
+func readStoredIn(ctx context.Context, tx *qtx, key pipeline.KeyID, bs *batchState) (storedNode, bool, error) {
+	if bs != nil {
+		if s, ok := bs.known[key]; ok {
+			return s, true, nil
+		}
+	}
+	return readStored(ctx, tx, key)
 }
 
 // requireRunning fails unless run exists and is still running.
@@ -210,12 +247,16 @@ func rowValues(rec pipeline.NodeRecord) (params, outputs string, err error) {
 // insertNode writes a new node row and its inputs. Each input must be an ok
 // node of the named stage with the output hash the record names.
 func (l *Ledger) insertNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord) error {
+	return l.insertNodeIn(ctx, tx, rec, nil)
+}
+
+func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, bs *batchState) error {
 	params, outputs, err := rowValues(rec)
 	if err != nil {
 		return err
 	}
 	for i, in := range rec.Inputs {
-		up, ok, err := readStored(ctx, tx, in.Key)
+		up, ok, err := readStoredIn(ctx, tx, in.Key, bs)
 		if err != nil {
 			return err
 		}
