@@ -4,6 +4,7 @@ import (
 	"context"
 	"database/sql"
 	"fmt"
+	"strings"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 )
@@ -30,9 +31,25 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 		if last.Valid {
 			bs.ordinal = int(last.Int64) + 1
 		}
+		if err := prefetch(ctx, tx, batch, bs); err != nil {
+			return err
+		}
 		for _, b := range batch {
 			if err := l.recordNodeIn(ctx, tx, run, b.Node, b.Action, bs); err != nil {
 				return fmt.Errorf("node %s (%s): %w", b.Node.Key, b.Action, err)
+			}
+		}
+		for _, t := range []struct {
+			head string
+			cols int
+			rows [][]any
+		}{
+			{"INSERT INTO nodes (key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at) VALUES ", 11, bs.nodeRows},
+			{"INSERT INTO node_inputs (key, position, input_key, input_stage, input_output_hash) VALUES ", 5, bs.inputRows},
+			{"INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal) VALUES ", 6, bs.linkRows},
+		} {
+			if err := insertRows(ctx, tx, t.head, t.cols, t.rows); err != nil {
+				return err
 			}
 		}
 		return nil
@@ -44,3 +61,75 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 }
 
 var _ pipeline.BatchRecorder = (*Ledger)(nil)
+
+// rowsPerStatement bounds a multi-row INSERT (11 columns x 64 rows stays
+// far below SQLite's limit on bound parameters).
+const rowsPerStatement = 64
+
+// insertRows inserts rows with as few statements as possible.
+func insertRows(ctx context.Context, tx *qtx, head string, cols int, rows [][]any) error {
+	one := "(" + strings.TrimSuffix(strings.Repeat("?, ", cols), ", ") + ")"
+	for len(rows) > 0 {
+		n := min(len(rows), rowsPerStatement)
+		q := head + strings.TrimSuffix(strings.Repeat(one+", ", n), ", ")
+		args := make([]any, 0, n*cols)
+		for _, r := range rows[:n] {
+			args = append(args, r...)
+		}
+		if _, err := tx.ExecContext(ctx, q, args...); err != nil {
+			return fmt.Errorf("%s...: %w", strings.Fields(head)[2], err)
+		}
+		rows = rows[n:]
+	}
+	return nil
+}
+
+// prefetch reads in a few statements which of the batch's nodes and inputs
+// are already stored, so that recording a node does not query for each.
+func prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batchState) error {
+	bs.absent = map[pipeline.KeyID]bool{}
+	seen := map[pipeline.KeyID]bool{}
+	var keys []pipeline.KeyID
+	add := func(k pipeline.KeyID) {
+		if !seen[k] {
+			seen[k] = true
+			keys = append(keys, k)
+		}
+	}
+	for _, b := range batch {
+		add(b.Node.Key)
+		for _, in := range b.Node.Inputs {
+			add(in.Key)
+		}
+	}
+	for len(keys) > 0 {
+		n := min(len(keys), 500)
+		q := "SELECT key, status, output_hash, stage, description FROM nodes WHERE key IN (" + strings.TrimSuffix(strings.Repeat("?, ", n), ", ") + ")"
+		args := make([]any, n)
+		for i, k := range keys[:n] {
+			args[i] = string(k)
+			bs.absent[k] = true
+		}
+		rows, err := tx.QueryContext(ctx, q, args...)
+		if err != nil {
+			return err
+		}
+		for rows.Next() {
+			var key, status, hash string
+			var st storedNode
+			if err := rows.Scan(&key, &status, &hash, &st.stage, &st.description); err != nil {
+				rows.Close()
+				return err
+			}
+			st.status, st.outputHash = pipeline.NodeStatus(status), pipeline.OutputID(hash)
+			bs.known[pipeline.KeyID(key)] = st
+			delete(bs.absent, pipeline.KeyID(key))
+		}
+		rows.Close()
+		if err := rows.Err(); err != nil {
+			return err
+		}
+		keys = keys[n:]
+	}
+	return nil
+}

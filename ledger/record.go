@@ -128,6 +128,9 @@ func readStored(ctx context.Context, tx *qtx, key pipeline.KeyID) (storedNode, b
 type batchState struct {
 	ordinal int
 	known   map[pipeline.KeyID]storedNode
+	absent  map[pipeline.KeyID]bool // keys known not to be stored
+	// Rows to insert at the end of the batch, many per statement.
+	nodeRows, inputRows, linkRows [][]any
 }
 
 func (l *Ledger) recordNode(ctx context.Context, tx *qtx, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
@@ -169,7 +172,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		runErr = rec.Error
 		switch {
 		case !exists:
-			if err := l.insertNode(ctx, tx, rec); err != nil {
+			if err := l.insertNodeIn(ctx, tx, rec, bs); err != nil {
 				return err
 			}
 		case old.status == pipeline.NodeFailed:
@@ -193,11 +196,9 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		if action == pipeline.Computed {
 			bs.known[rec.Key] = storedNode{status: pipeline.NodeOK, outputHash: rec.OutputHash, stage: rec.Stage, description: rec.Description}
 		}
-		// A second link of the key in this run fails on the primary key.
-		if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal)
-			VALUES (?, ?, ?, ?, ?, ?)`, string(run), string(rec.Key), string(action), int64(rec.Duration), runErr, bs.ordinal); err != nil {
-			return fmt.Errorf("insert run node (a run touches each key once): %w", err)
-		}
+		// A second link of the key in this run fails on the primary key
+		// when the rows are inserted.
+		bs.linkRows = append(bs.linkRows, []any{string(run), string(rec.Key), string(action), int64(rec.Duration), runErr, bs.ordinal})
 		bs.ordinal++
 		return nil
 	}
@@ -210,6 +211,9 @@ func readStoredIn(ctx context.Context, tx *qtx, key pipeline.KeyID, bs *batchSta
 	if bs != nil {
 		if s, ok := bs.known[key]; ok {
 			return s, true, nil
+		}
+		if bs.absent[key] {
+			return storedNode{}, false, nil
 		}
 	}
 	return readStored(ctx, tx, key)
@@ -271,11 +275,20 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 			return fmt.Errorf("%w: input %d (%s node %s) output hash: expected %s (as stored), found %s", ErrIntegrity, i, in.Stage, in.Key, up.outputHash, in.Output)
 		}
 	}
+	row := []any{string(rec.Key), rec.Stage, rec.Version, params, rec.Description, outputs, string(rec.OutputHash),
+		string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now())}
+	if bs != nil {
+		bs.nodeRows = append(bs.nodeRows, row)
+		for i, in := range rec.Inputs {
+			bs.inputRows = append(bs.inputRows, []any{string(rec.Key), i, string(in.Key), in.Stage, string(in.Output)})
+		}
+		bs.known[rec.Key] = storedNode{status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, description: rec.Description}
+		delete(bs.absent, rec.Key)
+		return nil
+	}
 	if _, err := tx.ExecContext(ctx, `INSERT INTO nodes
 		(key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
-		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
-		string(rec.Key), rec.Stage, rec.Version, params, rec.Description, outputs, string(rec.OutputHash),
-		string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now())); err != nil {
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`, row...); err != nil {
 		return fmt.Errorf("insert node: %w", err)
 	}
 	for i, in := range rec.Inputs {
