@@ -107,3 +107,18 @@ func RecordedResults(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) (
 	}
 	return out, nil
 }
+
+// LoadRun resolves a run reference (id, prefix, tag or "latest") and reads
+// the run's record and its results from the ledger.
+func LoadRun(ctx context.Context, l *ledger.Ledger, ref string) (ledger.RunDetail, []study.Result, error) {
+	id, err := l.ResolveRun(ctx, ref)
+	if err != nil {
+		return ledger.RunDetail{}, nil, err
+	}
+	run, err := l.Run(ctx, id)
+	if err != nil {
+		return ledger.RunDetail{}, nil, err
+	}
+	results, err := RecordedResults(ctx, l, id)
+	return run, results, err
+}

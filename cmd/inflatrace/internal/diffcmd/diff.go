@@ -52,19 +52,11 @@ re-evaluated, such as a changed stage version, and rounding).`,
 }
 
 func load(ctx context.Context, l *ledger.Ledger, ref string) (provenance.Run, error) {
-	id, err := l.ResolveRun(ctx, ref)
+	d, rs, err := app.LoadRun(ctx, l, ref)
 	if err != nil {
 		return provenance.Run{}, err
 	}
-	d, err := l.Run(ctx, id)
-	if err != nil {
-		return provenance.Run{}, err
-	}
-	ns, err := l.RunNodes(ctx, id)
-	if err != nil {
-		return provenance.Run{}, err
-	}
-	rs, err := app.RecordedResults(ctx, l, id)
+	ns, err := l.RunNodes(ctx, d.ID)
 	if err != nil {
 		return provenance.Run{}, err
 	}

@@ -76,18 +76,11 @@ func Export(ctx context.Context, o *Options, extra Extra) error {
 		return err
 	}
 	defer l.Close()
-	id, err := l.ResolveRun(ctx, o.Run)
+	run, results, err := app.LoadRun(ctx, l, o.Run)
 	if err != nil {
 		return err
 	}
-	run, err := l.Run(ctx, id)
-	if err != nil {
-		return err
-	}
-	results, err := app.RecordedResults(ctx, l, id)
-	if err != nil {
-		return err
-	}
+	id := run.ID
 	dir := o.Out
 	if isTarball(o.Out) {
 		if _, err := os.Stat(o.Out); err == nil {

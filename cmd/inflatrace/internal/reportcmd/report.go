@@ -137,15 +137,7 @@ func Plot(ctx context.Context, o *PlotOptions) error {
 		return err
 	}
 	defer l.Close()
-	id, err := l.ResolveRun(ctx, o.Run)
-	if err != nil {
-		return err
-	}
-	run, err := l.Run(ctx, id)
-	if err != nil {
-		return err
-	}
-	results, err := app.RecordedResults(ctx, l, id)
+	run, results, err := app.LoadRun(ctx, l, o.Run)
 	if err != nil {
 		return err
 	}

@@ -114,19 +114,12 @@ func Run(ctx context.Context, o *Options) error {
 		return err
 	}
 	defer l.Close()
-	id, err := l.ResolveRun(ctx, o.Run)
+	run, results, err := app.LoadRun(ctx, l, o.Run)
 	if err != nil {
 		return err
 	}
-	run, err := l.Run(ctx, id)
-	if err != nil {
-		return err
-	}
+	id := run.ID
 	nodes, err := l.RunNodes(ctx, id)
-	if err != nil {
-		return err
-	}
-	results, err := app.RecordedResults(ctx, l, id)
 	if err != nil {
 		return err
 	}
