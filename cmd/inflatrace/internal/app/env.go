@@ -40,15 +40,16 @@ type Env struct {
 	Random         io.Reader // for run ids
 	CPUs           int
 	// StdoutTerminal reports whether stdout is a terminal (tables are
-	// aligned only then).
-	StdoutTerminal bool
+	// aligned only then); StderrTerminal whether stderr is (a progress bar
+	// is drawn only then).
+	StdoutTerminal, StderrTerminal bool
 }
 
 // System returns the real environment of the process.
 func System() *Env {
 	return &Env{
 		Stdout: os.Stdout, Stderr: os.Stderr, Getenv: os.Getenv, Now: time.Now,
-		Random: rand.Reader, CPUs: runtime.NumCPU(), StdoutTerminal: isTerminal(os.Stdout),
+		Random: rand.Reader, CPUs: runtime.NumCPU(), StdoutTerminal: isTerminal(os.Stdout), StderrTerminal: isTerminal(os.Stderr),
 	}
 }
 

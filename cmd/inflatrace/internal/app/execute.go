@@ -54,7 +54,9 @@ func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs
 	if jobs < 1 {
 		jobs = e.CPUs
 	}
-	rep, err := pipeline.Execute(ctx, l, info, graph, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now, Batch: Batch})
+	onNode, endProgress := e.progress(len(graph.Nodes))
+	rep, err := pipeline.Execute(ctx, l, info, graph, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now, Batch: Batch, OnNode: onNode})
+	endProgress()
 	if err != nil {
 		return nil, err
 	}
