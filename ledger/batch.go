@@ -40,15 +40,17 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 			}
 		}
 		for _, t := range []struct {
-			head string
-			cols int
-			rows [][]any
+			head, tail string
+			cols       int
+			rows       [][]any
 		}{
-			{"INSERT INTO nodes (key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at) VALUES ", 11, bs.nodeRows},
-			{"INSERT INTO node_inputs (key, position, input_key, input_stage, input_output_hash) VALUES ", 5, bs.inputRows},
-			{"INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal) VALUES ", 6, bs.linkRows},
+			{"INSERT INTO nodes (key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at) VALUES ", "", 11, bs.nodeRows},
+			{"INSERT INTO node_inputs (key, position, input_key, input_stage, input_output_hash) VALUES ", "", 5, bs.inputRows},
+			// A run executed in chunks may reuse one node in several: it is
+			// linked once.
+			{"INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal) VALUES ", " ON CONFLICT (run_id, key) DO NOTHING", 6, bs.linkRows},
 		} {
-			if err := insertRows(ctx, tx, t.head, t.cols, t.rows); err != nil {
+			if err := insertRows(ctx, tx, t.head, t.tail, t.cols, t.rows); err != nil {
 				return err
 			}
 		}
@@ -67,11 +69,11 @@ var _ pipeline.BatchRecorder = (*Ledger)(nil)
 const rowsPerStatement = 64
 
 // insertRows inserts rows with as few statements as possible.
-func insertRows(ctx context.Context, tx *qtx, head string, cols int, rows [][]any) error {
+func insertRows(ctx context.Context, tx *qtx, head, tail string, cols int, rows [][]any) error {
 	one := "(" + strings.TrimSuffix(strings.Repeat("?, ", cols), ", ") + ")"
 	for len(rows) > 0 {
 		n := min(len(rows), rowsPerStatement)
-		q := head + strings.TrimSuffix(strings.Repeat(one+", ", n), ", ")
+		q := head + strings.TrimSuffix(strings.Repeat(one+", ", n), ", ") + tail
 		args := make([]any, 0, n*cols)
 		for _, r := range rows[:n] {
 			args = append(args, r...)

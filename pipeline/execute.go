@@ -77,38 +77,88 @@ func (e *StageError) Unwrap() error { return e.Err }
 // status failed and Execute returns the report with a nil error. A storage
 // error or a cancelled context stops the run and is returned.
 func Execute(ctx context.Context, rec Recorder, info RunInfo, g *Graph, opts Options) (*Report, error) {
+	sess, err := Begin(ctx, rec, info, opts)
+	if err != nil {
+		return nil, err
+	}
+	rep, runErr := sess.Execute(ctx, g)
+	status, err := sess.Finish(ctx, runErr)
+	if rep != nil {
+		rep.Status = status
+	}
+	if runErr == nil {
+		runErr = err
+	}
+	return rep, runErr
+}
+
+// Session is one run executed as a sequence of graphs: the chunks of a
+// large scan, each evaluated, recorded and let go before the next is built,
+// so that memory does not grow with the scan. Results are numbered across
+// the chunks in order.
+type Session struct {
+	rec     Recorder
+	info    RunInfo
+	opts    Options
+	ordinal int
+	// Totals accumulates the node counts of every chunk.
+	Totals Report
+}
+
+// Begin records a run as running and returns its session.
+func Begin(ctx context.Context, rec Recorder, info RunInfo, opts Options) (*Session, error) {
 	if opts.Tool == "" || opts.Now == nil {
-		panic("pipeline.Execute: Options.Tool and Options.Now are required")
+		panic("pipeline.Begin: Options.Tool and Options.Now are required")
 	}
 	if err := rec.BeginRun(ctx, info); err != nil {
 		return nil, fmt.Errorf("begin run %s: %w", info.ID, err)
 	}
-	rep, runErr := schedule(ctx, rec, info.ID, g, opts)
-	if runErr == nil {
-		var refs []ResultRef
-		for i, r := range g.Results {
-			// A failed node is never a result.
-			if o := rep.Outcomes[r.Node]; o.Action == Computed || o.Action == Reused {
-				refs = append(refs, ResultRef{Ordinal: i, Label: r.Label, Key: o.Key})
-			}
-		}
-		if err := rec.RecordResults(ctx, info.ID, refs); err != nil {
-			runErr = fmt.Errorf("record results of run %s: %w", info.ID, err)
+	return &Session{rec: rec, info: info, opts: opts, Totals: Report{Run: info.ID}}, nil
+}
+
+// Execute evaluates one graph of the run and records its results. A node
+// reused in several chunks is linked to the run once.
+func (s *Session) Execute(ctx context.Context, g *Graph) (*Report, error) {
+	rep, err := schedule(ctx, s.rec, s.info.ID, g, s.opts)
+	if rep != nil {
+		s.Totals.Computed += rep.Computed
+		s.Totals.Reused += rep.Reused
+		s.Totals.Failed += rep.Failed
+		s.Totals.Skipped += rep.Skipped
+	}
+	if err != nil {
+		return rep, err
+	}
+	var refs []ResultRef
+	for i, r := range g.Results {
+		// A failed node is never a result.
+		if o := rep.Outcomes[r.Node]; o.Action == Computed || o.Action == Reused {
+			refs = append(refs, ResultRef{Ordinal: s.ordinal + i, Label: r.Label, Key: o.Key})
 		}
 	}
+	s.ordinal += len(g.Results)
+	if err := s.rec.RecordResults(ctx, s.info.ID, refs); err != nil {
+		return rep, fmt.Errorf("record results of run %s: %w", s.info.ID, err)
+	}
+	return rep, nil
+}
+
+// Finish closes the run: failed when runErr is set or any node failed or
+// was skipped, succeeded otherwise. It closes the run even when ctx was
+// cancelled.
+func (s *Session) Finish(ctx context.Context, runErr error) (RunStatus, error) {
 	status, msg := RunSucceeded, ""
 	switch {
 	case runErr != nil:
 		status, msg = RunFailed, runErr.Error()
-	case rep.Failed > 0 || rep.Skipped > 0:
-		status, msg = RunFailed, fmt.Sprintf("%d node(s) failed, %d skipped", rep.Failed, rep.Skipped)
+	case s.Totals.Failed > 0 || s.Totals.Skipped > 0:
+		status, msg = RunFailed, fmt.Sprintf("%d node(s) failed, %d skipped", s.Totals.Failed, s.Totals.Skipped)
 	}
-	rep.Status = status
-	// Close the run even when ctx was cancelled.
-	if err := rec.FinishRun(context.WithoutCancel(ctx), info.ID, status, opts.Now(), msg); err != nil && runErr == nil {
-		runErr = fmt.Errorf("finish run %s: %w", info.ID, err)
+	s.Totals.Status = status
+	if err := s.rec.FinishRun(context.WithoutCancel(ctx), s.info.ID, status, s.opts.Now(), msg); err != nil {
+		return status, fmt.Errorf("finish run %s: %w", s.info.ID, err)
 	}
-	return rep, runErr
+	return status, nil
 }
 
 type flight struct {

@@ -101,3 +101,28 @@ func (s *Study) Shard(i, n int) {
 	}
 	s.Models = kept
 }
+
+// Chunks splits the study into studies of at most size model points each,
+// in order (the first holds the first size points, and so on). Their
+// graphs together are the study's graph, results in the same order.
+func (s *Study) Chunks(size int) []*Study {
+	if size < 1 || len(s.Models) <= size {
+		return []*Study{s}
+	}
+	var out []*Study
+	for a := 0; a < len(s.Models); a += size {
+		c := *s
+		c.Models = s.Models[a:min(a+size, len(s.Models))]
+		out = append(out, &c)
+	}
+	return out
+}
+
+// NodeEstimate is the number of nodes the study's graph has at most: per
+// model point, model, canonical and one slow-roll node per method, one
+// reheat node per history and one compare node per constraint set or
+// forecast below each (bands have none).
+func (s *Study) NodeEstimate() int {
+	per := len(s.Constraints) + len(s.SampleSets) + len(s.Forecasts)
+	return len(s.Models) * (2 + len(s.SlowRoll)*(1+len(s.Histories)*(1+per)))
+}

@@ -17,6 +17,11 @@ type Outcome struct {
 	Ledger  string
 }
 
+// ChunkPoints is the number of model points evaluated together: a scan is
+// expanded, run and recorded this many points at a time within one run, so
+// that its memory does not grow with its size.
+var ChunkPoints = 2000
+
 // Batch is the number of nodes written to the ledger per transaction (at
 // most a second apart), so that an interrupted run loses at most that
 // much work.
@@ -26,10 +31,15 @@ const Batch = 500
 // given parallelism. A run with failed nodes returns its outcome together
 // with a *RunFailedError.
 func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs int) (*Outcome, error) {
-	graph, err := s.Graph()
+	chunks := s.Chunks(ChunkPoints)
+	graphs := make([]*pipeline.Graph, 0, 1)
+	// Build the first chunk's graph before touching the ledger: a bad
+	// study is refused with nothing recorded.
+	first, err := chunks[0].Graph()
 	if err != nil {
 		return nil, Usage(fmt.Errorf("%s: %w", s.File, err))
 	}
+	graphs = append(graphs, first)
 	l, err := e.OpenLedger(g)
 	if err != nil {
 		return nil, err
@@ -54,15 +64,52 @@ func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs
 	if jobs < 1 {
 		jobs = e.CPUs
 	}
-	onNode, endProgress := e.progress(len(graph.Nodes))
-	rep, err := pipeline.Execute(ctx, l, info, graph, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now, Batch: Batch, OnNode: onNode})
-	endProgress()
+	onNode, endProgress := e.progress(s.NodeEstimate())
+	sess, err := pipeline.Begin(ctx, l, info, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now, Batch: Batch, OnNode: onNode})
 	if err != nil {
+		endProgress()
 		return nil, err
 	}
-	out := &Outcome{Report: rep, Results: study.Results(graph, rep), Ledger: l.Path()}
+	out := &Outcome{Ledger: l.Path()}
+	var firstErr error
+	nodes := 0
+	var runErr error
+	// Chunk by chunk: each graph is evaluated, recorded and let go.
+	for k, ch := range chunks {
+		graph := first
+		if k > 0 {
+			if graph, err = ch.Graph(); err != nil {
+				runErr = err
+				break
+			}
+		}
+		rep, err := sess.Execute(ctx, graph)
+		if err != nil {
+			runErr = err
+			break
+		}
+		nodes += len(graph.Nodes)
+		out.Results = append(out.Results, study.Results(graph, rep)...)
+		for _, o := range rep.Outcomes {
+			if o.Err != nil && firstErr == nil {
+				firstErr = o.Err
+			}
+		}
+		first = nil
+	}
+	endProgress()
+	status, ferr := sess.Finish(ctx, runErr)
+	if runErr == nil {
+		runErr = ferr
+	}
+	if runErr != nil {
+		return nil, runErr
+	}
+	rep := sess.Totals
+	rep.Status = status
+	out.Report = &rep
 	fmt.Fprintf(e.Stderr, "run %s: %d nodes: %d computed, %d reused, %d failed, %d skipped (ledger %s)\n",
-		id, len(graph.Nodes), rep.Computed, rep.Reused, rep.Failed, rep.Skipped, l.Path())
+		id, nodes, rep.Computed, rep.Reused, rep.Failed, rep.Skipped, l.Path())
 	for _, r := range out.Results {
 		if r.BelowBBN != nil && *r.BelowBBN && r.TRehGeV != nil {
 			fmt.Fprintf(e.Stderr, "flag: %s: T_reh = %.3g GeV is below the nucleosynthesis bound (%.3g GeV unless T_bbn_GeV is set; de Salas et al. 2015, arXiv:1511.00672)\n",
@@ -70,14 +117,7 @@ func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs
 		}
 	}
 	if rep.Failed > 0 {
-		var first error
-		for _, o := range rep.Outcomes {
-			if o.Err != nil {
-				first = o.Err
-				break
-			}
-		}
-		return out, &RunFailedError{Run: id, Failed: rep.Failed, First: first}
+		return out, &RunFailedError{Run: id, Failed: rep.Failed, First: firstErr}
 	}
 	return out, nil
 }
