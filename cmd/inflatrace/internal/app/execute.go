@@ -20,7 +20,7 @@ type Outcome struct {
 // ChunkPoints is the number of model points evaluated together: a scan is
 // expanded, run and recorded this many points at a time within one run, so
 // that its memory does not grow with its size.
-var ChunkPoints = 2000
+var ChunkPoints = 1000
 
 // Batch is the number of nodes written to the ledger per transaction (at
 // most a second apart), so that an interrupted run loses at most that
@@ -31,6 +31,18 @@ const Batch = 500
 // given parallelism. A run with failed nodes returns its outcome together
 // with a *RunFailedError.
 func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs int) (*Outcome, error) {
+	out, err := e.ExecuteStudyTo(ctx, g, s, jobs, nil)
+	return out, err
+}
+
+// Emit receives a run's results chunk by chunk, in order, as they are
+// recorded; the run id is known before the first call.
+type Emit func(run pipeline.RunID, results []study.Result) error
+
+// ExecuteStudyTo is ExecuteStudy streaming the results to emit (when not
+// nil) instead of keeping them in the Outcome, so that a large scan's
+// memory does not grow with it.
+func (e *Env) ExecuteStudyTo(ctx context.Context, g *Globals, s *study.Study, jobs int, emit Emit) (*Outcome, error) {
 	chunks := s.Chunks(ChunkPoints)
 	graphs := make([]*pipeline.Graph, 0, 1)
 	// Build the first chunk's graph before touching the ledger: a bad
@@ -89,7 +101,16 @@ func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs
 			break
 		}
 		nodes += len(graph.Nodes)
-		out.Results = append(out.Results, study.Results(graph, rep)...)
+		results := study.Results(graph, rep)
+		e.flagBBN(results)
+		if emit != nil {
+			if err := emit(id, results); err != nil {
+				runErr = err
+				break
+			}
+		} else {
+			out.Results = append(out.Results, results...)
+		}
 		for _, o := range rep.Outcomes {
 			if o.Err != nil && firstErr == nil {
 				firstErr = o.Err
@@ -110,16 +131,21 @@ func (e *Env) ExecuteStudy(ctx context.Context, g *Globals, s *study.Study, jobs
 	out.Report = &rep
 	fmt.Fprintf(e.Stderr, "run %s: %d nodes: %d computed, %d reused, %d failed, %d skipped (ledger %s)\n",
 		id, nodes, rep.Computed, rep.Reused, rep.Failed, rep.Skipped, l.Path())
-	for _, r := range out.Results {
+	if rep.Failed > 0 {
+		return out, &RunFailedError{Run: id, Failed: rep.Failed, First: firstErr}
+	}
+	return out, nil
+}
+
+// flagBBN warns of results whose reheating temperature is below the
+// nucleosynthesis bound.
+func (e *Env) flagBBN(results []study.Result) {
+	for _, r := range results {
 		if r.BelowBBN != nil && *r.BelowBBN && r.TRehGeV != nil {
 			fmt.Fprintf(e.Stderr, "flag: %s: T_reh = %.3g GeV is below the nucleosynthesis bound (%.3g GeV unless T_bbn_GeV is set; de Salas et al. 2015, arXiv:1511.00672)\n",
 				r.Label, *r.TRehGeV, reheat.DefaultBBNBoundGeV)
 		}
 	}
-	if rep.Failed > 0 {
-		return out, &RunFailedError{Run: id, Failed: rep.Failed, First: firstErr}
-	}
-	return out, nil
 }
 
 // RecordedResults assembles a recorded run's results from the ledger,

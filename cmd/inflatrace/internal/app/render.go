@@ -29,6 +29,22 @@ func (e *Env) Table(w io.Writer, header []string, rows [][]string) error {
 	return tw.Flush()
 }
 
+// TableRows writes more rows of a table already started by Table (each
+// chunk of a streamed run is aligned on its own on a terminal).
+func (e *Env) TableRows(w io.Writer, rows [][]string) error {
+	if !e.StdoutTerminal {
+		for _, r := range rows {
+			fmt.Fprintln(w, strings.Join(r, "\t"))
+		}
+		return nil
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	for _, r := range rows {
+		fmt.Fprintln(tw, strings.Join(r, "\t"))
+	}
+	return tw.Flush()
+}
+
 // JSON writes v as indented JSON.
 func JSON(w io.Writer, v any) error {
 	enc := json.NewEncoder(w)

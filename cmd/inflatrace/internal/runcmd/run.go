@@ -5,12 +5,14 @@ package runcmd
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/study"
 )
 
@@ -77,20 +79,51 @@ func Run(ctx context.Context, o *Options) error {
 		s.Shard(i, n)
 		s.File += fmt.Sprintf(" [shard %d/%d]", i, n) // recorded as the run's config path
 	}
-	out, err := o.Env.ExecuteStudy(ctx, o.Globals, s, o.Jobs)
+	w := o.Env.Stdout
+	wrote := 0
+	emit := func(run pipeline.RunID, rs []study.Result) error {
+		if o.JSON {
+			// One JSON object, written as the results arrive: run first,
+			// the counts after the results.
+			if wrote == 0 {
+				fmt.Fprintf(w, "{\n  \"run\": %q,\n  \"results\": [", run)
+			}
+			for _, r := range rs {
+				b, err := json.MarshalIndent(r, "    ", "  ")
+				if err != nil {
+					return err
+				}
+				sep := ","
+				if wrote == 0 {
+					sep = ""
+				}
+				fmt.Fprintf(w, "%s\n    %s", sep, b)
+				wrote++
+			}
+			return nil
+		}
+		if wrote == 0 {
+			rows := append([][]string{}, app.ResultRows(rs)...)
+			wrote += len(rs)
+			return o.Env.Table(w, app.ResultHeader, rows)
+		}
+		wrote += len(rs)
+		return o.Env.TableRows(w, app.ResultRows(rs))
+	}
+	out, err := o.Env.ExecuteStudyTo(ctx, o.Globals, s, o.Jobs, emit)
 	if out == nil {
+		if o.JSON && wrote > 0 {
+			fmt.Fprintln(w, "\n  ]\n}")
+		}
 		return err
 	}
 	if o.JSON {
 		rep := out.Report
-		if jerr := app.JSON(o.Env.Stdout, Output{Run: string(rep.Run), Status: string(rep.Status),
-			Computed: rep.Computed, Reused: rep.Reused, Failed: rep.Failed, Skipped: rep.Skipped, Results: out.Results}); jerr != nil {
-			return jerr
+		if wrote == 0 {
+			fmt.Fprintf(w, "{\n  \"run\": %q,\n  \"results\": [", rep.Run)
 		}
-		return err
-	}
-	if terr := o.Env.Table(o.Env.Stdout, app.ResultHeader, app.ResultRows(out.Results)); terr != nil {
-		return terr
+		fmt.Fprintf(w, "\n  ],\n  \"status\": %q,\n  \"computed\": %d,\n  \"reused\": %d,\n  \"failed\": %d,\n  \"skipped\": %d\n}\n",
+			rep.Status, rep.Computed, rep.Reused, rep.Failed, rep.Skipped)
 	}
 	return err
 }
