@@ -121,7 +121,8 @@ type Study struct {
 	Constraints []compare.Gaussian
 	SampleSets  []SampleSet
 	Forecasts   []compare.Forecast
-	Models      []ModelSpec
+	// The model points, expanded on demand (see NumModels and ModelAt).
+	points modelPoints
 }
 
 // Hash is the prefixed SHA-256 of the configuration's bytes.
@@ -187,9 +188,11 @@ func Parse(file string, data []byte, dir string) (*Study, error) {
 	if s.Forecasts, err = c.forecasts(fc.Forecast); err != nil {
 		return nil, err
 	}
-	if s.Models, err = c.models(fc.Model); err != nil {
+	groups, err := c.models(fc.Model)
+	if err != nil {
 		return nil, err
 	}
+	s.points = newModelPoints(groups)
 	return s, nil
 }
 
@@ -672,19 +675,19 @@ func (c *parser) forecasts(refs []constraintRef) ([]compare.Forecast, error) {
 	return out, nil
 }
 
-func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
+func (c *parser) models(tables []map[string]any) ([]*modelGroup, error) {
 	if len(tables) == 0 {
 		return nil, c.errAt("", "no [[model]] table: give at least one model")
 	}
-	var out []ModelSpec
+	var out []*modelGroup
 	for i, t := range tables {
 		path := fmt.Sprintf("model[%d]", i)
 		if _, ok := t["potential"]; ok {
-			ms, err := c.customModels(path, t)
+			g, err := c.customModels(path, t)
 			if err != nil {
 				return nil, err
 			}
-			out = append(out, ms...)
+			out = append(out, g)
 			continue
 		}
 		family, ok := t["family"].(string)
@@ -746,31 +749,16 @@ func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
 				return nil, c.errAt(path+".combine", "combine = \"product\" (every combination) or \"zip\" (the i-th values together)")
 			}
 		}
-		combos := []ModelSpec{{Family: family, Label: label, Params: map[string]float64{}, ParamText: map[string]string{}, FieldRange: fieldRange}}
-		if combine == "zip" {
-			var err error
-			if combos, err = c.zip(path, combos[0], axes); err != nil {
-				return nil, err
-			}
-			axes = nil
+		g, err := c.group(path, ModelSpec{Family: family, Label: label, FieldRange: fieldRange}, axes, combine == "zip", nil)
+		if err != nil {
+			return nil, err
 		}
-		// Cartesian product, first axis slowest, in sorted parameter order.
-		for _, a := range axes {
-			var next []ModelSpec
-			for _, base := range combos {
-				for j, x := range a.xs {
-					m := base
-					m.Params = cloneF(base.Params)
-					m.ParamText = cloneS(base.ParamText)
-					m.Params[a.name] = x
-					m.ParamText[a.name] = a.texts[j]
-					next = append(next, m)
-				}
-			}
-			combos = next
-		}
-		for _, m := range combos {
-			full, err := fam.New(m.Params) // checks ranges and fills defaults
+		// Check every value of every parameter (each with the others at
+		// their first values), fill the family's defaults from the first
+		// point and check the field range there; the points themselves are
+		// made on demand.
+		check := func(m ModelSpec) (*model.Model, error) {
+			full, err := fam.New(m.Params)
 			if err != nil {
 				var pe *model.ParamError
 				if errors.As(err, &pe) && pe.Param != "" {
@@ -780,19 +768,29 @@ func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
 				}
 				return nil, c.errAt(path, "%v", err)
 			}
-			for n, v := range full.Params {
-				if _, ok := m.Params[n]; !ok {
-					m.Params[n] = v
-					m.ParamText[n] = pipeline.FormatFloat(v)
-				}
-			}
-			if fieldRange != nil {
-				if _, err := full.WithRange(fieldRange[0], fieldRange[1]); err != nil {
-					return nil, c.errAt(path+".field_range", "%v", err)
-				}
-			}
-			out = append(out, m)
+			return full, nil
 		}
+		for _, m := range g.probes() {
+			if _, err := check(m); err != nil {
+				return nil, err
+			}
+		}
+		full, err := check(g.at(0))
+		if err != nil {
+			return nil, err
+		}
+		g.defaults = map[string]float64{}
+		for n, v := range full.Params {
+			if !g.has(n) {
+				g.defaults[n] = v
+			}
+		}
+		if fieldRange != nil {
+			if _, err := full.WithRange(fieldRange[0], fieldRange[1]); err != nil {
+				return nil, c.errAt(path+".field_range", "%v", err)
+			}
+		}
+		out = append(out, g)
 	}
 	return out, nil
 }
@@ -801,7 +799,7 @@ func (c *parser) models(tables []map[string]any) ([]ModelSpec, error) {
 // kinetic) as expressions of the field, its parameters (every other key,
 // fanned out like a family's), the native domain and origin, and the range
 // searched for inflation (required, in the field).
-func (c *parser) customModels(path string, t map[string]any) ([]ModelSpec, error) {
+func (c *parser) customModels(path string, t map[string]any) (*modelGroup, error) {
 	if _, ok := t["family"]; ok {
 		return nil, c.errAt(path+".family", "give a family or a potential, not both")
 	}
@@ -875,33 +873,13 @@ func (c *parser) customModels(path string, t map[string]any) ([]ModelSpec, error
 		}
 		axes = append(axes, axis{k, vals, texts})
 	}
-	seed := ModelSpec{Family: nodes.CustomFamily, Label: label, Params: map[string]float64{}, ParamText: map[string]string{}, FieldRange: xs}
-	combos := []ModelSpec{seed}
-	if comb, _ := t["combine"].(string); comb == "zip" {
-		if combos, err = c.zip(path, seed, axes); err != nil {
-			return nil, err
-		}
-	} else {
-		for _, a := range axes {
-			var next []ModelSpec
-			for _, b := range combos {
-				for j, x := range a.xs {
-					m := b
-					m.Params, m.ParamText = cloneF(b.Params), cloneS(b.ParamText)
-					m.Params[a.name], m.ParamText[a.name] = x, a.texts[j]
-					next = append(next, m)
-				}
-			}
-			combos = next
-		}
-	}
-	for i := range combos {
-		cu := base
-		cu.Params = combos[i].Params
-		combos[i].Custom = &cu
+	comb, _ := t["combine"].(string)
+	g, err := c.group(path, ModelSpec{Family: nodes.CustomFamily, Label: label, FieldRange: xs}, axes, comb == "zip", &base)
+	if err != nil {
+		return nil, err
 	}
 	// Names and syntax do not depend on the values: one compile checks all.
-	if err := nodes.CompileCustom(*combos[0].Custom); err != nil {
+	if err := nodes.CompileCustom(*g.at(0).Custom); err != nil {
 		key := "potential"
 		if strings.HasPrefix(err.Error(), "kinetic") {
 			key = "kinetic"
@@ -913,7 +891,7 @@ func (c *parser) customModels(path string, t map[string]any) ([]ModelSpec, error
 		}
 		return nil, c.errAt(path+"."+key, "%s", msg)
 	}
-	return combos, nil
+	return g, nil
 }
 
 // axis is one fanned-out model parameter.
@@ -923,47 +901,26 @@ type axis struct {
 	texts []string
 }
 
-// zip pairs the i-th values of every list-valued parameter; single values
-// go with every point.
-func (c *parser) zip(path string, base ModelSpec, axes []axis) ([]ModelSpec, error) {
-	n := 1
-	for _, a := range axes {
-		if len(a.xs) > 1 {
-			if n > 1 && len(a.xs) != n {
-				return nil, c.errAt(path+"."+a.name, "combine = \"zip\" needs lists of one length: %s has %d values, another %d", a.name, len(a.xs), n)
-			}
-			n = len(a.xs)
-		}
-	}
-	out := make([]ModelSpec, n)
-	for i := range out {
-		m := base
-		m.Params = cloneF(base.Params)
-		m.ParamText = cloneS(base.ParamText)
+// group makes a model group, checking that zipped lists have one length.
+func (c *parser) group(path string, base ModelSpec, axes []axis, zip bool, custom *nodes.Custom) (*modelGroup, error) {
+	g := &modelGroup{base: base, axes: axes, zip: zip, custom: custom, n: 1}
+	if zip {
 		for _, a := range axes {
-			j := 0
 			if len(a.xs) > 1 {
-				j = i
+				if g.n > 1 && len(a.xs) != g.n {
+					return nil, c.errAt(path+"."+a.name, "combine = \"zip\" needs lists of one length: %s has %d values, another %d", a.name, len(a.xs), g.n)
+				}
+				g.n = len(a.xs)
 			}
-			m.Params[a.name], m.ParamText[a.name] = a.xs[j], a.texts[j]
 		}
-		out[i] = m
+		return g, nil
 	}
-	return out, nil
+	for _, a := range axes {
+		if g.n > MaxModelPoints/len(a.xs) {
+			return nil, c.errAt(path, "more than %d model points", MaxModelPoints)
+		}
+		g.n *= len(a.xs)
+	}
+	return g, nil
 }
 
-func cloneF(m map[string]float64) map[string]float64 {
-	c := make(map[string]float64, len(m))
-	for k, v := range m {
-		c[k] = v
-	}
-	return c
-}
-
-func cloneS(m map[string]string) map[string]string {
-	c := make(map[string]string, len(m))
-	for k, v := range m {
-		c[k] = v
-	}
-	return c
-}

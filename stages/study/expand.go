@@ -9,7 +9,8 @@ import (
 // result, labelled "model(params) | history | constraint".
 func (s *Study) Graph() (*pipeline.Graph, error) {
 	g := &pipeline.Graph{}
-	for _, m := range s.Models {
+	for j := 0; j < s.NumModels(); j++ {
+		m := s.ModelAt(j)
 		label := m.Describe()
 		var mp pipeline.Values
 		var err error
@@ -93,26 +94,22 @@ func (s *Study) expandHistories(g *pipeline.Graph, label string, sr nodes.SlowRo
 // i-1 modulo n. Every point belongs to exactly one shard, and the shares
 // do not depend on anything but the configuration.
 func (s *Study) Shard(i, n int) {
-	var kept []ModelSpec
-	for k, m := range s.Models {
-		if k%n == i-1 {
-			kept = append(kept, m)
-		}
-	}
-	s.Models = kept
+	s.points.shardI, s.points.shardN = i-1, n
+	s.points.lo, s.points.hi = 0, -1
 }
 
 // Chunks splits the study into studies of at most size model points each,
 // in order (the first holds the first size points, and so on). Their
 // graphs together are the study's graph, results in the same order.
 func (s *Study) Chunks(size int) []*Study {
-	if size < 1 || len(s.Models) <= size {
+	n := s.NumModels()
+	if size < 1 || n <= size {
 		return []*Study{s}
 	}
 	var out []*Study
-	for a := 0; a < len(s.Models); a += size {
+	for a := 0; a < n; a += size {
 		c := *s
-		c.Models = s.Models[a:min(a+size, len(s.Models))]
+		c.points.lo, c.points.hi = s.points.lo+a, s.points.lo+min(a+size, n)
 		out = append(out, &c)
 	}
 	return out
@@ -124,5 +121,5 @@ func (s *Study) Chunks(size int) []*Study {
 // forecast below each (bands have none).
 func (s *Study) NodeEstimate() int {
 	per := len(s.Constraints) + len(s.SampleSets) + len(s.Forecasts)
-	return len(s.Models) * (2 + len(s.SlowRoll)*(1+len(s.Histories)*(1+per)))
+	return s.NumModels() * (2 + len(s.SlowRoll)*(1+len(s.Histories)*(1+per)))
 }

@@ -14,11 +14,11 @@ func TestDemoExpansion(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(s.Models) != 16 || len(s.Histories) != 4 || len(s.Constraints) != 1 {
-		t.Fatalf("%d models, %d histories, %d constraints; want 16, 4, 1", len(s.Models), len(s.Histories), len(s.Constraints))
+	if len(s.AllModels()) != 16 || len(s.Histories) != 4 || len(s.Constraints) != 1 {
+		t.Fatalf("%d models, %d histories, %d constraints; want 16, 4, 1", len(s.AllModels()), len(s.Histories), len(s.Constraints))
 	}
 	// The discrete set 3 alpha = 1..7 (Ferrara & Kallosh 2016, arXiv:1610.04163).
-	for i, m := range s.Models[:7] {
+	for i, m := range s.AllModels()[:7] {
 		if got := 3 * m.Params["alpha"]; math.Abs(got-float64(i+1)) > 1e-15 {
 			t.Errorf("E-model %d: 3 alpha = %v, want %d", i, got, i+1)
 		}
@@ -48,11 +48,11 @@ func TestFanOutIsACartesianProduct(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(s.Models) != 6 || len(s.Histories) != 2 {
-		t.Fatalf("%d models and %d histories, want 6 and 2", len(s.Models), len(s.Histories))
+	if len(s.AllModels()) != 6 || len(s.Histories) != 2 {
+		t.Fatalf("%d models and %d histories, want 6 and 2", len(s.AllModels()), len(s.Histories))
 	}
 	seen := map[[2]float64]bool{}
-	for _, m := range s.Models {
+	for _, m := range s.AllModels() {
 		seen[[2]float64{m.Params["mu"], m.Params["p"]}] = true
 	}
 	for _, mu := range []float64{5, 7.5, 10} {
@@ -62,7 +62,7 @@ func TestFanOutIsACartesianProduct(t *testing.T) {
 			}
 		}
 	}
-	if s.Models[2].ParamText["mu"] != "15/2" && s.Models[3].ParamText["mu"] != "15/2" {
+	if s.AllModels()[2].ParamText["mu"] != "15/2" && s.AllModels()[3].ParamText["mu"] != "15/2" {
 		t.Errorf("a ratio keeps its written form for labels")
 	}
 }
@@ -182,25 +182,25 @@ func TestGridsAndZip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(s.Models) != 15 {
-		t.Fatalf("%d models, want 5 x 3", len(s.Models))
+	if len(s.AllModels()) != 15 {
+		t.Fatalf("%d models, want 5 x 3", len(s.AllModels()))
 	}
 	// Log spacing: 0.01, 0.1, 1, 10, 100 (to rounding), ends exact.
 	want := []float64{0.01, 0.1, 1, 10, 100}
 	for i, w := range want {
-		if got := s.Models[3*i].Params["alpha"]; math.Abs(got-w) > 1e-12*w {
+		if got := s.AllModels()[3*i].Params["alpha"]; math.Abs(got-w) > 1e-12*w {
 			t.Errorf("alpha[%d] = %v, want %v", i, got, w)
 		}
 	}
-	if s.Models[1].Params["n"] != 1.5 {
-		t.Errorf("linear midpoint %v, want 1.5", s.Models[1].Params["n"])
+	if s.AllModels()[1].Params["n"] != 1.5 {
+		t.Errorf("linear midpoint %v, want 1.5", s.AllModels()[1].Params["n"])
 	}
 	z, err := Parse("z.toml", []byte(base+"[[model]]\nfamily = \"t-model\"\ncombine = \"zip\"\nalpha = [1, 2, 3]\nn = [1, 2, 3]\n"), ".")
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(z.Models) != 3 || z.Models[2].Params["alpha"] != 3 || z.Models[2].Params["n"] != 3 {
-		t.Fatalf("zip gave %d models: %+v", len(z.Models), z.Models)
+	if len(z.AllModels()) != 3 || z.AllModels()[2].Params["alpha"] != 3 || z.AllModels()[2].Params["n"] != 3 {
+		t.Fatalf("zip gave %d models: %+v", len(z.AllModels()), z.AllModels())
 	}
 	for _, bad := range []string{
 		"alpha = {log = [0, 1], points = 3}",

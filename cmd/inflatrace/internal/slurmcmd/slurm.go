@@ -118,8 +118,8 @@ func Run(_ context.Context, o *Options) error {
 	if err != nil {
 		return app.Usage(err)
 	}
-	if len(s.Models) < o.Tasks {
-		return app.Usage(fmt.Errorf("%d tasks for %d model points: some shards would be empty", o.Tasks, len(s.Models)))
+	if s.NumModels() < o.Tasks {
+		return app.Usage(fmt.Errorf("%d tasks for %d model points: some shards would be empty", o.Tasks, s.NumModels()))
 	}
 	config, err := filepath.Abs(o.Config)
 	if err != nil {
@@ -148,6 +148,6 @@ func Run(_ context.Context, o *Options) error {
 		}
 	}
 	fmt.Fprintf(o.Env.Stderr, "wrote %s/{scan.sbatch,merge.sbatch,submit.sh}: %d tasks over %d model points; submit with: bash %s/submit.sh\n",
-		dir, o.Tasks, len(s.Models), dir)
+		dir, o.Tasks, s.NumModels(), dir)
 	return nil
 }
