@@ -923,4 +923,3 @@ func (c *parser) group(path string, base ModelSpec, axes []axis, zip bool, custo
 	}
 	return g, nil
 }
-

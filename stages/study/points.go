@@ -122,7 +122,7 @@ func (p modelPoints) seqLen() int {
 	if p.shardI >= p.total {
 		return 0
 	}
-	return (p.total-p.shardI+p.shardN-1)/p.shardN
+	return (p.total - p.shardI + p.shardN - 1) / p.shardN
 }
 
 func (p modelPoints) len() int {
