@@ -129,6 +129,7 @@ type batchState struct {
 	ordinal int
 	known   map[pipeline.KeyID]storedNode
 	absent  map[pipeline.KeyID]bool // keys known not to be stored
+	trusted map[pipeline.KeyID]bool // reused nodes not read back: their link's foreign key checks them
 	// Rows to insert at the end of the batch, many per statement.
 	nodeRows, inputRows, linkRows [][]any
 }
@@ -143,9 +144,13 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 			return err
 		}
 	}
-	old, exists, err := readStoredIn(ctx, tx, rec.Key, bs)
-	if err != nil {
-		return err
+	var old storedNode
+	var exists bool
+	if bs == nil || !bs.trusted[rec.Key] {
+		var err error
+		if old, exists, err = readStoredIn(ctx, tx, rec.Key, bs); err != nil {
+			return err
+		}
 	}
 	if exists && action != pipeline.Reused && old.description != rec.Description {
 		return fmt.Errorf("%w: the stored description for this key differs: %s", ErrIntegrity, firstDifference(old.description, rec.Description))
@@ -182,6 +187,9 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		}
 		// An ok row stays ok: the failure is this run's alone.
 	case pipeline.Reused:
+		if bs != nil && bs.trusted[rec.Key] {
+			break // found by the engine in this ledger just now; the foreign key checks it is still there
+		}
 		if !exists {
 			return fmt.Errorf("node %s: %w (a reused node must already be in the ledger)", rec.Key, ErrNotFound)
 		}

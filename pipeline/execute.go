@@ -175,6 +175,7 @@ type scheduler struct {
 	mu      sync.Mutex
 	flights map[KeyID]*flight // nodes of this run by key, for in-run duplicates
 	batched bool              // records go to the writer, not straight to rec
+	prep    []*prepared       // nodes prepared by a batched look-up, by index
 }
 
 // writer writes batches of records in order from its own goroutine.
@@ -226,7 +227,9 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 	if jobs < 1 {
 		jobs = 1
 	}
-	s := &scheduler{ctx: ctx, rec: rec, run: run, opts: opts, flights: map[KeyID]*flight{}}
+	s := &scheduler{ctx: ctx, rec: rec, run: run, opts: opts, flights: map[KeyID]*flight{}, prep: make([]*prepared, n)}
+	bl, probing := rec.(BatchLookup)
+	probing = probing && opts.Batch > 1 && !opts.NoReuse
 	var wr *writer
 	var buffered []Recorded
 	lastFlush := opts.Now()
@@ -323,7 +326,83 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 			release(d)
 		}
 	}
+	probed := make([]bool, n)
+	// probe looks up every ready node not yet looked up in one batch: the
+	// ones found settle as reused at once (a warm run needs no worker), the
+	// others go to the workers, which then skip their own look-up.
+	probe := func() error {
+		var idx []int
+		var keys []KeyID
+		for _, i := range ready {
+			if probed[i] {
+				continue
+			}
+			probed[i] = true
+			p, err := s.prepare(g, rep, i)
+			if err != nil {
+				return err
+			}
+			s.prep[i] = p
+			idx = append(idx, i)
+			keys = append(keys, p.key)
+		}
+		if len(keys) == 0 {
+			return nil
+		}
+		start := opts.Now()
+		found, err := bl.LookupMany(ctx, keys)
+		if err != nil {
+			return fmt.Errorf("look up %d nodes: %w", len(keys), err)
+		}
+		d := opts.Now().Sub(start) / time.Duration(len(keys))
+		var still []int
+		hit := map[int]bool{}
+		for _, i := range idx {
+			p := s.prep[i]
+			stored, ok := found[p.key]
+			if !ok {
+				p.missed = true
+				continue
+			}
+			hit[i] = true
+			stored.Duration = d
+			o := NodeOutcome{Node: g.Nodes[i], Key: p.key, Action: Reused, Outputs: stored.Outputs, OutputHash: stored.OutputHash, Duration: d}
+			if s.batched {
+				o.record = &Recorded{Node: stored, Action: Reused}
+			} else if err := rec.RecordNode(ctx, run, stored, Reused); err != nil {
+				return err
+			}
+			settle(o)
+		}
+		for _, i := range ready {
+			if !hit[i] {
+				still = append(still, i)
+			}
+		}
+		ready = still
+		for _, i := range idx {
+			if hit[i] {
+				release(i)
+			}
+		}
+		return nil
+	}
 	for settled < n {
+		if probing && firstErr == nil {
+			for {
+				before := settled
+				if err := probe(); err != nil {
+					firstErr = err
+					break
+				}
+				if settled == before {
+					break // nothing found: the rest is for the workers
+				}
+			}
+			if settled >= n {
+				break
+			}
+		}
 		for firstErr == nil && len(ready) > 0 && inflight < jobs {
 			if err := ctx.Err(); err != nil {
 				firstErr = fmt.Errorf("run interrupted: %w", err)
@@ -368,22 +447,45 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 
 // node evaluates one node whose inputs have all succeeded. It returns an
 // error only for storage failures.
+// prepared is a node's description and key, computed once its inputs
+// have settled.
+type prepared struct {
+	desc   string
+	key    KeyID
+	refs   []InputRef
+	inputs []Values
+	missed bool // a batched look-up already found no such key
+}
+
+func (s *scheduler) prepare(g *Graph, rep *Report, i int) (*prepared, error) {
+	nd := g.Nodes[i]
+	spec := nd.Stage.Spec()
+	p := &prepared{refs: make([]InputRef, len(nd.Inputs)), inputs: make([]Values, len(nd.Inputs))}
+	for k, in := range nd.Inputs {
+		o := rep.Outcomes[in] // settled before this node was released
+		p.refs[k] = InputRef{Stage: g.Nodes[in].Stage.Spec().Name, Key: o.Key, Output: o.OutputHash}
+		p.inputs[k] = o.Outputs
+	}
+	desc, err := Describe(s.opts.Tool, spec.Name, spec.Version, nd.Params, p.refs)
+	if err != nil {
+		return nil, fmt.Errorf("node %d (%s): %w", i, nd.Label, err)
+	}
+	p.desc, p.key = desc, KeyOf(desc)
+	return p, nil
+}
+
 func (s *scheduler) node(g *Graph, rep *Report, i int) (NodeOutcome, error) {
 	nd := g.Nodes[i]
 	spec := nd.Stage.Spec()
 	out := NodeOutcome{Node: nd}
-	refs := make([]InputRef, len(nd.Inputs))
-	inputs := make([]Values, len(nd.Inputs))
-	for k, in := range nd.Inputs {
-		o := rep.Outcomes[in] // settled before this node was released
-		refs[k] = InputRef{Stage: g.Nodes[in].Stage.Spec().Name, Key: o.Key, Output: o.OutputHash}
-		inputs[k] = o.Outputs
+	p := s.prep[i]
+	if p == nil {
+		var err error
+		if p, err = s.prepare(g, rep, i); err != nil {
+			return out, err
+		}
 	}
-	desc, err := Describe(s.opts.Tool, spec.Name, spec.Version, nd.Params, refs)
-	if err != nil {
-		return out, fmt.Errorf("node %d (%s): %w", i, nd.Label, err)
-	}
-	key := KeyOf(desc)
+	desc, key, refs, inputs := p.desc, p.key, p.refs, p.inputs
 	out.Key = key
 
 	// Two nodes of one run with the same key: the second waits for the
@@ -405,7 +507,7 @@ func (s *scheduler) node(g *Graph, rep *Report, i int) (NodeOutcome, error) {
 	s.mu.Unlock()
 	defer close(f.done)
 
-	if !s.opts.NoReuse {
+	if !s.opts.NoReuse && !p.missed {
 		lookStart := s.opts.Now()
 		stored, found, err := s.rec.Lookup(s.ctx, key)
 		if err != nil {

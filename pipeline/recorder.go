@@ -104,3 +104,12 @@ type BatchRecorder interface {
 	Recorder
 	RecordNodes(ctx context.Context, run RunID, batch []Recorded) error
 }
+
+// BatchLookup is a Recorder that can look up many keys at once. Execute
+// uses it, when batching, to find every ready node in one query instead of
+// one query a node: a warm run then settles most of its nodes without
+// running a stage or waking a worker.
+type BatchLookup interface {
+	// LookupMany returns the successful nodes among keys, by key.
+	LookupMany(ctx context.Context, keys []KeyID) (map[KeyID]NodeRecord, error)
+}
