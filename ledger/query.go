@@ -266,7 +266,8 @@ func (l *Ledger) Node(ctx context.Context, key pipeline.KeyID) (pipeline.NodeRec
 		rec   pipeline.NodeRecord
 		found bool
 	)
-	err := l.inTx(ctx, func(tx *qtx) error {
+	// A read: on the reader connections, not through the writer's lock.
+	err := l.inReadTx(ctx, func(tx *qtx) error {
 		var err error
 		rec, found, err = loadNode(ctx, tx, key)
 		return err

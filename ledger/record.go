@@ -52,17 +52,9 @@ func (l *Ledger) beginRun(ctx context.Context, info pipeline.RunInfo) error {
 // row that no longer matches its hashes is an error wrapping ErrIntegrity,
 // never a hit.
 func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
-	var (
-		rec   pipeline.NodeRecord
-		found bool
-	)
-	err := l.inReadTx(ctx, func(tx *qtx) error {
-		var err error
-		rec, found, err = loadNode(ctx, tx, key)
-		return err
-	})
+	rec, found, err := l.Node(ctx, key)
 	if err != nil {
-		return pipeline.NodeRecord{}, false, fmt.Errorf("ledger: look up %s: %w", key, err)
+		return pipeline.NodeRecord{}, false, err
 	}
 	if !found || rec.Status != pipeline.NodeOK {
 		return pipeline.NodeRecord{}, false, nil

@@ -129,21 +129,7 @@ func writeCSV(w io.Writer, rows []study.Result, cols []column, nf numberFormat) 
 		return err
 	}
 	for _, r := range rows {
-		for i, c := range cols {
-			v := c.get(r)
-			switch {
-			case !v.ok:
-				rec[i] = ""
-			case c.kind == number || c.kind == input:
-				rec[i] = c.format(nf).machine(v.num)
-			case c.kind == flag:
-				rec[i] = strconv.FormatBool(v.flag)
-			case c.kind == params:
-				rec[i] = paramText(v.params)
-			default:
-				rec[i] = v.text
-			}
-		}
+		csvCells.fill(rec, r, cols, nf)
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
@@ -243,25 +229,45 @@ func writeMarkdown(w io.Writer, rows []study.Result, cols []column, nf numberFor
 	}
 	line(cells)
 	for _, r := range rows {
-		for i, c := range cols {
-			v := c.get(r)
-			switch {
-			case !v.ok:
-				cells[i] = "—"
-			case c.kind == number || c.kind == input:
-				cells[i] = c.format(nf).plain(v.num)
-			case c.kind == flag:
-				cells[i] = yesNo(v.flag)
-			case c.kind == params:
-				cells[i] = escapeMarkdown(paramText(v.params))
-			default:
-				cells[i] = escapeMarkdown(v.text)
-			}
-		}
+		markdownCells.fill(cells, r, cols, nf)
 		line(cells)
 	}
 	_, err := io.WriteString(w, b.String())
 	return err
+}
+
+// cellStyle is how one format writes a cell: a missing value, a number, a
+// flag, and text (parameters are text).
+type cellStyle struct {
+	missing string
+	number  func(f numberFormat, x float64) string
+	flag    func(bool) string
+	text    func(string) string
+}
+
+var (
+	csvCells      = cellStyle{"", numberFormat.machine, strconv.FormatBool, func(s string) string { return s }}
+	markdownCells = cellStyle{"—", numberFormat.plain, yesNo, escapeMarkdown}
+	latexCells    = cellStyle{"---", numberFormat.latex, yesNo, escapeLaTeX}
+)
+
+// fill writes row r's cells for cols in this style.
+func (st cellStyle) fill(cells []string, r study.Result, cols []column, nf numberFormat) {
+	for i, c := range cols {
+		v := c.get(r)
+		switch {
+		case !v.ok:
+			cells[i] = st.missing
+		case c.kind == number || c.kind == input:
+			cells[i] = st.number(c.format(nf), v.num)
+		case c.kind == flag:
+			cells[i] = st.flag(v.flag)
+		case c.kind == params:
+			cells[i] = st.text(paramText(v.params))
+		default:
+			cells[i] = st.text(v.text)
+		}
+	}
 }
 
 func yesNo(b bool) string {
@@ -296,21 +302,7 @@ func writeLaTeX(w io.Writer, rows []study.Result, cols []column, nf numberFormat
 	}
 	b.WriteString(strings.Join(cells, " & ") + " \\\\\n\\hline\n")
 	for _, r := range rows {
-		for i, c := range cols {
-			v := c.get(r)
-			switch {
-			case !v.ok:
-				cells[i] = "---"
-			case c.kind == number || c.kind == input:
-				cells[i] = c.format(nf).latex(v.num)
-			case c.kind == flag:
-				cells[i] = yesNo(v.flag)
-			case c.kind == params:
-				cells[i] = escapeLaTeX(paramText(v.params))
-			default:
-				cells[i] = escapeLaTeX(v.text)
-			}
-		}
+		latexCells.fill(cells, r, cols, nf)
 		b.WriteString(strings.Join(cells, " & ") + " \\\\\n")
 	}
 	b.WriteString("\\hline\n\\end{tabular}\n")
