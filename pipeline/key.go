@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"unsafe"
 )
 
 // HashPrefix is the algorithm prefix of every printed hash.
@@ -35,9 +36,14 @@ func shortHash(s string) string {
 }
 
 // Sum returns the prefixed SHA-256 of data.
-func Sum(data []byte) string {
-	h := sha256.Sum256(data)
-	return HashPrefix + hex.EncodeToString(h[:])
+func Sum(data []byte) string { return formatSum(sha256.Sum256(data)) }
+
+// formatSum writes a digest as a prefixed hash in one allocation.
+func formatSum(h [sha256.Size]byte) string {
+	var out [len(HashPrefix) + 2*sha256.Size]byte
+	copy(out[:], HashPrefix)
+	hex.Encode(out[len(HashPrefix):], h[:])
+	return string(out[:])
 }
 
 // ParseHash checks that s is a prefixed SHA-256 hex digest.
@@ -49,8 +55,12 @@ func ParseHash(s string) error {
 	if len(hexPart) != 64 {
 		return fmt.Errorf("hash %q: want 64 hex digits, found %d", s, len(hexPart))
 	}
-	if _, err := hex.DecodeString(hexPart); err != nil {
-		return fmt.Errorf("hash %q: %v", s, err)
+	for i := 0; i < len(hexPart); i++ {
+		if c := hexPart[i]; !('0' <= c && c <= '9' || 'a' <= c && c <= 'f' || 'A' <= c && c <= 'F') {
+			// hex gives the message for the offending byte.
+			_, err := hex.DecodeString(hexPart)
+			return fmt.Errorf("hash %q: %v", s, err)
+		}
 	}
 	return nil
 }
@@ -75,29 +85,54 @@ type InputRef struct {
 //
 // Upstream nodes enter only through their output hashes.
 func Describe(tool string, stage string, version int, params Values, inputs []InputRef) (string, error) {
-	var b strings.Builder
-	b.WriteString("inflatrace node key v" + strconv.Itoa(KeyVersion) + "\n")
-	b.WriteString("tool " + strconv.Quote(tool) + "\n")
-	b.WriteString("stage " + stage + "\n")
-	b.WriteString("version " + strconv.Itoa(version) + "\n")
-	for _, n := range params.Names() {
-		l, err := params[n].line(n)
-		if err != nil {
-			return "", fmt.Errorf("stage %s: parameter %w", stage, err)
-		}
-		b.WriteString("param " + l + "\n")
+	desc, _, err := describe(tool, stage, version, params, inputs, false)
+	return desc, err
+}
+
+// describe is Describe, also returning the key when withKey is set (hashed
+// from the bytes before they become the string, saving a copy).
+func describe(tool string, stage string, version int, params Values, inputs []InputRef, withKey bool) (string, KeyID, error) {
+	size := 96 + len(tool) + len(stage) + encodedSize(params, "param ")
+	for _, in := range inputs {
+		size += 16 + len(in.Stage) + len(in.Output)
+	}
+	b := make([]byte, 0, size)
+	b = append(b, "inflatrace node key v"...)
+	b = strconv.AppendInt(b, KeyVersion, 10)
+	b = append(b, "\ntool "...)
+	b = strconv.AppendQuote(b, tool)
+	b = append(b, "\nstage "...)
+	b = append(b, stage...)
+	b = append(b, "\nversion "...)
+	b = strconv.AppendInt(b, int64(version), 10)
+	b = append(b, '\n')
+	b, err := appendValues(b, params, "param ")
+	if err != nil {
+		return "", "", fmt.Errorf("stage %s: parameter %w", stage, err)
 	}
 	for i, in := range inputs {
 		if err := ParseHash(string(in.Output)); err != nil {
-			return "", fmt.Errorf("stage %s: input %d: %w", stage, i, err)
+			return "", "", fmt.Errorf("stage %s: input %d: %w", stage, i, err)
 		}
-		b.WriteString("input " + strconv.Itoa(i) + " " + in.Stage + " " + string(in.Output) + "\n")
+		b = append(b, "input "...)
+		b = strconv.AppendInt(b, int64(i), 10)
+		b = append(b, ' ')
+		b = append(b, in.Stage...)
+		b = append(b, ' ')
+		b = append(b, in.Output...)
+		b = append(b, '\n')
 	}
-	return b.String(), nil
+	var key KeyID
+	if withKey {
+		key = KeyID(Sum(b))
+	}
+	// b is never written again: the string shares its bytes, as
+	// strings.Builder does, instead of copying them.
+	return unsafe.String(unsafe.SliceData(b), len(b)), key, nil
 }
 
 // KeyOf returns the key of a description.
-func KeyOf(description string) KeyID { return KeyID(Sum([]byte(description))) }
+func KeyOf(description string) KeyID { return KeyID(formatSum(sha256.Sum256([]byte(description)))) }
 
 // OutputHash returns the hash of an output set (of its canonical encoding).
 func OutputHash(outputs Values) (OutputID, []byte, error) {

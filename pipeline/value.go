@@ -3,7 +3,7 @@ package pipeline
 import (
 	"fmt"
 	"math"
-	"sort"
+	"slices"
 	"strconv"
 	"strings"
 )
@@ -51,7 +51,19 @@ func (vs Values) Names() []string {
 	for n := range vs {
 		names = append(names, n)
 	}
-	sort.Strings(names)
+	slices.Sort(names)
+	return names
+}
+
+// sortedNames returns the names of vs in sorted order, in buf when it is
+// large enough (encoders pass a small array on their stack, so that
+// encoding a typical set allocates nothing for its names).
+func (vs Values) sortedNames(buf []string) []string {
+	names := buf[:0]
+	for n := range vs {
+		names = append(names, n)
+	}
+	slices.Sort(names)
 	return names
 }
 
@@ -95,43 +107,72 @@ func validName(s string) bool {
 // float64 (strconv 'g', precision -1). This is the float text used in keys.
 func FormatFloat(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
-// line writes the canonical one-line form of a named value:
+// appendLine appends the canonical one-line form of a named value, without
+// its newline:
 //
 //	<name> f <shortest float> <unit>
 //	<name> s <Go-quoted string>
-func (v Value) line(name string) (string, error) {
+func appendLine(b []byte, name string, v Value) ([]byte, error) {
 	if !validName(name) {
-		return "", fmt.Errorf("invalid value name %q", name)
+		return b, fmt.Errorf("invalid value name %q", name)
 	}
 	switch v.Kind {
 	case KindFloat:
 		if math.IsNaN(v.Float) || math.IsInf(v.Float, 0) {
-			return "", fmt.Errorf("value %q is %g: not finite", name, v.Float)
+			return b, fmt.Errorf("value %q is %g: not finite", name, v.Float)
 		}
 		if !validName(v.Unit) {
-			return "", fmt.Errorf("value %q has invalid unit %q (use %q when dimensionless)", name, v.Unit, UnitNone)
+			return b, fmt.Errorf("value %q has invalid unit %q (use %q when dimensionless)", name, v.Unit, UnitNone)
 		}
-		return name + " f " + FormatFloat(v.Float) + " " + v.Unit, nil
+		b = append(b, name...)
+		b = append(b, " f "...)
+		b = strconv.AppendFloat(b, v.Float, 'g', -1, 64)
+		b = append(b, ' ')
+		return append(b, v.Unit...), nil
 	case KindString:
-		return name + " s " + strconv.Quote(v.Str), nil
+		b = append(b, name...)
+		b = append(b, " s "...)
+		return strconv.AppendQuote(b, v.Str), nil
 	}
-	return "", fmt.Errorf("value %q has no kind", name)
+	return b, fmt.Errorf("value %q has no kind", name)
+}
+
+// appendValues appends the canonical lines of vs, sorted by name, each
+// after prefix and ending in a newline.
+func appendValues(b []byte, vs Values, prefix string) ([]byte, error) {
+	var arr [24]string
+	var err error
+	for _, n := range vs.sortedNames(arr[:]) {
+		b = append(b, prefix...)
+		if b, err = appendLine(b, n, vs[n]); err != nil {
+			return b, err
+		}
+		b = append(b, '\n')
+	}
+	return b, nil
+}
+
+// encodedSize estimates the length of vs's canonical text, so that it is
+// written into one allocation.
+func encodedSize(vs Values, prefix string) int {
+	size := 0
+	for n, v := range vs {
+		// name, kind, a float of up to 24 bytes or the string with room
+		// for quoting, the unit and the separators.
+		size += len(prefix) + len(n) + len(v.Unit) + len(v.Str) + 32
+	}
+	return size
 }
 
 // Encode writes the canonical text of vs: one line per value, sorted by
 // name, each ending in a newline. It fails on non-finite floats, so a NaN
 // can never become a recorded result.
 func (vs Values) Encode() ([]byte, error) {
-	var b strings.Builder
-	for _, n := range vs.Names() {
-		l, err := vs[n].line(n)
-		if err != nil {
-			return nil, err
-		}
-		b.WriteString(l)
-		b.WriteByte('\n')
+	b, err := appendValues(make([]byte, 0, encodedSize(vs, "")), vs, "")
+	if err != nil {
+		return nil, err
 	}
-	return []byte(b.String()), nil
+	return b, nil
 }
 
 // DecodeValues parses the canonical text written by Encode.
