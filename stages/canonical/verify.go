@@ -70,7 +70,9 @@ var (
 // against this independent adaptive quadrature, at more points (up to the
 // top of the canonical range), with the tolerance NumericalMapTol suited
 // to the map's precision, and d2V/dphi2 is also compared with the chain
-// rule from the kinetic function's jet (CurvatureDev, to Tol).
+// rule from the kinetic function's jet (CurvatureDev, to Tol). On a native
+// domain inside the positive half line the quadrature runs in ln x (see
+// quadratureOfSqrtK).
 func Verify(m *model.Model, s *Settings) (Report, error) {
 	if m.Native == nil {
 		return Report{Canonical: true, Field: "phi", MapFormula: "phi (canonical kinetic term)"}, nil
@@ -95,7 +97,7 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 			rep.MapTol = numTol
 		}
 	}
-	sqrtK := func(x float64) float64 { return math.Sqrt(nf.Kinetic(x)) }
+	integral := quadratureOfSqrtK(nf, quad)
 	phi0 := nf.ToCanonical(nf.Origin)
 	for _, phi := range samplePoints(m) {
 		x := nf.FromCanonical(phi)
@@ -112,12 +114,12 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 		if !(k > 0) || math.IsInf(k, 0) {
 			return rep, fmt.Errorf("%s: kinetic function K(%s = %g) = %g, want a positive finite value", m.Describe(), nf.Name, x, k)
 		}
-		q, err := num.Integrate(sqrtK, nf.Origin, x, quad)
+		q, err := integral(x)
 		if err != nil {
 			return rep, fmt.Errorf("%s: quadrature of sqrt(K) to %s = %g: %w", m.Describe(), nf.Name, x, err)
 		}
 		pa := nf.ToCanonical(x) - phi0
-		rep.MapDev = math.Max(rep.MapDev, math.Abs(q.Value-pa)/math.Max(1, math.Abs(pa)))
+		rep.MapDev = math.Max(rep.MapDev, math.Abs(q-pa)/math.Max(1, math.Abs(pa)))
 		rep.InverseDev = math.Max(rep.InverseDev, math.Abs(nf.FromCanonical(nf.ToCanonical(x))-x)/math.Max(1, math.Abs(x)))
 		vn := nf.V(num.Var(x))
 		vc := m.At(pa)
@@ -143,6 +145,40 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 		}
 	}
 	return rep, nil
+}
+
+// quadratureOfSqrtK returns the function x -> integral of sqrt(K) from the
+// origin to x, by adaptive quadrature.
+//
+// When the native domain lies on the positive half line (Lo >= 0, so
+// every x in it is positive), the integral is taken in u = ln x, an exact
+// change of variables:
+//
+//	integral from x0 to x of sqrt(K(x')) dx' = integral from ln x0 to ln x of sqrt(K(e^u)) e^u du.
+//
+// A kinetic function with a pole K ~ c/x^2 at x = 0 (the half-plane of
+// the E-model, Kallosh, Linde & Roest 2013, arXiv:1311.0472) has a
+// constant integrand in u, and a range of x spanning many decades is a
+// short range of u: the quadrature in x needs thousands of subintervals
+// there, the one in u a few. The integrand is still sqrt(K) evaluated
+// from the kinetic function, so the check stays independent of the map.
+func quadratureOfSqrtK(nf *model.NativeField, quad *num.QuadSettings) func(x float64) (float64, error) {
+	if nf.Lo >= 0 && nf.Origin > 0 {
+		f := func(u float64) float64 {
+			x := math.Exp(u)
+			return math.Sqrt(nf.Kinetic(x)) * x
+		}
+		u0 := math.Log(nf.Origin)
+		return func(x float64) (float64, error) {
+			q, err := num.Integrate(f, u0, math.Log(x), quad)
+			return q.Value, err
+		}
+	}
+	f := func(x float64) float64 { return math.Sqrt(nf.Kinetic(x)) }
+	return func(x float64) (float64, error) {
+		q, err := num.Integrate(f, nf.Origin, x, quad)
+		return q.Value, err
+	}
 }
 
 // samplePoints returns the canonical field values to check: fractions of

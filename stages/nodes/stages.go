@@ -13,7 +13,7 @@ import (
 // change: the version is part of every key of that stage.
 const (
 	ModelVersion     = 1
-	CanonicalVersion = 1
+	CanonicalVersion = 2 // 2: quadrature of sqrt(K) in ln x on a positive native domain
 	SlowRollVersion  = 1
 	ReheatVersion    = 1
 	CompareVersion   = 1
