@@ -4,7 +4,9 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"sync"
+	"sync/atomic"
 	"time"
 )
 
@@ -26,8 +28,13 @@ type Options struct {
 	OnNode func(NodeOutcome)
 	// Batch, when above one and the recorder is a BatchRecorder, writes
 	// nodes in transactions of up to Batch nodes from a writer goroutine
-	// (also flushing whatever is pending every FlushEvery, default 1 s), so
-	// that large scans are not bound by the cost of a commit.
+	// that lives as long as the session, so that large scans are not bound
+	// by the cost of a commit. The writer also writes whatever is pending
+	// once FlushEvery (default 1 s) has passed since its last write, so an
+	// interrupted run loses about that much work; the scheduler waits
+	// while Batch records are pending and another batch is being written,
+	// so at most about two batches are held in memory. A chunk's results
+	// are written after its nodes, with the first batch that follows them.
 	Batch      int
 	FlushEvery time.Duration
 }
@@ -42,8 +49,6 @@ type NodeOutcome struct {
 	Err        error // the stage's error for a failed node
 	Skipped    bool  // not run because an upstream node failed
 	Duration   time.Duration
-
-	record *Recorded // to be written in a batch
 }
 
 // Report summarises a run.
@@ -69,8 +74,9 @@ func (e *StageError) Unwrap() error { return e.Err }
 
 // Execute runs the graph as one run: it records the run, evaluates nodes in
 // topological order with at most opts.Jobs at once, reuses every node whose
-// key rec already holds, records each node in its own transaction, marks
-// the graph's results and closes the run.
+// key rec already holds, records each node (in its own transaction, or
+// in batches when opts.Batch asks for them), marks the graph's results and
+// closes the run.
 //
 // A stage error fails only its node (recorded as failed, never as a
 // result) and skips the nodes downstream of it; the run then ends with
@@ -95,7 +101,9 @@ func Execute(ctx context.Context, rec Recorder, info RunInfo, g *Graph, opts Opt
 // Session is one run executed as a sequence of graphs: the chunks of a
 // large scan, each evaluated, recorded and let go before the next is built,
 // so that memory does not grow with the scan. Results are numbered across
-// the chunks in order.
+// the chunks in order. With batched writes the session's writer outlives
+// each chunk, so a transaction may hold nodes of several chunks; Finish
+// writes what is pending and must always be called.
 type Session struct {
 	rec     Recorder
 	info    RunInfo
@@ -103,6 +111,13 @@ type Session struct {
 	ordinal int
 	// Totals accumulates the node counts of every chunk.
 	Totals Report
+
+	wr *writer // nil unless writes are batched
+	// flights holds the run's nodes by key, so that a key met twice is
+	// evaluated and recorded once: every node of the current chunk, and
+	// those of earlier chunks whose records may not be written yet (a
+	// look-up in the ledger would miss them).
+	flights map[KeyID]*flight
 }
 
 // Begin records a run as running and returns its session.
@@ -113,13 +128,32 @@ func Begin(ctx context.Context, rec Recorder, info RunInfo, opts Options) (*Sess
 	if err := rec.BeginRun(ctx, info); err != nil {
 		return nil, fmt.Errorf("begin run %s: %w", info.ID, err)
 	}
-	return &Session{rec: rec, info: info, opts: opts, Totals: Report{Run: info.ID}}, nil
+	s := &Session{rec: rec, info: info, opts: opts, Totals: Report{Run: info.ID}}
+	if br, ok := rec.(BatchRecorder); ok && opts.Batch > 1 {
+		// A chunk's nodes and about two batches of earlier ones.
+		s.flights = make(map[KeyID]*flight, min(2*opts.Batch, 1<<16))
+		every := opts.FlushEvery
+		if every <= 0 {
+			every = time.Second
+		}
+		s.wr = newWriter(context.WithoutCancel(ctx), br, info.ID, opts.Batch, every)
+	} else {
+		s.flights = map[KeyID]*flight{}
+	}
+	return s, nil
 }
 
-// Execute evaluates one graph of the run and records its results. A node
-// reused in several chunks is linked to the run once.
+// Execute evaluates one graph of the run and records its results (with
+// batched writes: hands them to the writer, which writes them after the
+// graph's nodes). A node reused in several chunks is linked to the run
+// once.
 func (s *Session) Execute(ctx context.Context, g *Graph) (*Report, error) {
-	rep, err := schedule(ctx, s.rec, s.info.ID, g, s.opts)
+	if s.wr != nil {
+		if err := s.wr.failed(); err != nil {
+			return nil, err
+		}
+	}
+	rep, err := s.schedule(ctx, g)
 	if rep != nil {
 		s.Totals.Computed += rep.Computed
 		s.Totals.Reused += rep.Reused
@@ -137,16 +171,30 @@ func (s *Session) Execute(ctx context.Context, g *Graph) (*Report, error) {
 		}
 	}
 	s.ordinal += len(g.Results)
+	if s.wr != nil {
+		s.wr.addResults(refs)
+		return rep, nil
+	}
 	if err := s.rec.RecordResults(ctx, s.info.ID, refs); err != nil {
 		return rep, fmt.Errorf("record results of run %s: %w", s.info.ID, err)
 	}
 	return rep, nil
 }
 
-// Finish closes the run: failed when runErr is set or any node failed or
-// was skipped, succeeded otherwise. It closes the run even when ctx was
-// cancelled.
+// Finish writes what is pending and closes the run: failed when runErr is
+// set, a pending write fails, or any node failed or was skipped; succeeded
+// otherwise. It closes the run even when ctx was cancelled. The error
+// returned is a failed pending write's or the closing's.
 func (s *Session) Finish(ctx context.Context, runErr error) (RunStatus, error) {
+	var werr error
+	if s.wr != nil {
+		werr = s.wr.close()
+		s.wr = nil
+	}
+	s.flights = nil
+	if runErr == nil {
+		runErr = werr
+	}
 	status, msg := RunSucceeded, ""
 	switch {
 	case runErr != nil:
@@ -156,55 +204,143 @@ func (s *Session) Finish(ctx context.Context, runErr error) (RunStatus, error) {
 	}
 	s.Totals.Status = status
 	if err := s.rec.FinishRun(context.WithoutCancel(ctx), s.info.ID, status, s.opts.Now(), msg); err != nil {
-		return status, fmt.Errorf("finish run %s: %w", s.info.ID, err)
+		return status, errors.Join(werr, fmt.Errorf("finish run %s: %w", s.info.ID, err))
 	}
-	return status, nil
+	return status, werr
 }
 
+// flight is the evaluation of one key in a run, shared by every node with
+// that key.
 type flight struct {
-	done chan struct{}
-	out  NodeOutcome
+	out     NodeOutcome // once settled (Node is the first node's)
+	settled bool
+	waiters []int  // nodes of the current graph waiting for it to settle
+	seq     uint64 // the writer's number for its record; 0 when written directly
 }
 
-type scheduler struct {
-	ctx  context.Context
-	rec  Recorder
-	run  RunID
-	opts Options
+// writer writes batches of records in order from its own goroutine: when
+// max records are pending, once every has passed since its last write, and
+// when closed.
+type writer struct {
+	rec   BatchRecorder
+	run   RunID
+	ctx   context.Context
+	max   int
+	every time.Duration
 
 	mu      sync.Mutex
-	flights map[KeyID]*flight // nodes of this run by key, for in-run duplicates
-	batched bool              // records go to the writer, not straight to rec
-	prep    []*prepared       // nodes prepared by a batched look-up, by index
+	room    sync.Cond // broadcast when the pending batch is taken or the writer fails
+	buf     []Recorded
+	spare   []Recorded // the last batch written, emptied, for reuse
+	results []ResultRef
+	seq     uint64 // number of records added
+	closing bool
+	err     error
+
+	committed atomic.Uint64 // records 1..committed are written
+	kick      chan struct{}
+	done      chan struct{}
 }
 
-// writer writes batches of records in order from its own goroutine.
-type writer struct {
-	rec  BatchRecorder
-	run  RunID
-	in   chan []Recorded
-	done chan struct{}
-	mu   sync.Mutex
-	err  error
-	ctx  context.Context
+func newWriter(ctx context.Context, rec BatchRecorder, run RunID, max int, every time.Duration) *writer {
+	w := &writer{rec: rec, run: run, ctx: ctx, max: max, every: every, kick: make(chan struct{}, 1), done: make(chan struct{})}
+	w.room.L = &w.mu
+	go w.loop()
+	return w
 }
 
-func newWriter(ctx context.Context, rec BatchRecorder, run RunID) *writer {
-	w := &writer{rec: rec, run: run, in: make(chan []Recorded, 4), done: make(chan struct{}), ctx: ctx}
-	go func() {
-		defer close(w.done)
-		for b := range w.in {
-			if w.failed() != nil {
-				continue
+// add queues one record and returns its number; it waits while a full
+// batch is pending. After a failure records are dropped.
+func (w *writer) add(r Recorded) uint64 {
+	w.mu.Lock()
+	for len(w.buf) >= w.max && w.err == nil {
+		w.room.Wait()
+	}
+	if w.err != nil {
+		w.mu.Unlock()
+		return 0
+	}
+	if w.buf == nil {
+		// Sized once (the array is then reused batch after batch).
+		w.buf = make([]Recorded, 0, min(w.max, 1<<15))
+	}
+	w.buf = append(w.buf, r)
+	w.seq++
+	seq, full := w.seq, len(w.buf) >= w.max
+	w.mu.Unlock()
+	if full {
+		w.wake()
+	}
+	return seq
+}
+
+// addResults queues results, written after every record added before them.
+func (w *writer) addResults(refs []ResultRef) {
+	w.mu.Lock()
+	w.results = append(w.results, refs...)
+	w.mu.Unlock()
+}
+
+func (w *writer) wake() {
+	select {
+	case w.kick <- struct{}{}:
+	default:
+	}
+}
+
+func (w *writer) loop() {
+	defer close(w.done)
+	timer := time.NewTimer(w.every)
+	defer timer.Stop()
+	for {
+		select {
+		case <-w.kick:
+		case <-timer.C:
+		}
+		w.mu.Lock()
+		batch, results, last, closing := w.buf, w.results, w.seq, w.closing
+		w.buf, w.spare, w.results = w.spare, nil, nil
+		failed := w.err != nil
+		w.room.Broadcast()
+		w.mu.Unlock()
+		if !failed && (len(batch) > 0 || len(results) > 0) {
+			err := w.write(batch, results)
+			w.mu.Lock()
+			if err != nil {
+				w.err = err
+				w.room.Broadcast()
 			}
-			if err := rec.RecordNodes(ctx, run, b); err != nil {
-				w.mu.Lock()
-				w.err = fmt.Errorf("record a batch of %d nodes: %w", len(b), err)
-				w.mu.Unlock()
+			w.mu.Unlock()
+			if err == nil {
+				w.committed.Store(last)
 			}
 		}
-	}()
-	return w
+		// Keep the batch's array for the next one, without its records.
+		clear(batch)
+		w.mu.Lock()
+		if w.spare == nil && cap(batch) > 0 {
+			w.spare = batch[:0]
+		}
+		w.mu.Unlock()
+		if closing {
+			return
+		}
+		timer.Reset(w.every)
+	}
+}
+
+func (w *writer) write(batch []Recorded, results []ResultRef) error {
+	if len(batch) > 0 {
+		if err := w.rec.RecordNodes(w.ctx, w.run, batch); err != nil {
+			return fmt.Errorf("record a batch of %d nodes: %w", len(batch), err)
+		}
+	}
+	if len(results) > 0 {
+		if err := w.rec.RecordResults(w.ctx, w.run, results); err != nil {
+			return fmt.Errorf("record results of run %s: %w", w.run, err)
+		}
+	}
+	return nil
 }
 
 func (w *writer) failed() error {
@@ -213,75 +349,111 @@ func (w *writer) failed() error {
 	return w.err
 }
 
-// close writes what is left and waits.
+// close writes what is pending and waits.
 func (w *writer) close() error {
-	close(w.in)
+	w.mu.Lock()
+	w.closing = true
+	w.mu.Unlock()
+	w.wake()
 	<-w.done
 	return w.failed()
 }
 
-func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Options) (*Report, error) {
+// probeBatch is how many ready nodes a cold run gathers before looking
+// them up in one query; fewer are looked up only when a worker would
+// otherwise sit idle.
+const probeBatch = 512
+
+// prepared is a node's description and key, computed in the scheduler once
+// its inputs have settled.
+type prepared struct {
+	name    string // the stage's
+	version int
+	desc    string
+	key     KeyID
+	refs    []InputRef
+	inputs  []Values
+	missed  bool // a batched look-up already found no such key
+}
+
+// done is a worker's answer for one node.
+type done struct {
+	i      int
+	out    NodeOutcome
+	rec    Recorded
+	hasRec bool // rec is to be written in a batch
+	err    error
+}
+
+// chunk is the evaluation of one graph in a session.
+type chunk struct {
+	s    *Session
+	ctx  context.Context
+	g    *Graph
+	rep  *Report
+	prep []prepared
+	// Every node's inputs, one array for the graph, cut per node.
+	refs   []InputRef
+	inputs []Values
+	inOff  []int32 // node i's inputs start at inOff[i]
+}
+
+func (s *Session) schedule(ctx context.Context, g *Graph) (*Report, error) {
 	n := len(g.Nodes)
-	rep := &Report{Run: run, Outcomes: make([]NodeOutcome, n)}
-	jobs := opts.Jobs
-	if jobs < 1 {
-		jobs = 1
+	opts := s.opts
+	rep := &Report{Run: s.info.ID, Outcomes: make([]NodeOutcome, n)}
+	jobs := max(opts.Jobs, 1)
+	s.prune()
+	inOff := make([]int32, n)
+	totalIn := 0
+	for i, nd := range g.Nodes {
+		inOff[i] = int32(totalIn)
+		totalIn += len(nd.Inputs)
 	}
-	s := &scheduler{ctx: ctx, rec: rec, run: run, opts: opts, flights: map[KeyID]*flight{}, prep: make([]*prepared, n)}
-	bl, probing := rec.(BatchLookup)
+	c := &chunk{s: s, ctx: ctx, g: g, rep: rep, prep: make([]prepared, n),
+		refs: make([]InputRef, totalIn), inputs: make([]Values, totalIn), inOff: inOff}
+	bl, probing := s.rec.(BatchLookup)
 	probing = probing && opts.Batch > 1 && !opts.NoReuse
-	var wr *writer
-	var buffered []Recorded
-	lastFlush := opts.Now()
-	flushEvery := opts.FlushEvery
-	if flushEvery <= 0 {
-		flushEvery = time.Second
-	}
-	if br, ok := rec.(BatchRecorder); ok && opts.Batch > 1 {
-		s.batched = true
-		wr = newWriter(context.WithoutCancel(ctx), br, run)
-	}
-	flush := func(force bool) {
-		if wr == nil || len(buffered) == 0 {
-			return
-		}
-		if force || len(buffered) >= opts.Batch || opts.Now().Sub(lastFlush) >= flushEvery {
-			wr.in <- buffered
-			buffered = nil
-			lastFlush = opts.Now()
-		}
-	}
-	pending := make([]int, n)
-	dependents := make([][]int, n)
-	var ready []int
+	owned := make([]flight, n) // the flights of keys first met in this graph
+
+	// Dependents in one array: deps[depStart[i]:depStart[i+1]] are node i's.
+	pending := make([]int32, n)
+	depStart := make([]int32, n+1)
 	for _, nd := range g.Nodes {
-		pending[nd.Index] = len(nd.Inputs)
+		pending[nd.Index] = int32(len(nd.Inputs))
 		for _, in := range nd.Inputs {
-			dependents[in] = append(dependents[in], nd.Index)
-		}
-		if len(nd.Inputs) == 0 {
-			ready = append(ready, nd.Index)
+			depStart[in+1]++
 		}
 	}
-	type done struct {
-		out NodeOutcome
-		err error
+	for i := 0; i < n; i++ {
+		depStart[i+1] += depStart[i]
 	}
-	work := make(chan int)
-	results := make(chan done)
+	deps := make([]int32, totalIn)
+	fill := append([]int32(nil), depStart[:n]...)
+	for _, nd := range g.Nodes {
+		for _, in := range nd.Inputs {
+			deps[fill[in]] = int32(nd.Index)
+			fill[in]++
+		}
+	}
+
+	work := make(chan int, jobs)
+	results := make(chan done, jobs)
 	var wg sync.WaitGroup
 	for w := 0; w < jobs; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			for i := range work {
-				out, err := s.node(g, rep, i)
-				results <- done{out, err}
+				results <- c.compute(i)
 			}
 		}()
 	}
+
 	settled, inflight := 0, 0
 	var firstErr error
+	var unprobed, spareProbe, runnable []int
+	head := 0 // runnable[head:] are still to dispatch
 	settle := func(o NodeOutcome) {
 		rep.Outcomes[o.Node.Index] = o
 		settled++
@@ -295,19 +467,60 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 		case o.Action == Failed:
 			rep.Failed++
 		}
-		if o.record != nil {
-			buffered = append(buffered, *o.record)
-			flush(false)
-		}
 		if opts.OnNode != nil {
 			opts.OnNode(o)
 		}
 	}
-	// release settles node i's dependents that became ready; those with a
-	// failed or skipped input are skipped at once, transitively.
 	var release func(i int)
+	// admit handles a node whose inputs all succeeded: its key is computed
+	// and, unless another node of the run has the key, it is queued for a
+	// look-up or a worker.
+	admit := func(i int) {
+		p, err := c.prepare(i)
+		if err != nil {
+			if firstErr == nil {
+				firstErr = err
+			}
+			return
+		}
+		if f, ok := s.flights[p.key]; ok {
+			if f.settled {
+				settle(sharedOutcome(f.out, g.Nodes[i]))
+				release(i)
+			} else {
+				f.waiters = append(f.waiters, i)
+			}
+			return
+		}
+		s.flights[p.key] = &owned[i]
+		if probing {
+			unprobed = append(unprobed, i)
+		} else {
+			runnable = append(runnable, i)
+		}
+	}
+	// own settles the node owning a key, records it and settles the nodes
+	// waiting for the key.
+	own := func(i int, o NodeOutcome, rec Recorded, hasRec bool) {
+		f := &owned[i]
+		f.out, f.settled = o, true
+		if hasRec {
+			f.seq = s.wr.add(rec)
+		}
+		settle(o)
+		release(i)
+		waiters := f.waiters
+		f.waiters = nil
+		for _, w := range waiters {
+			settle(sharedOutcome(o, g.Nodes[w]))
+			release(w)
+		}
+	}
+	// release admits node i's dependents that became ready; those with a
+	// failed or skipped input are skipped at once, transitively.
 	release = func(i int) {
-		for _, d := range dependents[i] {
+		for _, d32 := range deps[depStart[i]:depStart[i+1]] {
+			d := int(d32)
 			pending[d]--
 			if pending[d] > 0 {
 				continue
@@ -319,35 +532,23 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 				}
 			}
 			if ok {
-				ready = append(ready, d)
+				admit(d)
 				continue
 			}
 			settle(NodeOutcome{Node: g.Nodes[d], Skipped: true})
 			release(d)
 		}
 	}
-	probed := make([]bool, n)
-	// probe looks up every ready node not yet looked up in one batch: the
-	// ones found settle as reused at once (a warm run needs no worker), the
-	// others go to the workers, which then skip their own look-up.
+	var keys []KeyID
+	// probe looks up every queued node in one batch: the ones found settle
+	// as reused at once (a warm run needs no worker), the others go to the
+	// workers, which then skip their own look-up.
 	probe := func() error {
-		var idx []int
-		var keys []KeyID
-		for _, i := range ready {
-			if probed[i] {
-				continue
-			}
-			probed[i] = true
-			p, err := s.prepare(g, rep, i)
-			if err != nil {
-				return err
-			}
-			s.prep[i] = p
-			idx = append(idx, i)
-			keys = append(keys, p.key)
-		}
-		if len(keys) == 0 {
-			return nil
+		batch := unprobed
+		unprobed, spareProbe = spareProbe[:0], nil
+		keys = keys[:0]
+		for _, i := range batch {
+			keys = append(keys, c.prep[i].key)
 		}
 		start := opts.Now()
 		found, err := bl.LookupMany(ctx, keys)
@@ -355,89 +556,78 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 			return fmt.Errorf("look up %d nodes: %w", len(keys), err)
 		}
 		d := opts.Now().Sub(start) / time.Duration(len(keys))
-		var still []int
-		hit := map[int]bool{}
-		for _, i := range idx {
-			p := s.prep[i]
+		for _, i := range batch {
+			p := &c.prep[i]
 			stored, ok := found[p.key]
 			if !ok {
 				p.missed = true
+				runnable = append(runnable, i)
 				continue
 			}
-			hit[i] = true
 			stored.Duration = d
 			o := NodeOutcome{Node: g.Nodes[i], Key: p.key, Action: Reused, Outputs: stored.Outputs, OutputHash: stored.OutputHash, Duration: d}
-			if s.batched {
-				o.record = &Recorded{Node: stored, Action: Reused}
-			} else if err := rec.RecordNode(ctx, run, stored, Reused); err != nil {
-				return err
+			hasRec := s.wr != nil
+			if !hasRec {
+				if err := s.rec.RecordNode(ctx, s.info.ID, stored, Reused); err != nil {
+					return fmt.Errorf("record reuse of %s (%s): %w", p.key, g.Nodes[i].Label, err)
+				}
 			}
-			settle(o)
+			own(i, o, Recorded{Node: stored, Action: Reused}, hasRec)
 		}
-		for _, i := range ready {
-			if !hit[i] {
-				still = append(still, i)
-			}
-		}
-		ready = still
-		for _, i := range idx {
-			if hit[i] {
-				release(i)
-			}
-		}
+		spareProbe = batch[:0]
 		return nil
 	}
-	for settled < n {
-		if probing && firstErr == nil {
-			for {
-				before := settled
-				if err := probe(); err != nil {
-					firstErr = err
-					break
-				}
-				if settled == before {
-					break // nothing found: the rest is for the workers
-				}
-			}
-			if settled >= n {
-				break
-			}
+	for _, nd := range g.Nodes {
+		if len(nd.Inputs) == 0 {
+			admit(nd.Index)
 		}
-		for firstErr == nil && len(ready) > 0 && inflight < jobs {
-			if err := ctx.Err(); err != nil {
-				firstErr = fmt.Errorf("run interrupted: %w", err)
-				break
-			}
-			work <- ready[0]
-			ready = ready[1:]
+	}
+	dispatch := func() {
+		for firstErr == nil && head < len(runnable) && inflight < jobs {
+			work <- runnable[head]
+			head++
 			inflight++
 		}
+		if head == len(runnable) {
+			runnable, head = runnable[:0], 0
+		}
+	}
+	for settled < n {
+		if firstErr == nil {
+			if err := ctx.Err(); err != nil {
+				firstErr = fmt.Errorf("run interrupted: %w", err)
+			}
+		}
+		dispatch()
+		// Look up when enough nodes are queued, or when a worker (or the
+		// scheduler, with nothing in flight) would otherwise wait.
+		for firstErr == nil && probing && len(unprobed) > 0 &&
+			(len(unprobed) >= probeBatch || len(runnable)-head < jobs-inflight) {
+			if err := probe(); err != nil {
+				firstErr = err
+			}
+			dispatch()
+		}
+		if s.wr != nil && firstErr == nil {
+			firstErr = s.wr.failed()
+		}
 		if inflight == 0 {
-			break // stopped by an error, or nothing left that can run
+			break // finished, stopped by an error, or nothing left that can run
 		}
 		d := <-results
 		inflight--
-		if wr != nil && d.err == nil {
-			if err := wr.failed(); err != nil {
-				d.err = err
-			}
-		}
 		if d.err != nil {
 			if firstErr == nil {
 				firstErr = d.err
 			}
 			continue
 		}
-		settle(d.out)
-		release(d.out.Node.Index)
+		own(d.i, d.out, d.rec, d.hasRec)
 	}
 	close(work)
 	wg.Wait()
-	if wr != nil {
-		flush(true)
-		if err := wr.close(); err != nil && firstErr == nil {
-			firstErr = err
-		}
+	if firstErr == nil && s.wr != nil {
+		firstErr = s.wr.failed()
 	}
 	if firstErr == nil && settled < n {
 		firstErr = errors.New("graph has nodes that can never run (a cycle or a dangling input)")
@@ -445,92 +635,87 @@ func schedule(ctx context.Context, rec Recorder, run RunID, g *Graph, opts Optio
 	return rep, firstErr
 }
 
-// node evaluates one node whose inputs have all succeeded. It returns an
-// error only for storage failures.
-// prepared is a node's description and key, computed once its inputs
-// have settled.
-type prepared struct {
-	desc   string
-	key    KeyID
-	refs   []InputRef
-	inputs []Values
-	missed bool // a batched look-up already found no such key
+// prune forgets the flights of earlier chunks that the ledger now holds
+// (all of them when nodes are written directly), and any left unsettled
+// by an error.
+func (s *Session) prune() {
+	committed := uint64(math.MaxUint64)
+	if s.wr != nil {
+		committed = s.wr.committed.Load()
+	}
+	for k, f := range s.flights {
+		if !f.settled || f.seq <= committed {
+			delete(s.flights, k)
+		}
+	}
 }
 
-func (s *scheduler) prepare(g *Graph, rep *Report, i int) (*prepared, error) {
-	nd := g.Nodes[i]
+// sharedOutcome is the outcome of node nd whose key another node of the
+// run evaluated: reused (or failed) in no time, recorded once.
+func sharedOutcome(o NodeOutcome, nd *Node) NodeOutcome {
+	o.Node = nd
+	if o.Action == Computed {
+		o.Action = Reused
+	}
+	o.Duration = 0
+	return o
+}
+
+// prepare computes node i's description and key from its settled inputs.
+func (c *chunk) prepare(i int) (*prepared, error) {
+	nd := c.g.Nodes[i]
 	spec := nd.Stage.Spec()
-	p := &prepared{refs: make([]InputRef, len(nd.Inputs)), inputs: make([]Values, len(nd.Inputs))}
+	p := &c.prep[i]
+	p.name, p.version = spec.Name, spec.Version
+	// The node's slots in the graph's input arrays.
+	off := int(c.inOff[i])
+	p.refs = c.refs[off : off+len(nd.Inputs) : off+len(nd.Inputs)]
+	p.inputs = c.inputs[off : off+len(nd.Inputs) : off+len(nd.Inputs)]
 	for k, in := range nd.Inputs {
-		o := rep.Outcomes[in] // settled before this node was released
-		p.refs[k] = InputRef{Stage: g.Nodes[in].Stage.Spec().Name, Key: o.Key, Output: o.OutputHash}
+		o := c.rep.Outcomes[in] // settled before this node was released
+		p.refs[k] = InputRef{Stage: c.prep[in].name, Key: o.Key, Output: o.OutputHash}
 		p.inputs[k] = o.Outputs
 	}
-	desc, err := Describe(s.opts.Tool, spec.Name, spec.Version, nd.Params, p.refs)
+	desc, key, err := describe(c.s.opts.Tool, spec.Name, spec.Version, nd.Params, p.refs, true)
 	if err != nil {
 		return nil, fmt.Errorf("node %d (%s): %w", i, nd.Label, err)
 	}
-	p.desc, p.key = desc, KeyOf(desc)
+	p.desc, p.key = desc, key
 	return p, nil
 }
 
-func (s *scheduler) node(g *Graph, rep *Report, i int) (NodeOutcome, error) {
-	nd := g.Nodes[i]
-	spec := nd.Stage.Spec()
-	out := NodeOutcome{Node: nd}
-	p := s.prep[i]
-	if p == nil {
-		var err error
-		if p, err = s.prepare(g, rep, i); err != nil {
-			return out, err
-		}
-	}
-	desc, key, refs, inputs := p.desc, p.key, p.refs, p.inputs
-	out.Key = key
-
-	// Two nodes of one run with the same key: the second waits for the
-	// first and shares its outcome, recording nothing twice.
-	s.mu.Lock()
-	if f, ok := s.flights[key]; ok {
-		s.mu.Unlock()
-		<-f.done
-		shared := f.out
-		shared.Node = nd
-		if shared.Action == Computed {
-			shared.Action = Reused
-		}
-		shared.Duration = 0
-		return shared, nil
-	}
-	f := &flight{done: make(chan struct{})}
-	s.flights[key] = f
-	s.mu.Unlock()
-	defer close(f.done)
-
+// compute evaluates node i in a worker: a look-up first (unless one was
+// made already or reuse is off), then the stage. It returns an error only
+// for storage failures.
+func (c *chunk) compute(i int) done {
+	s := c.s
+	nd := c.g.Nodes[i]
+	p := &c.prep[i]
+	out := NodeOutcome{Node: nd, Key: p.key}
+	batched := s.wr != nil
 	if !s.opts.NoReuse && !p.missed {
 		lookStart := s.opts.Now()
-		stored, found, err := s.rec.Lookup(s.ctx, key)
+		stored, found, err := s.rec.Lookup(c.ctx, p.key)
 		if err != nil {
-			return out, fmt.Errorf("look up %s (%s): %w", key, nd.Label, err)
+			return done{i: i, err: fmt.Errorf("look up %s (%s): %w", p.key, nd.Label, err)}
 		}
 		if found {
 			out.Action, out.Outputs, out.OutputHash = Reused, stored.Outputs, stored.OutputHash
 			// The run's own time for a reused node is the look-up's.
 			stored.Duration = s.opts.Now().Sub(lookStart)
 			out.Duration = stored.Duration
-			if s.batched {
-				out.record = &Recorded{Node: stored, Action: Reused}
-			} else if err := s.rec.RecordNode(s.ctx, s.run, stored, Reused); err != nil {
-				return out, fmt.Errorf("record reuse of %s (%s): %w", key, nd.Label, err)
+			if batched {
+				return done{i: i, out: out, rec: Recorded{Node: stored, Action: Reused}, hasRec: true}
 			}
-			f.out = out
-			f.out.record = nil
-			return out, nil
+			if err := s.rec.RecordNode(c.ctx, s.info.ID, stored, Reused); err != nil {
+				return done{i: i, err: fmt.Errorf("record reuse of %s (%s): %w", p.key, nd.Label, err)}
+			}
+			return done{i: i, out: out}
 		}
 	}
-	nr := NodeRecord{Key: key, Stage: spec.Name, Version: spec.Version, Params: nd.Params, Inputs: refs, Description: desc}
+	nr := NodeRecord{Key: p.key, Stage: p.name, Version: p.version, Params: nd.Params, Inputs: p.refs, Description: p.desc}
 	start := s.opts.Now()
-	outputs, runErr := runStage(s.ctx, nd.Stage, nd.Params, inputs)
+	outputs, runErr := runStage(c.ctx, nd.Stage, nd.Params, p.inputs)
 	var hash OutputID
 	if runErr == nil {
 		hash, _, runErr = OutputHash(outputs)
@@ -541,20 +726,19 @@ func (s *scheduler) node(g *Graph, rep *Report, i int) (NodeOutcome, error) {
 	out.Duration = s.opts.Now().Sub(start)
 	nr.Duration = out.Duration
 	if runErr != nil {
-		out.Action, out.Err = Failed, &StageError{Stage: spec.Name, Label: nd.Label, Err: runErr}
+		out.Action, out.Err = Failed, &StageError{Stage: p.name, Label: nd.Label, Err: runErr}
 		nr.Status, nr.Error = NodeFailed, runErr.Error()
 	} else {
 		out.Action, out.Outputs, out.OutputHash = Computed, outputs, hash
 		nr.Status, nr.Outputs, nr.OutputHash = NodeOK, outputs, hash
 	}
-	if s.batched {
-		out.record = &Recorded{Node: nr, Action: out.Action}
-	} else if err := s.rec.RecordNode(s.ctx, s.run, nr, out.Action); err != nil {
-		return out, fmt.Errorf("record %s (%s): %w", key, nd.Label, err)
+	if batched {
+		return done{i: i, out: out, rec: Recorded{Node: nr, Action: out.Action}, hasRec: true}
 	}
-	f.out = out
-	f.out.record = nil
-	return out, nil
+	if err := s.rec.RecordNode(c.ctx, s.info.ID, nr, out.Action); err != nil {
+		return done{i: i, err: fmt.Errorf("record %s (%s): %w", p.key, nd.Label, err)}
+	}
+	return done{i: i, out: out}
 }
 
 // runStage calls the stage, turning a panic into an error so that one bad

@@ -92,7 +92,9 @@ func Describe(tool string, stage string, version int, params Values, inputs []In
 // describe is Describe, also returning the key when withKey is set (hashed
 // from the bytes before they become the string, saving a copy).
 func describe(tool string, stage string, version int, params Values, inputs []InputRef, withKey bool) (string, KeyID, error) {
-	size := 96 + len(tool) + len(stage) + encodedSize(params, "param ")
+	var arr [24]namedValue
+	entries, size := sortedValues(params, arr[:], "param ")
+	size += 96 + 4*len(tool) + len(stage)
 	for _, in := range inputs {
 		size += 16 + len(in.Stage) + len(in.Output)
 	}
@@ -106,7 +108,7 @@ func describe(tool string, stage string, version int, params Values, inputs []In
 	b = append(b, "\nversion "...)
 	b = strconv.AppendInt(b, int64(version), 10)
 	b = append(b, '\n')
-	b, err := appendValues(b, params, "param ")
+	b, err := appendValues(b, entries, "param ")
 	if err != nil {
 		return "", "", fmt.Errorf("stage %s: parameter %w", stage, err)
 	}

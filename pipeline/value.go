@@ -55,18 +55,6 @@ func (vs Values) Names() []string {
 	return names
 }
 
-// sortedNames returns the names of vs in sorted order, in buf when it is
-// large enough (encoders pass a small array on their stack, so that
-// encoding a typical set allocates nothing for its names).
-func (vs Values) sortedNames(buf []string) []string {
-	names := buf[:0]
-	for n := range vs {
-		names = append(names, n)
-	}
-	slices.Sort(names)
-	return names
-}
-
 // Num returns the float named n, or an error naming what is missing.
 func (vs Values) Num(n string) (float64, error) {
 	v, ok := vs[n]
@@ -137,14 +125,35 @@ func appendLine(b []byte, name string, v Value) ([]byte, error) {
 	return b, fmt.Errorf("value %q has no kind", name)
 }
 
-// appendValues appends the canonical lines of vs, sorted by name, each
-// after prefix and ending in a newline.
-func appendValues(b []byte, vs Values, prefix string) ([]byte, error) {
-	var arr [24]string
+// namedValue is one entry of a Values, for encoding in name order.
+type namedValue struct {
+	name string
+	v    Value
+}
+
+// sortedValues returns the entries of vs sorted by name, in buf when it is
+// large enough (encoders pass an array on their stack, so that a typical
+// set costs no allocation), and a bound on the length of their canonical
+// lines when each is written after prefix.
+func sortedValues(vs Values, buf []namedValue, prefix string) ([]namedValue, int) {
+	entries, size := buf[:0], 0
+	for n, v := range vs {
+		entries = append(entries, namedValue{n, v})
+		// A float takes at most 24 bytes; quoting writes at most 4 bytes
+		// a byte (\x00 for a control or invalid byte).
+		size += len(prefix) + len(n) + len(v.Unit) + 4*len(v.Str) + 32
+	}
+	slices.SortFunc(entries, func(a, b namedValue) int { return strings.Compare(a.name, b.name) })
+	return entries, size
+}
+
+// appendValues appends the canonical lines of entries (sorted), each after
+// prefix and ending in a newline.
+func appendValues(b []byte, entries []namedValue, prefix string) ([]byte, error) {
 	var err error
-	for _, n := range vs.sortedNames(arr[:]) {
+	for _, e := range entries {
 		b = append(b, prefix...)
-		if b, err = appendLine(b, n, vs[n]); err != nil {
+		if b, err = appendLine(b, e.name, e.v); err != nil {
 			return b, err
 		}
 		b = append(b, '\n')
@@ -152,23 +161,13 @@ func appendValues(b []byte, vs Values, prefix string) ([]byte, error) {
 	return b, nil
 }
 
-// encodedSize estimates the length of vs's canonical text, so that it is
-// written into one allocation.
-func encodedSize(vs Values, prefix string) int {
-	size := 0
-	for n, v := range vs {
-		// name, kind, a float of up to 24 bytes or the string with room
-		// for quoting, the unit and the separators.
-		size += len(prefix) + len(n) + len(v.Unit) + len(v.Str) + 32
-	}
-	return size
-}
-
 // Encode writes the canonical text of vs: one line per value, sorted by
 // name, each ending in a newline. It fails on non-finite floats, so a NaN
 // can never become a recorded result.
 func (vs Values) Encode() ([]byte, error) {
-	b, err := appendValues(make([]byte, 0, encodedSize(vs, "")), vs, "")
+	var arr [24]namedValue
+	entries, size := sortedValues(vs, arr[:], "")
+	b, err := appendValues(make([]byte, 0, size), entries, "")
 	if err != nil {
 		return nil, err
 	}
