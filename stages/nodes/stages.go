@@ -14,8 +14,8 @@ import (
 const (
 	ModelVersion     = 1
 	CanonicalVersion = 2 // 2: quadrature of sqrt(K) in ln x on a positive native domain
-	SlowRollVersion  = 1
-	ReheatVersion    = 1
+	SlowRollVersion  = 2 // 2: PhiAt on a shared e-fold bracket with a final Newton correction (second-order calibration, exact start)
+	ReheatVersion    = 2 // 2: secant steps for the self-consistent N*; PhiAt as in slow roll 2
 	CompareVersion   = 1
 )
 

@@ -118,9 +118,14 @@ type Evaluator interface {
 
 // Match solves N* self-consistently for a reheating era: V* and V_end, and
 // so N*, depend on N* through the normalisation of the potential. The map
-// N -> N*(N) has a slope of order 1/N, so fixed-point iteration from the
-// given start converges in a few steps; it stops when successive N differ
-// by less than 1e-11.
+// g: N -> N*(N) has a slope of order 1/N, so the fixed point N = g(N) is
+// found from the given start by secant steps on g(N) - N (each new N is
+// N_k + (g_k - N_k)/(1 - s), s the slope of g through the last two
+// iterates), taking the plain fixed-point step N_(k+1) = g(N_k) on the
+// first iteration and whenever the secant slope is not below 1/2 in
+// magnitude. It stops when |g(N) - N| < 1e-11 and returns the prediction
+// at that N. The iterates depend only on the start, so the result is
+// deterministic.
 func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 	if err := h.Check(); err != nil {
 		return Prediction{}, err
@@ -130,6 +135,7 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 	}
 	N := start
 	prevStep := math.Inf(1)
+	var prevN, prevG float64
 	for iter := 0; iter < 100; iter++ {
 		pr, err := ev.At(N)
 		if err != nil {
@@ -144,25 +150,27 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 		}
 		step := math.Abs(m.N - N)
 		if step < 1e-11 {
-			final, err := ev.At(m.N)
+			fm, err := h.Efolds(pr.Scale, e)
 			if err != nil {
 				return Prediction{}, err
 			}
-			fm, err := h.Efolds(final.Scale, e)
-			if err != nil {
-				return Prediction{}, err
-			}
-			final.TReh, final.TMax, final.NReh, final.W = fm.T, fm.TMax, fm.NReh, e.W
+			pr.TReh, pr.TMax, pr.NReh, pr.W = fm.T, fm.TMax, fm.NReh, e.W
 			if e.Kind == EraInstant {
-				final.W = 1.0 / 3
+				pr.W = 1.0 / 3
 			}
-			return final, nil
+			return pr, nil
 		}
 		if iter > 5 && step > prevStep {
 			return Prediction{}, fmt.Errorf("reheating matching: N* iteration does not contract (N = %g, step %g)", N, step)
 		}
-		prevStep = step
-		N = m.N
+		next := m.N
+		if iter > 0 && N != prevN {
+			if s := (m.N - prevG) / (N - prevN); math.Abs(s) < 0.5 {
+				next = N + (m.N-N)/(1-s)
+			}
+		}
+		prevStep, prevN, prevG = step, N, m.N
+		N = next
 	}
 	return Prediction{}, fmt.Errorf("reheating matching: N* did not converge in 100 iterations (last %g)", N)
 }

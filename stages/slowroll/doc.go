@@ -13,6 +13,7 @@
 // The end of inflation is found by a scan of epsilon_V over the model's
 // field range followed by Brent's method; N(phi) by adaptive Gauss–Kronrod
 // quadrature; phi at a given N by bracketing and safeguarded Newton steps
-// (dN/dphi = V/V' is known exactly). Every step is deterministic, so the
+// (dN/dphi = V/V' is known exactly), the bracket built once per solution
+// and independent of the N asked for. Every step is deterministic, so the
 // same inputs give the same bits.
 package slowroll

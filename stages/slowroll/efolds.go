@@ -3,6 +3,7 @@ package slowroll
 import (
 	"fmt"
 	"math"
+	"sync"
 
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/num"
@@ -15,6 +16,9 @@ type Solution struct {
 	Model    *model.Model
 	End      End
 	Settings *Settings
+
+	mu   sync.Mutex
+	grid *efoldGrid // PhiAt's bracket, built on first use
 }
 
 // Solve finds the end of inflation of m and returns the solution.
@@ -55,6 +59,13 @@ func (sol *Solution) edge() float64 {
 }
 
 // PhiAt returns the field value N e-folds before the end of inflation.
+//
+// The root of N(phi) = N is bracketed on the solution's e-fold grid
+// (efoldGrid: field values behind the end, N accumulated segment by
+// segment, built once and shared by every call) and then solved by
+// safeguarded Newton steps (solveIn). The grid does not depend on the N
+// asked for, so the result is the same function of N whatever was asked
+// before.
 func (sol *Solution) PhiAt(N float64) (float64, error) {
 	if !(N >= 0) || math.IsInf(N, 0) {
 		return 0, fmt.Errorf("e-folds N = %g: want a finite N >= 0", N)
@@ -62,52 +73,115 @@ func (sol *Solution) PhiAt(N float64) (float64, error) {
 	if N == 0 {
 		return sol.End.Phi, nil
 	}
+	c, err := sol.bracket(N)
+	if err != nil {
+		return 0, err
+	}
+	return sol.solveIn(c, N)
+}
+
+// efoldGrid is PhiAt's bracket: field values phi[k] behind the end of
+// inflation (phi[0] = End.Phi), at steps that start at about one e-fold
+// (|V/V'| at the end) and double, each at most 90% of the way to the edge
+// of the range (the integrand may diverge there), with n[k] = N(phi[k])
+// accumulated segment by segment and slope[k] = dN/dphi = V/V' there. It
+// is extended on demand; its points depend only on the solution.
+type efoldGrid struct {
+	model    *model.Model
+	end      End
+	settings *Settings
+	phi, n   []float64
+	slope    []float64
+	h        float64 // the next step
+	edge     bool    // the edge of the range is reached: no further point
+	err      error   // a quadrature failure while extending
+}
+
+// cell is one grid interval [a, b] (in field order of earlier times) with
+// N(a) = Na < N <= Nb = N(b) and the slopes dN/dphi at its ends.
+type cell struct {
+	a, b, Na, Nb, sa, sb float64
+}
+
+// bracket returns the first grid cell whose far end holds at least N
+// e-folds, extending the grid as needed.
+func (sol *Solution) bracket(N float64) (cell, error) {
+	sol.mu.Lock()
+	defer sol.mu.Unlock()
+	g := sol.grid
+	if g == nil || g.model != sol.Model || g.end != sol.End || g.settings != sol.Settings {
+		s0 := sol.dNdphi(sol.End.Phi)
+		h := math.Abs(s0) // about one e-fold
+		if !(h > 0) || !finite(h) {
+			h = 1e-3
+		}
+		g = &efoldGrid{model: sol.Model, end: sol.End, settings: sol.Settings,
+			phi: []float64{sol.End.Phi}, n: []float64{0}, slope: []float64{s0}, h: h}
+		sol.grid = g
+	}
 	back := -sol.End.Direction // the direction of earlier times
 	edge := sol.edge()
-	// Bracket: steps growing geometrically from the end, each at most 90%
-	// of the way to the edge of the range (the integrand may diverge there).
-	a, Na := sol.End.Phi, 0.0
-	h := math.Abs(sol.dNdphi(a)) // about one e-fold
-	if !(h > 0) || !finite(h) {
-		h = 1e-3
-	}
-	for iter := 0; ; iter++ {
+	for g.n[len(g.n)-1] < N {
+		if g.err != nil {
+			return cell{}, g.err
+		}
+		last := len(g.phi) - 1
+		a := g.phi[last]
 		room := math.Abs(edge - a)
-		step := math.Min(h, 0.9*room)
+		step := math.Min(g.h, 0.9*room)
 		b := a + back*step
-		if iter > 400 || step <= 1e-15*math.Max(1, math.Abs(a)) || b == a {
-			return 0, &RangeError{sol.Model.Describe(), sol.Model.Lo, sol.Model.Hi,
-				fmt.Sprintf("only %.4g e-folds of inflation before the edge of the field range; %g requested", Na, N)}
+		if g.edge || last > 400 || step <= 1e-15*math.Max(1, math.Abs(a)) || b == a {
+			g.edge = true
+			return cell{}, &RangeError{sol.Model.Describe(), sol.Model.Lo, sol.Model.Hi,
+				fmt.Sprintf("only %.4g e-folds of inflation before the edge of the field range; %g requested", g.n[last], N)}
 		}
 		dN, err := sol.segment(a, b)
 		if err != nil {
-			return 0, err
+			g.err = err
+			return cell{}, err
 		}
-		if Na+dN >= N {
-			return sol.solveIn(a, Na, b, Na+dN, N)
-		}
-		a, Na = b, Na+dN
-		h *= 2
+		g.phi = append(g.phi, b)
+		g.n = append(g.n, g.n[last]+dN)
+		g.slope = append(g.slope, sol.dNdphi(b))
+		g.h *= 2
 	}
+	k := 1
+	for g.n[k] < N {
+		k++
+	}
+	return cell{a: g.phi[k-1], b: g.phi[k], Na: g.n[k-1], Nb: g.n[k], sa: g.slope[k-1], sb: g.slope[k]}, nil
 }
 
-// solveIn finds phi in [a, b] (in field order of earlier times) with
-// N(phi) = N, given N(a) = Na <= N <= Nb = N(b), by Newton steps on
-// N(a) + integral_a^phi V/V' = N, falling back to bisection whenever a
-// step leaves the bracket.
-func (sol *Solution) solveIn(a, Na, b, Nb, N float64) (float64, error) {
-	lo, hi := a, b // N(lo) <= N <= N(hi)
-	Nlo, Nhi := Na, Nb
-	// Start from linear interpolation in N.
-	x := lo + (hi-lo)*(N-Nlo)/(Nhi-Nlo)
+// solveIn finds phi in the cell c with N(phi) = N by Newton steps on
+// N(phi) - N (dN/dphi = V/V' exact), each step's e-folds integrated from
+// the previous iterate, falling back to bisection whenever a step leaves
+// the bracket. It starts from the inverse cubic Hermite interpolant of
+// the cell (its ends and slopes), and once |N(phi) - N| <= 1e-12 max(1, N)
+// applies one last Newton correction, which needs no quadrature.
+func (sol *Solution) solveIn(c cell, N float64) (float64, error) {
+	lo, hi := c.a, c.b // N(lo) <= N <= N(hi)
+	Nlo, Nhi := c.Na, c.Nb
+	x := hermiteInverse(c, N)
+	if !finite(x) || (x-lo)*(x-hi) >= 0 {
+		x = lo + (hi-lo)*(N-Nlo)/(Nhi-Nlo)
+	}
+	// N(x) from the nearer end of the cell.
+	from, Nfrom := lo, Nlo
+	if math.Abs(hi-x) < math.Abs(x-lo) {
+		from, Nfrom = hi, Nhi
+	}
 	for iter := 0; iter < 100; iter++ {
-		Nx, err := sol.segment(a, x)
+		dN, err := sol.segment(from, x)
 		if err != nil {
 			return 0, err
 		}
-		Nx += Na
+		Nx := Nfrom + dN
 		F := Nx - N
+		slope := sol.dNdphi(x)
 		if math.Abs(F) <= 1e-12*math.Max(1, N) {
+			if next := x - F/slope; finite(next) && (next-lo)*(next-hi) <= 0 {
+				return next, nil
+			}
 			return x, nil
 		}
 		if F < 0 {
@@ -115,16 +189,37 @@ func (sol *Solution) solveIn(a, Na, b, Nb, N float64) (float64, error) {
 		} else {
 			hi, Nhi = x, Nx
 		}
-		next := x - F/sol.dNdphi(x)
+		next := x - F/slope
+		if Nx > 0 {
+			next = x - math.Log(Nx/N)*Nx/slope
+		}
 		if !finite(next) || (next-lo)*(next-hi) >= 0 {
 			next = 0.5 * (lo + hi)
 		}
 		if next == x {
 			return x, nil
 		}
-		x = next
+		from, Nfrom, x = x, Nx, next
 	}
 	return 0, fmt.Errorf("%s: e-fold root for N = %g did not converge", sol.Model.Describe(), N)
+}
+
+// hermiteInverse returns phi(N) from the cubic Hermite interpolant of
+// phi as a function of N on the cell: phi = a, b at N = Na, Nb with
+// dphi/dN = 1/slope at both ends (standard cubic Hermite basis, e.g.
+// Press et al., Numerical Recipes, 3rd ed. (2007), sect. 3.5, from
+// memory).
+func hermiteInverse(c cell, N float64) float64 {
+	if c.Na > 0 {
+		w := math.Log(c.Nb / c.Na)
+		u := math.Log(N/c.Na) / w
+		u2, u3 := u*u, u*u*u
+		return (2*u3-3*u2+1)*c.a + (u3-2*u2+u)*w*c.Na/c.sa + (-2*u3+3*u2)*c.b + (u3-u2)*w*c.Nb/c.sb
+	}
+	w := c.Nb - c.Na
+	u := (N - c.Na) / w
+	u2, u3 := u*u, u*u*u
+	return (2*u3-3*u2+1)*c.a + (u3-2*u2+u)*w/c.sa + (-2*u3+3*u2)*c.b + (u3-u2)*w/c.sb
 }
 
 // Evaluate returns the slow-roll point and first-order observables N
