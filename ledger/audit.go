@@ -31,12 +31,12 @@ func (l *Ledger) Audit(ctx context.Context) ([]Problem, error) {
 		}
 		var keys []string
 		for rows.Next() {
-			var k string
+			var k []byte
 			if err := rows.Scan(&k); err != nil {
 				rows.Close()
 				return err
 			}
-			keys = append(keys, k)
+			keys = append(keys, digestText(k))
 		}
 		rows.Close()
 		if err := rows.Err(); err != nil {

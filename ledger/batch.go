@@ -5,6 +5,7 @@ import (
 	"database/sql"
 	"fmt"
 	"strings"
+	"sync"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 )
@@ -23,15 +24,17 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
 		}
-		bs := &batchState{known: map[pipeline.KeyID]storedNode{}}
-		var last sql.NullInt64
-		if err := tx.QueryRowContext(ctx, "SELECT max(ordinal) FROM run_nodes WHERE run_id = ?", string(run)).Scan(&last); err != nil {
+		bs := &batchState{known: map[pipeline.KeyID]storedNode{}, absent: map[pipeline.KeyID]bool{}}
+		var err error
+		if bs.ordinal, err = nextOrdinal(ctx, tx, run); err != nil {
 			return err
 		}
-		if last.Valid {
-			bs.ordinal = int(last.Int64) + 1
+		var top sql.NullInt64
+		if err := tx.QueryRowContext(ctx, "SELECT max(id) FROM nodes").Scan(&top); err != nil {
+			return err
 		}
-		if err := prefetch(ctx, tx, batch, bs); err != nil {
+		bs.nextID = top.Int64 + 1
+		if err := l.prefetch(ctx, tx, batch, bs); err != nil {
 			return err
 		}
 		for _, b := range batch {
@@ -44,11 +47,11 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 			cols       int
 			rows       [][]any
 		}{
-			{"INSERT INTO nodes (key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at) VALUES ", "", 11, bs.nodeRows},
-			{"INSERT INTO node_inputs (key, position, input_key, input_stage, input_output_hash) VALUES ", "", 5, bs.inputRows},
+			{"INSERT INTO nodes (" + nodeInsertColumns + ") VALUES ", "", 12, bs.nodeRows},
+			{"INSERT INTO node_inputs (node, position, input) VALUES ", "", 3, bs.inputRows},
 			// A run executed in chunks may reuse one node in several: it is
 			// linked once.
-			{"INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal) VALUES ", " ON CONFLICT (run_id, key) DO NOTHING", 6, bs.linkRows},
+			{"INSERT INTO run_nodes (run_id, ordinal, node, action, duration_ns, error) VALUES ", " ON CONFLICT (run_id, node) DO NOTHING", 6, bs.linkRows},
 		} {
 			if err := insertRows(ctx, tx, t.head, t.tail, t.cols, t.rows); err != nil {
 				return err
@@ -64,17 +67,20 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 
 var _ pipeline.BatchRecorder = (*Ledger)(nil)
 
-// rowsPerStatement bounds a multi-row INSERT (11 columns x 64 rows stays
+// rowsPerStatement bounds a multi-row INSERT (12 columns x 64 rows stays
 // far below SQLite's limit on bound parameters).
 const rowsPerStatement = 64
 
-// insertRows inserts rows with as few statements as possible.
+// insertRows inserts rows with as few statements as possible: full
+// statements of rowsPerStatement rows (prepared once per transaction),
+// then one for the rest.
 func insertRows(ctx context.Context, tx *qtx, head, tail string, cols int, rows [][]any) error {
 	one := "(" + strings.TrimSuffix(strings.Repeat("?, ", cols), ", ") + ")"
+	args := make([]any, 0, rowsPerStatement*cols)
 	for len(rows) > 0 {
 		n := min(len(rows), rowsPerStatement)
 		q := head + strings.TrimSuffix(strings.Repeat(one+", ", n), ", ") + tail
-		args := make([]any, 0, n*cols)
+		args = args[:0]
 		for _, r := range rows[:n] {
 			args = append(args, r...)
 		}
@@ -88,9 +94,10 @@ func insertRows(ctx context.Context, tx *qtx, head, tail string, cols int, rows 
 
 // prefetch reads in a few statements which of the batch's nodes and inputs
 // are already stored, so that recording a node does not query for each.
-func prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batchState) error {
-	bs.absent = map[pipeline.KeyID]bool{}
-	bs.trusted = map[pipeline.KeyID]bool{}
+// Reused nodes the engine has just looked up here are taken from the
+// look-up's memory of their rows (their link's foreign key still checks
+// that the row is there).
+func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batchState) error {
 	seen := map[pipeline.KeyID]bool{}
 	var keys []pipeline.KeyID
 	add := func(k pipeline.KeyID) {
@@ -100,11 +107,11 @@ func prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batch
 		}
 	}
 	for _, b := range batch {
-		if b.Action == pipeline.Reused && b.Node.Status == pipeline.NodeOK && b.Node.OutputHash != "" {
-			// A reused record is the stored node the engine just looked up
-			// (and verified); the link's foreign key still requires the row.
-			bs.trusted[b.Node.Key] = true
-			continue
+		if b.Action == pipeline.Reused {
+			if st, ok := l.seen.take(b.Node.Key); ok {
+				bs.known[b.Node.Key] = st
+				continue
+			}
 		}
 		add(b.Node.Key)
 		for _, in := range b.Node.Inputs {
@@ -113,10 +120,14 @@ func prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batch
 	}
 	for len(keys) > 0 {
 		n := min(len(keys), 500)
-		q := "SELECT key, status, output_hash, stage, description FROM nodes WHERE key IN (" + strings.TrimSuffix(strings.Repeat("?, ", n), ", ") + ")"
+		q := "SELECT " + storedColumns + ", key FROM nodes WHERE key IN (" + strings.TrimSuffix(strings.Repeat("?, ", n), ", ") + ")"
 		args := make([]any, n)
 		for i, k := range keys[:n] {
-			args[i] = string(k)
+			if _, ok := bs.known[k]; ok {
+				args[i] = []byte{}
+				continue
+			}
+			args[i] = keyArg(k)
 			bs.absent[k] = true
 		}
 		rows, err := tx.QueryContext(ctx, q, args...)
@@ -124,15 +135,15 @@ func prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batch
 			return err
 		}
 		for rows.Next() {
-			var key, status, hash string
-			var st storedNode
-			if err := rows.Scan(&key, &status, &hash, &st.stage, &st.description); err != nil {
+			var key []byte
+			st, err := scanStored(rows, &key)
+			if err != nil {
 				rows.Close()
 				return err
 			}
-			st.status, st.outputHash = pipeline.NodeStatus(status), pipeline.OutputID(hash)
-			bs.known[pipeline.KeyID(key)] = st
-			delete(bs.absent, pipeline.KeyID(key))
+			k := pipeline.KeyID(digestText(key))
+			bs.known[k] = st
+			delete(bs.absent, k)
 		}
 		rows.Close()
 		if err := rows.Err(); err != nil {
@@ -153,55 +164,59 @@ func (l *Ledger) LookupMany(ctx context.Context, keys []pipeline.KeyID) (map[pip
 			marks := strings.TrimSuffix(strings.Repeat("?, ", n), ", ")
 			args := make([]any, n)
 			for i, k := range keys[:n] {
-				args[i] = string(k)
+				args[i] = keyArg(k)
 			}
 			rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+" FROM nodes n WHERE n.status = 'ok' AND n.key IN ("+marks+")", args...)
 			if err != nil {
 				return err
 			}
-			found := map[pipeline.KeyID]*pipeline.NodeRecord{}
+			found := map[int64]*storedRow{}
+			var ids []any
 			for rows.Next() {
-				rec, err := scanNode(rows)
+				row, err := scanNode(rows)
 				if err != nil {
 					rows.Close()
 					return err
 				}
-				found[rec.Key] = &rec
+				found[row.id] = &row
+				ids = append(ids, row.id)
 			}
 			rows.Close()
 			if err := rows.Err(); err != nil {
 				return err
 			}
-			in, err := tx.QueryContext(ctx, "SELECT key, position, input_key, input_stage, input_output_hash FROM node_inputs WHERE key IN ("+marks+") ORDER BY key, position", args...)
-			if err != nil {
-				return err
-			}
-			for in.Next() {
-				var key, up, stage, hash string
-				var pos int
-				if err := in.Scan(&key, &pos, &up, &stage, &hash); err != nil {
-					in.Close()
+			if len(ids) > 0 {
+				in, err := tx.QueryContext(ctx, "SELECT ni.node, "+inputColumns+" FROM "+inputsJoin+
+					" WHERE ni.node IN ("+strings.TrimSuffix(strings.Repeat("?, ", len(ids)), ", ")+") ORDER BY ni.node, ni.position", ids...)
+				if err != nil {
 					return err
 				}
-				rec, ok := found[pipeline.KeyID(key)]
-				if !ok {
-					continue
+				for in.Next() {
+					var (
+						node, pos int64
+						key, hash []byte
+						stage     string
+					)
+					if err := in.Scan(&node, &pos, &key, &stage, &hash); err != nil {
+						in.Close()
+						return err
+					}
+					if err := appendInput(&found[node].rec, int(pos), key, stage, hash); err != nil {
+						in.Close()
+						return err
+					}
 				}
-				if pos != len(rec.Inputs) {
-					in.Close()
-					return fmt.Errorf("%w: node %s: input positions skip to %d", ErrIntegrity, key, pos)
+				in.Close()
+				if err := in.Err(); err != nil {
+					return err
 				}
-				rec.Inputs = append(rec.Inputs, pipeline.InputRef{Stage: stage, Key: pipeline.KeyID(up), Output: pipeline.OutputID(hash)})
 			}
-			in.Close()
-			if err := in.Err(); err != nil {
-				return err
-			}
-			for k, rec := range found {
-				if err := checkDescription(*rec, true); err != nil {
-					return fmt.Errorf("stored node %s: %w", k, err)
+			for _, row := range found {
+				if err := finishNode(row); err != nil {
+					return err
 				}
-				out[k] = *rec
+				out[row.rec.Key] = row.rec
+				l.seen.put(row.rec.Key, storedNode{id: row.id, status: row.rec.Status, outputHash: row.rec.OutputHash, stage: row.rec.Stage})
 			}
 			keys = keys[n:]
 		}
@@ -214,3 +229,34 @@ func (l *Ledger) LookupMany(ctx context.Context, keys []pipeline.KeyID) (map[pip
 }
 
 var _ pipeline.BatchLookup = (*Ledger)(nil)
+
+// seenRows remembers the rows LookupMany found (their ids, statuses and
+// output hashes), so that recording their reuse a moment later needs no
+// second read. Node ids never change and ok rows never change, so an entry
+// cannot go stale; entries are taken when used, and the memory is emptied
+// when it grows past seenLimit (a miss only costs a read).
+type seenRows struct {
+	mu   sync.Mutex
+	rows map[pipeline.KeyID]storedNode
+}
+
+const seenLimit = 1 << 20
+
+func (s *seenRows) put(k pipeline.KeyID, st storedNode) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	if s.rows == nil || len(s.rows) >= seenLimit {
+		s.rows = map[pipeline.KeyID]storedNode{}
+	}
+	s.rows[k] = st
+}
+
+func (s *seenRows) take(k pipeline.KeyID) (storedNode, bool) {
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	st, ok := s.rows[k]
+	if ok {
+		delete(s.rows, k)
+	}
+	return st, ok
+}

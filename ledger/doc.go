@@ -39,10 +39,20 @@
 // conflict, and a later failure is recorded against the run only. The one
 // update allowed to a node row is failed to ok, since a failure is not a
 // result. Reads check the same hashes again, so a damaged row surfaces as
-// an error (ErrIntegrity) and never as a wrong cached answer. A row whose
-// description is in an older key format (pipeline.KeyVersion has moved on)
-// is still readable: its key and output hashes are checked, its fields are
-// not re-derived.
+// an error (ErrIntegrity) and never as a wrong cached answer: a node's
+// description is not stored but re-derived on every read from its tool,
+// stage, version, parameters and inputs, and must hash to its key. A row
+// copied from the first layout keeps its stored description, checked the
+// same way; one in an older key format (pipeline.KeyVersion has moved on)
+// is still readable on its key and output hashes alone.
+//
+// # Layout for large scans
+//
+// Node keys are SHA-256 hashes, so an index on them takes its inserts at
+// random places. Only one index does (the node key's, over 32-byte blobs):
+// nodes have integer ids in insertion order, and inputs, run links and
+// results refer to those ids, so their indexes grow at their ends and a
+// batch of thousands of nodes rewrites few pages (migration 0005).
 //
 // Times are stored as UTC RFC 3339 text with a fixed nine-digit fraction, so
 // the text order is the time order. The clock used for recorded_at and

@@ -30,6 +30,7 @@ type Ledger struct {
 	rdb  *sql.DB // readers: several connections, reading in WAL snapshots
 	path string
 	now  func() time.Time
+	seen seenRows // rows LookupMany found, for recording their reuse
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)

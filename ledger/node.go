@@ -11,91 +11,153 @@ import (
 )
 
 // nodeColumns are the columns scanNode reads, from table alias n.
-const nodeColumns = "n.key, n.stage, n.stage_version, n.params, n.description, n.outputs, n.output_hash, n.status, n.error, n.duration_ns"
+const nodeColumns = "n.id, n.key, n.tool, n.stage, n.stage_version, n.params, n.description, n.outputs, n.output_hash, n.status, n.error, n.duration_ns"
+
+// inputColumns are the columns appendInput takes for one input of node ni.node:
+// its position and the input node's key, stage and output hash.
+const inputColumns = "ni.position, u.key, u.stage, u.output_hash"
+
+// inputsJoin joins node_inputs (ni) to the input rows (u).
+const inputsJoin = "node_inputs ni JOIN nodes u ON u.id = ni.input"
 
 type scanner interface{ Scan(dest ...any) error }
 
-// scanNode reads nodeColumns (then any extra destinations) into a record
-// and decodes its values. The inputs are filled in by completeNode.
-func scanNode(s scanner, extra ...any) (pipeline.NodeRecord, error) {
+// storedRow is a node row as read: the record, plus the row id and the
+// columns that only serve to rebuild and check the description.
+type storedRow struct {
+	id   int64
+	tool string
+	// derived: the description is not stored and must be rebuilt from the
+	// fields once the inputs are known.
+	derived bool
+	rec     pipeline.NodeRecord
+}
+
+// scanNode reads nodeColumns (then any extra destinations) and decodes the
+// values, checking the outputs against their hash. The inputs are filled
+// in, and the description rebuilt and checked, by finishNode.
+func scanNode(s scanner, extra ...any) (storedRow, error) {
 	var (
-		rec             pipeline.NodeRecord
-		key, hash       string
+		row             storedRow
+		key, hash       []byte
 		params, outputs string
 		status          string
+		description     sql.NullString
 		durationNS      int64
 	)
-	dest := append([]any{&key, &rec.Stage, &rec.Version, &params, &rec.Description, &outputs, &hash, &status, &rec.Error, &durationNS}, extra...)
+	rec := &row.rec
+	dest := append([]any{&row.id, &key, &row.tool, &rec.Stage, &rec.Version, &params, &description, &outputs, &hash, &status, &rec.Error, &durationNS}, extra...)
 	if err := s.Scan(dest...); err != nil {
-		return rec, err
+		return row, err
 	}
-	rec.Key = pipeline.KeyID(key)
-	rec.OutputHash = pipeline.OutputID(hash)
+	var err error
+	if rec.Key, err = storedKey(key); err != nil {
+		return row, fmt.Errorf("node row %d: %w", row.id, err)
+	}
+	rec.OutputHash = pipeline.OutputID(digestText(hash))
 	rec.Status = pipeline.NodeStatus(status)
 	rec.Duration = time.Duration(durationNS)
-	var err error
+	rec.Description, row.derived = description.String, !description.Valid
 	if rec.Params, err = pipeline.DecodeValues([]byte(params)); err != nil {
-		return rec, fmt.Errorf("%w: node %s: stored parameters: %v", ErrIntegrity, rec.Key, err)
+		return row, fmt.Errorf("%w: node %s: stored parameters: %v", ErrIntegrity, rec.Key, err)
 	}
 	switch rec.Status {
 	case pipeline.NodeOK:
 		if got := pipeline.OutputID(pipeline.Sum([]byte(outputs))); got != rec.OutputHash {
-			return rec, fmt.Errorf("%w: node %s: stored outputs hash to %s, row says %s", ErrIntegrity, rec.Key, got, rec.OutputHash)
+			return row, fmt.Errorf("%w: node %s: stored outputs hash to %s, row says %s", ErrIntegrity, rec.Key, got, rec.OutputHash)
 		}
 		if rec.Outputs, err = pipeline.DecodeValues([]byte(outputs)); err != nil {
-			return rec, fmt.Errorf("%w: node %s: stored outputs: %v", ErrIntegrity, rec.Key, err)
+			return row, fmt.Errorf("%w: node %s: stored outputs: %v", ErrIntegrity, rec.Key, err)
 		}
 	case pipeline.NodeFailed:
 	default:
-		return rec, fmt.Errorf("%w: node %s: stored status %q", ErrIntegrity, rec.Key, status)
+		return row, fmt.Errorf("%w: node %s: stored status %q", ErrIntegrity, rec.Key, status)
 	}
-	return rec, nil
+	return row, nil
 }
 
-// completeNode loads a scanned node's inputs and checks that the stored
-// description is still the one its key and fields say.
-func completeNode(ctx context.Context, tx *qtx, rec *pipeline.NodeRecord) error {
-	rows, err := tx.QueryContext(ctx,
-		"SELECT position, input_key, input_stage, input_output_hash FROM node_inputs WHERE key = ? ORDER BY position", string(rec.Key))
+// appendInput appends one input read with inputColumns, checking that the
+// positions run 0, 1, 2...
+func appendInput(rec *pipeline.NodeRecord, pos int, key []byte, stage string, hash []byte) error {
+	if pos != len(rec.Inputs) {
+		return fmt.Errorf("%w: node %s: input positions skip from %d to %d", ErrIntegrity, rec.Key, len(rec.Inputs)-1, pos)
+	}
+	k, err := storedKey(key)
 	if err != nil {
-		return fmt.Errorf("node %s: read inputs: %w", rec.Key, err)
+		return fmt.Errorf("node %s: input %d: %w", rec.Key, pos, err)
+	}
+	rec.Inputs = append(rec.Inputs, pipeline.InputRef{Stage: stage, Key: k, Output: pipeline.OutputID(digestText(hash))})
+	return nil
+}
+
+// completeNode loads a scanned node's inputs and finishes it.
+func completeNode(ctx context.Context, tx *qtx, row *storedRow) error {
+	rows, err := tx.QueryContext(ctx, "SELECT "+inputColumns+" FROM "+inputsJoin+" WHERE ni.node = ? ORDER BY ni.position", row.id)
+	if err != nil {
+		return fmt.Errorf("node %s: read inputs: %w", row.rec.Key, err)
 	}
 	defer rows.Close()
-	rec.Inputs = nil
+	row.rec.Inputs = nil
 	for rows.Next() {
 		var (
-			pos              int
-			key, stage, hash string
+			pos       int
+			key, hash []byte
+			stage     string
 		)
 		if err := rows.Scan(&pos, &key, &stage, &hash); err != nil {
-			return fmt.Errorf("node %s: read inputs: %w", rec.Key, err)
+			return fmt.Errorf("node %s: read inputs: %w", row.rec.Key, err)
 		}
-		if pos != len(rec.Inputs) {
-			return fmt.Errorf("%w: node %s: input positions skip from %d to %d", ErrIntegrity, rec.Key, len(rec.Inputs)-1, pos)
+		if err := appendInput(&row.rec, pos, key, stage, hash); err != nil {
+			return err
 		}
-		rec.Inputs = append(rec.Inputs, pipeline.InputRef{Stage: stage, Key: pipeline.KeyID(key), Output: pipeline.OutputID(hash)})
 	}
 	if err := rows.Err(); err != nil {
-		return fmt.Errorf("node %s: read inputs: %w", rec.Key, err)
+		return fmt.Errorf("node %s: read inputs: %w", row.rec.Key, err)
 	}
-	if err := checkDescription(*rec, true); err != nil {
-		return fmt.Errorf("stored node %s: %w", rec.Key, err)
+	return finishNode(row)
+}
+
+// finishNode rebuilds the description of a row that does not store one
+// and checks that the key is its hash; a stored description (a row copied
+// from the first layout) is checked against the fields as before. Either
+// way a row edited after it was written fails with ErrIntegrity.
+func finishNode(row *storedRow) error {
+	rec := &row.rec
+	if !row.derived {
+		if err := checkDescription(*rec, true); err != nil {
+			return fmt.Errorf("stored node %s: %w", rec.Key, err)
+		}
+		return nil
 	}
+	desc, err := pipeline.Describe(row.tool, rec.Stage, rec.Version, rec.Params, rec.Inputs)
+	if err != nil {
+		return fmt.Errorf("stored node %s: %w: describe the stored fields: %v", rec.Key, ErrIntegrity, err)
+	}
+	if got := pipeline.KeyOf(desc); got != rec.Key {
+		return fmt.Errorf("stored node %s: %w: the stored fields describe key %s", rec.Key, ErrIntegrity, got)
+	}
+	rec.Description = desc
 	return nil
 }
 
 // loadNode reads one node of any status, with its inputs.
 func loadNode(ctx context.Context, tx *qtx, key pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
-	row := tx.QueryRowContext(ctx, "SELECT "+nodeColumns+" FROM nodes n WHERE n.key = ?", string(key))
-	rec, err := scanNode(row)
+	row, found, err := loadRow(ctx, tx, key)
+	return row.rec, found, err
+}
+
+// loadRow is loadNode, keeping the row id.
+func loadRow(ctx context.Context, tx *qtx, key pipeline.KeyID) (storedRow, bool, error) {
+	r := tx.QueryRowContext(ctx, "SELECT "+nodeColumns+" FROM nodes n WHERE n.key = ?", keyArg(key))
+	row, err := scanNode(r)
 	if errors.Is(err, sql.ErrNoRows) {
-		return pipeline.NodeRecord{}, false, nil
+		return storedRow{}, false, nil
 	}
 	if err != nil {
-		return pipeline.NodeRecord{}, false, fmt.Errorf("read node %s: %w", key, err)
+		return storedRow{}, false, fmt.Errorf("read node %s: %w", key, err)
 	}
-	if err := completeNode(ctx, tx, &rec); err != nil {
-		return pipeline.NodeRecord{}, false, err
+	if err := completeNode(ctx, tx, &row); err != nil {
+		return storedRow{}, false, err
 	}
-	return rec, true, nil
+	return row, true, nil
 }

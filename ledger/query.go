@@ -192,32 +192,35 @@ func (l *Ledger) RunNodes(ctx context.Context, id pipeline.RunID) ([]RunNode, er
 			return err
 		}
 		rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+`, rn.ordinal, rn.action, rn.duration_ns, rn.error
-			FROM run_nodes rn JOIN nodes n ON n.key = rn.key WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
+			FROM run_nodes rn JOIN nodes n ON n.id = rn.node WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
 		if err != nil {
 			return err
 		}
 		defer rows.Close()
+		var stored []storedRow
 		for rows.Next() {
 			var (
 				rn         RunNode
 				action     string
 				durationNS int64
 			)
-			rec, err := scanNode(rows, &rn.Ordinal, &action, &durationNS, &rn.RunError)
+			row, err := scanNode(rows, &rn.Ordinal, &action, &durationNS, &rn.RunError)
 			if err != nil {
 				return err
 			}
-			rn.NodeRecord, rn.Action, rn.RunDuration = rec, pipeline.Action(action), time.Duration(durationNS)
+			rn.Action, rn.RunDuration = pipeline.Action(action), time.Duration(durationNS)
 			out = append(out, rn)
+			stored = append(stored, row)
 		}
 		if err := rows.Err(); err != nil {
 			return err
 		}
 		rows.Close()
-		for i := range out {
-			if err := completeNode(ctx, tx, &out[i].NodeRecord); err != nil {
+		for i := range stored {
+			if err := completeNode(ctx, tx, &stored[i]); err != nil {
 				return err
 			}
+			out[i].NodeRecord = stored[i].rec
 		}
 		return nil
 	})
@@ -235,7 +238,7 @@ func (l *Ledger) RunResults(ctx context.Context, id pipeline.RunID) ([]pipeline.
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
-		rows, err := tx.QueryContext(ctx, "SELECT ordinal, label, key FROM run_results WHERE run_id = ? ORDER BY ordinal", string(id))
+		rows, err := tx.QueryContext(ctx, "SELECT rr.ordinal, rr.label, n.key FROM run_results rr JOIN nodes n ON n.id = rr.node WHERE rr.run_id = ? ORDER BY rr.ordinal", string(id))
 		if err != nil {
 			return err
 		}
@@ -243,12 +246,15 @@ func (l *Ledger) RunResults(ctx context.Context, id pipeline.RunID) ([]pipeline.
 		for rows.Next() {
 			var (
 				r   pipeline.ResultRef
-				key string
+				key []byte
+				err error
 			)
 			if err := rows.Scan(&r.Ordinal, &r.Label, &key); err != nil {
 				return err
 			}
-			r.Key = pipeline.KeyID(key)
+			if r.Key, err = storedKey(key); err != nil {
+				return err
+			}
 			out = append(out, r)
 		}
 		return rows.Err()
@@ -290,47 +296,50 @@ const maxLineageDepth = 1000
 func (l *Ledger) Lineage(ctx context.Context, key pipeline.KeyID) ([]pipeline.NodeRecord, error) {
 	var out []pipeline.NodeRecord
 	err := l.inTx(ctx, func(tx *qtx) error {
-		var n int
-		if err := tx.QueryRowContext(ctx, "SELECT count(*) FROM nodes WHERE key = ?", string(key)).Scan(&n); err != nil {
-			return err
-		}
-		if n == 0 {
+		var top int64
+		err := tx.QueryRowContext(ctx, "SELECT id FROM nodes WHERE key = ?", keyArg(key)).Scan(&top)
+		if errors.Is(err, sql.ErrNoRows) {
 			return fmt.Errorf("node %s: %w", key, ErrNotFound)
+		}
+		if err != nil {
+			return err
 		}
 		// A node's longest path from the root is longer than that of any
 		// node it feeds, so sorting by it, longest first, puts every input
 		// before its consumers.
-		rows, err := tx.QueryContext(ctx, `WITH RECURSIVE up(key, depth) AS (
+		rows, err := tx.QueryContext(ctx, `WITH RECURSIVE up(id, depth) AS (
 				SELECT ?1, 0
 				UNION
-				SELECT ni.input_key, up.depth + 1 FROM node_inputs ni JOIN up ON ni.key = up.key
+				SELECT ni.input, up.depth + 1 FROM node_inputs ni JOIN up ON ni.node = up.id
 				WHERE up.depth < ?2
 			)
-			SELECT `+nodeColumns+`, max(up.depth) AS d FROM up JOIN nodes n ON n.key = up.key
-			GROUP BY up.key ORDER BY d DESC, up.key`, string(key), maxLineageDepth)
+			SELECT `+nodeColumns+`, max(up.depth) AS d FROM up JOIN nodes n ON n.id = up.id
+			GROUP BY up.id ORDER BY d DESC, n.key`, top, maxLineageDepth)
 		if err != nil {
 			return err
 		}
 		defer rows.Close()
+		var stored []storedRow
 		for rows.Next() {
 			var depth int
-			rec, err := scanNode(rows, &depth)
+			row, err := scanNode(rows, &depth)
 			if err != nil {
 				return err
 			}
 			if depth >= maxLineageDepth {
 				return fmt.Errorf("%w: lineage deeper than %d nodes: node_inputs holds a cycle", ErrIntegrity, maxLineageDepth)
 			}
-			out = append(out, rec)
+			stored = append(stored, row)
 		}
 		if err := rows.Err(); err != nil {
 			return err
 		}
 		rows.Close()
-		for i := range out {
-			if err := completeNode(ctx, tx, &out[i]); err != nil {
+		for i := range stored {
+			if err := completeNode(ctx, tx, &stored[i]); err != nil {
 				return err
 			}
+			out = append(out, stored[i].rec)
 		}
 		return nil
 	})
@@ -348,19 +357,23 @@ func (l *Ledger) ResolveKey(ctx context.Context, ref string) (pipeline.KeyID, er
 		return "", fmt.Errorf("ledger: node key %q: give at least 6 hex digits", ref)
 	}
 	full := pipeline.HashPrefix + hexPart
+	lo, hi, err := keyRange(hexPart)
+	if err != nil {
+		return "", fmt.Errorf("ledger: node key %q: %v", ref, err)
+	}
 	var keys []string
-	err := l.inTx(ctx, func(tx *qtx) error {
-		rows, err := tx.QueryContext(ctx, "SELECT key FROM nodes WHERE substr(key, 1, length(?1)) = ?1 ORDER BY key LIMIT 11", full)
+	err = l.inReadTx(ctx, func(tx *qtx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT key FROM nodes WHERE key BETWEEN ? AND ? ORDER BY key LIMIT 11", lo, hi)
 		if err != nil {
 			return err
 		}
 		defer rows.Close()
 		for rows.Next() {
-			var k string
+			var k []byte
 			if err := rows.Scan(&k); err != nil {
 				return err
 			}
-			keys = append(keys, k)
+			keys = append(keys, digestText(k))
 		}
 		return rows.Err()
 	})

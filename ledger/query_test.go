@@ -199,8 +199,8 @@ func TestLineageRefusesCycle(t *testing.T) {
 	l, _ := openTest(t)
 	a, b, _, _ := diamond(t, l)
 	// Only a hand edit can do this: make a consume b.
-	if _, err := l.db.Exec(`INSERT INTO node_inputs (key, position, input_key, input_stage, input_output_hash) VALUES (?, 0, ?, ?, ?)`,
-		string(a.Key), string(b.Key), b.Stage, string(b.OutputHash)); err != nil {
+	if _, err := l.db.Exec(`INSERT INTO node_inputs (node, position, input) SELECT a.id, 0, b.id FROM nodes a, nodes b WHERE a.key = ? AND b.key = ?`,
+		keyArg(a.Key), keyArg(b.Key)); err != nil {
 		t.Fatal(err)
 	}
 	if _, err := l.Lineage(ctx, b.Key); !errors.Is(err, ErrIntegrity) {
@@ -214,9 +214,14 @@ func TestReadsDetectDamagedRows(t *testing.T) {
 	for _, tc := range []struct{ name, sql string }{
 		{"outputs", "UPDATE nodes SET outputs = 'y f 2.5 1\n' WHERE stage = 'canonical'"},
 		{"params", "UPDATE nodes SET params = 'k f 0.06 1\n' WHERE stage = 'canonical'"},
-		{"description", "UPDATE nodes SET description = description || 'param z f 1 1\n' WHERE stage = 'canonical'"},
-		{"input hash", "UPDATE node_inputs SET input_output_hash = 'sha256:" + strings.Repeat("0", 64) + "' WHERE key IN (SELECT key FROM nodes WHERE stage = 'canonical')"},
-		{"status", "UPDATE nodes SET status = 'ok', outputs = '', output_hash = 'sha256:" + strings.Repeat("0", 64) + "' WHERE stage = 'canonical'"},
+		// The description is not stored but re-derived from the row: a
+		// description written into the row must still match the key.
+		{"description", "UPDATE nodes SET description = 'inflatrace node key v1\ntool \"x\"\nstage canonical\n' WHERE stage = 'canonical'"},
+		{"tool", "UPDATE nodes SET tool = tool || ' ' WHERE stage = 'canonical'"},
+		{"stage version", "UPDATE nodes SET stage_version = stage_version + 1 WHERE stage = 'canonical'"},
+		// b's input moved from a to c (an ok node of another stage).
+		{"input", "UPDATE node_inputs SET input = (SELECT id FROM nodes WHERE stage = 'slowroll') WHERE node = (SELECT id FROM nodes WHERE stage = 'canonical')"},
+		{"status", "UPDATE nodes SET status = 'ok', outputs = '', output_hash = zeroblob(32) WHERE stage = 'canonical'"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			l, _ := openTest(t)
@@ -255,9 +260,9 @@ func TestOlderKeyFormat(t *testing.T) {
 	if err := l.RecordNode(ctx, run, old, pipeline.Computed); !errors.Is(err, ErrIntegrity) || !strings.Contains(err.Error(), "another key format") {
 		t.Errorf("RecordNode of an old-format description: %v, want a refusal", err)
 	}
-	if _, err := l.db.Exec(`INSERT INTO nodes (key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
-		VALUES (?, 'model', 3, ?, ?, ?, ?, 'ok', '', ?, ?)`,
-		string(old.Key), "x f 1 1\n", desc, "y f 2 1\n", string(old.OutputHash), int64(time.Second), formatTime(testClock)); err != nil {
+	if _, err := l.db.Exec(`INSERT INTO nodes (key, tool, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
+		VALUES (?, '', 'model', 3, ?, ?, ?, ?, 'ok', '', ?, ?)`,
+		keyArg(old.Key), "x f 1 1\n", desc, "y f 2 1\n", keyArg(pipeline.KeyID(old.OutputHash)), int64(time.Second), formatTime(testClock)); err != nil {
 		t.Fatal(err)
 	}
 	got, ok, err := l.Node(ctx, old.Key)
@@ -268,7 +273,7 @@ func TestOlderKeyFormat(t *testing.T) {
 		t.Errorf("old-format row:\n got %+v\nwant %+v", got, old)
 	}
 	// Its key hash is still checked.
-	if _, err := l.db.Exec("UPDATE nodes SET description = description || 'x' WHERE key = ?", string(old.Key)); err != nil {
+	if _, err := l.db.Exec("UPDATE nodes SET description = description || 'x' WHERE key = ?", keyArg(old.Key)); err != nil {
 		t.Fatal(err)
 	}
 	if _, _, err := l.Node(ctx, old.Key); !errors.Is(err, ErrIntegrity) {

@@ -52,14 +52,23 @@ func (l *Ledger) beginRun(ctx context.Context, info pipeline.RunInfo) error {
 // row that no longer matches its hashes is an error wrapping ErrIntegrity,
 // never a hit.
 func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
-	rec, found, err := l.Node(ctx, key)
+	var (
+		row   storedRow
+		found bool
+	)
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		var err error
+		row, found, err = loadRow(ctx, tx, key)
+		return err
+	})
 	if err != nil {
-		return pipeline.NodeRecord{}, false, err
+		return pipeline.NodeRecord{}, false, fmt.Errorf("ledger: read node %s: %w", key, err)
 	}
-	if !found || rec.Status != pipeline.NodeOK {
+	if !found || row.rec.Status != pipeline.NodeOK {
 		return pipeline.NodeRecord{}, false, nil
 	}
-	return rec, true, nil
+	l.seen.put(key, storedNode{id: row.id, status: row.rec.Status, outputHash: row.rec.OutputHash, stage: row.rec.Stage})
+	return row.rec, true, nil
 }
 
 // RecordNode stores what run did with a node, in one transaction.
@@ -93,35 +102,71 @@ func (l *Ledger) RecordNode(ctx context.Context, run pipeline.RunID, rec pipelin
 
 // storedNode is the part of a node row RecordNode decides on.
 type storedNode struct {
-	status      pipeline.NodeStatus
-	outputHash  pipeline.OutputID
-	stage       string
-	description string
+	id         int64
+	status     pipeline.NodeStatus
+	outputHash pipeline.OutputID
+	// What the key was described from: the tool, stage, version and
+	// parameters text, or the stored description of a first-layout row.
+	stage, tool, params string
+	version             int
+	description         sql.NullString
+}
+
+// storedColumns are the columns scanStored reads.
+const storedColumns = "id, status, output_hash, stage, tool, stage_version, params, description"
+
+func scanStored(s scanner, extra ...any) (storedNode, error) {
+	var st storedNode
+	var status string
+	var hash []byte
+	if err := s.Scan(append([]any{&st.id, &status, &hash, &st.stage, &st.tool, &st.version, &st.params, &st.description}, extra...)...); err != nil {
+		return st, err
+	}
+	st.status, st.outputHash = pipeline.NodeStatus(status), pipeline.OutputID(digestText(hash))
+	return st, nil
 }
 
 func readStored(ctx context.Context, tx *qtx, key pipeline.KeyID) (storedNode, bool, error) {
-	var s storedNode
-	var status, hash string
-	err := tx.QueryRowContext(ctx, "SELECT status, output_hash, stage, description FROM nodes WHERE key = ?", string(key)).
-		Scan(&status, &hash, &s.stage, &s.description)
+	s, err := scanStored(tx.QueryRowContext(ctx, "SELECT "+storedColumns+" FROM nodes WHERE key = ?", keyArg(key)))
 	if errors.Is(err, sql.ErrNoRows) {
 		return s, false, nil
 	}
 	if err != nil {
 		return s, false, fmt.Errorf("read node %s: %w", key, err)
 	}
-	s.status, s.outputHash = pipeline.NodeStatus(status), pipeline.OutputID(hash)
 	return s, true, nil
 }
 
+// sameDescription says whether a stored row describes the record (a
+// genuine one, checked by checkRecord): equal keys with different fields
+// mean the row was edited, or a hash collision.
+func (s storedNode) sameDescription(rec pipeline.NodeRecord, params string) error {
+	if s.description.Valid {
+		if s.description.String != rec.Description {
+			return fmt.Errorf("%w: the stored description for this key differs: %s", ErrIntegrity, firstDifference(s.description.String, rec.Description))
+		}
+		return nil
+	}
+	tool, _ := describedTool(rec.Description)
+	for _, f := range []struct{ what, stored, here string }{
+		{"tool", s.tool, tool}, {"stage", s.stage, rec.Stage},
+		{"stage version", fmt.Sprint(s.version), fmt.Sprint(rec.Version)}, {"parameters", s.params, params},
+	} {
+		if f.stored != f.here {
+			return fmt.Errorf("%w: the stored %s for this key differs: expected %q, found %q", ErrIntegrity, f.what, f.stored, f.here)
+		}
+	}
+	return nil
+}
+
 // batchState carries what a batch of RecordNodes already knows: that the
-// run is running, the next ordinal, and the nodes it stored (so their
-// consumers need not read them back).
+// run is running, the next ordinal and node id, and the nodes it stored
+// (so their consumers need not read them back).
 type batchState struct {
 	ordinal int
+	nextID  int64
 	known   map[pipeline.KeyID]storedNode
 	absent  map[pipeline.KeyID]bool // keys known not to be stored
-	trusted map[pipeline.KeyID]bool // reused nodes not read back: their link's foreign key checks them
 	// Rows to insert at the end of the batch, many per statement.
 	nodeRows, inputRows, linkRows [][]any
 }
@@ -136,23 +181,28 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 			return err
 		}
 	}
-	var old storedNode
-	var exists bool
-	if bs == nil || !bs.trusted[rec.Key] {
-		var err error
-		if old, exists, err = readStoredIn(ctx, tx, rec.Key, bs); err != nil {
+	old, exists, err := readStoredIn(ctx, tx, rec.Key, bs)
+	if err != nil {
+		return err
+	}
+	var params, outputs string
+	if action != pipeline.Reused {
+		if params, outputs, err = rowValues(rec); err != nil {
 			return err
 		}
-	}
-	if exists && action != pipeline.Reused && old.description != rec.Description {
-		return fmt.Errorf("%w: the stored description for this key differs: %s", ErrIntegrity, firstDifference(old.description, rec.Description))
+		if exists {
+			if err := old.sameDescription(rec, params); err != nil {
+				return err
+			}
+		}
 	}
 	runErr := ""
+	id := old.id
 	switch action {
 	case pipeline.Computed:
 		switch {
 		case !exists:
-			if err := l.insertNodeIn(ctx, tx, rec, bs); err != nil {
+			if id, err = l.insertNodeIn(ctx, tx, rec, params, outputs, bs); err != nil {
 				return err
 			}
 		case old.status == pipeline.NodeOK:
@@ -161,7 +211,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 					ErrIntegrity, rec.Key, old.outputHash, rec.OutputHash)
 			}
 		default: // failed before, ok now
-			if err := l.updateNode(ctx, tx, rec); err != nil {
+			if err := l.updateNode(ctx, tx, rec, outputs); err != nil {
 				return err
 			}
 		}
@@ -169,19 +219,16 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		runErr = rec.Error
 		switch {
 		case !exists:
-			if err := l.insertNodeIn(ctx, tx, rec, bs); err != nil {
+			if id, err = l.insertNodeIn(ctx, tx, rec, params, outputs, bs); err != nil {
 				return err
 			}
 		case old.status == pipeline.NodeFailed:
-			if err := l.updateNode(ctx, tx, rec); err != nil {
+			if err := l.updateNode(ctx, tx, rec, outputs); err != nil {
 				return err
 			}
 		}
 		// An ok row stays ok: the failure is this run's alone.
 	case pipeline.Reused:
-		if bs != nil && bs.trusted[rec.Key] {
-			break // found by the engine in this ledger just now; the foreign key checks it is still there
-		}
 		if !exists {
 			return fmt.Errorf("node %s: %w (a reused node must already be in the ledger)", rec.Key, ErrNotFound)
 		}
@@ -193,20 +240,21 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		}
 	}
 	if bs != nil {
-		if action == pipeline.Computed {
-			bs.known[rec.Key] = storedNode{status: pipeline.NodeOK, outputHash: rec.OutputHash, stage: rec.Stage, description: rec.Description}
+		if action == pipeline.Computed && exists && old.status != pipeline.NodeOK {
+			old.status, old.outputHash = pipeline.NodeOK, rec.OutputHash
+			bs.known[rec.Key] = old
 		}
-		// A second link of the key in this run fails on the primary key
-		// when the rows are inserted.
-		bs.linkRows = append(bs.linkRows, []any{string(run), string(rec.Key), string(action), int64(rec.Duration), runErr, bs.ordinal})
+		// A second link of the node in this run fails on the unique
+		// constraint when the rows are inserted.
+		bs.linkRows = append(bs.linkRows, []any{string(run), bs.ordinal, id, string(action), int64(rec.Duration), runErr})
 		bs.ordinal++
 		return nil
 	}
-	return insertRunNode(ctx, tx, run, rec.Key, action, rec.Duration, runErr)
+	return insertRunNode(ctx, tx, run, rec.Key, id, action, rec.Duration, runErr)
 }
 
 // readStoredIn is readStored, answered from the batch when it stored the
-// node itself.
+// node itself or has read it already.
 func readStoredIn(ctx context.Context, tx *qtx, key pipeline.KeyID, bs *batchState) (storedNode, bool, error) {
 	if bs != nil {
 		if s, ok := bs.known[key]; ok {
@@ -248,71 +296,100 @@ func rowValues(rec pipeline.NodeRecord) (params, outputs string, err error) {
 	return string(p), string(o), nil
 }
 
-// insertNode writes a new node row and its inputs. Each input must be an ok
-// node of the named stage with the output hash the record names.
-func (l *Ledger) insertNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord) error {
-	return l.insertNodeIn(ctx, tx, rec, nil)
-}
-
-func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, bs *batchState) error {
+// insertNode writes a new node row and its inputs and returns its id. Each
+// input must be an ok node of the named stage with the output hash the
+// record names.
+func (l *Ledger) insertNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord) (int64, error) {
 	params, outputs, err := rowValues(rec)
 	if err != nil {
-		return err
+		return 0, err
 	}
+	return l.insertNodeIn(ctx, tx, rec, params, outputs, nil)
+}
+
+// insertNodeIn is insertNode given the encoded values; in a batch the rows
+// are queued and the id is the batch's next one.
+func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, params, outputs string, bs *batchState) (int64, error) {
+	ups := make([]int64, len(rec.Inputs))
 	for i, in := range rec.Inputs {
 		up, ok, err := readStoredIn(ctx, tx, in.Key, bs)
 		if err != nil {
-			return err
+			return 0, err
 		}
 		switch {
 		case !ok:
-			return fmt.Errorf("input %d (%s node %s): %w", i, in.Stage, in.Key, ErrNotFound)
+			return 0, fmt.Errorf("input %d (%s node %s): %w", i, in.Stage, in.Key, ErrNotFound)
 		case up.status != pipeline.NodeOK:
-			return fmt.Errorf("input %d (%s node %s) is recorded as %s, not ok", i, in.Stage, in.Key, up.status)
+			return 0, fmt.Errorf("input %d (%s node %s) is recorded as %s, not ok", i, in.Stage, in.Key, up.status)
 		case up.stage != in.Stage:
-			return fmt.Errorf("%w: input %d (node %s) stage: expected %s (as stored), found %s", ErrIntegrity, i, in.Key, up.stage, in.Stage)
+			return 0, fmt.Errorf("%w: input %d (node %s) stage: expected %s (as stored), found %s", ErrIntegrity, i, in.Key, up.stage, in.Stage)
 		case up.outputHash != in.Output:
-			return fmt.Errorf("%w: input %d (%s node %s) output hash: expected %s (as stored), found %s", ErrIntegrity, i, in.Stage, in.Key, up.outputHash, in.Output)
+			return 0, fmt.Errorf("%w: input %d (%s node %s) output hash: expected %s (as stored), found %s", ErrIntegrity, i, in.Stage, in.Key, up.outputHash, in.Output)
 		}
+		ups[i] = up.id
 	}
-	row := []any{string(rec.Key), rec.Stage, rec.Version, params, rec.Description, outputs, string(rec.OutputHash),
+	tool, err := describedTool(rec.Description)
+	if err != nil {
+		return 0, fmt.Errorf("%w: description: %v", ErrIntegrity, err)
+	}
+	var hash any // NULL for a failed node
+	if rec.Status == pipeline.NodeOK {
+		b, err := digestBytes(string(rec.OutputHash))
+		if err != nil {
+			return 0, fmt.Errorf("%w: output hash: %v", ErrIntegrity, err)
+		}
+		hash = b
+	}
+	row := []any{nil, keyArg(rec.Key), tool, rec.Stage, rec.Version, params, outputs, hash,
 		string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now())}
+	var id int64
 	if bs != nil {
+		id = bs.nextID
+		bs.nextID++
+		row[0] = id
 		bs.nodeRows = append(bs.nodeRows, row)
-		for i, in := range rec.Inputs {
-			bs.inputRows = append(bs.inputRows, []any{string(rec.Key), i, string(in.Key), in.Stage, string(in.Output)})
+		for i := range ups {
+			bs.inputRows = append(bs.inputRows, []any{id, i, ups[i]})
 		}
-		bs.known[rec.Key] = storedNode{status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, description: rec.Description}
+		bs.known[rec.Key] = storedNode{id: id, status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, tool: tool, version: rec.Version, params: params}
 		delete(bs.absent, rec.Key)
-		return nil
+		return id, nil
 	}
-	if _, err := tx.ExecContext(ctx, `INSERT INTO nodes
-		(key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
-		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`, row...); err != nil {
-		return fmt.Errorf("insert node: %w", err)
+	res, err := tx.ExecContext(ctx, "INSERT INTO nodes ("+nodeInsertColumns+") VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", row...)
+	if err != nil {
+		return 0, fmt.Errorf("insert node: %w", err)
 	}
-	for i, in := range rec.Inputs {
-		if _, err := tx.ExecContext(ctx, `INSERT INTO node_inputs
-			(key, position, input_key, input_stage, input_output_hash) VALUES (?, ?, ?, ?, ?)`,
-			string(rec.Key), i, string(in.Key), in.Stage, string(in.Output)); err != nil {
-			return fmt.Errorf("insert input %d: %w", i, err)
+	if id, err = res.LastInsertId(); err != nil {
+		return 0, fmt.Errorf("insert node: %w", err)
+	}
+	for i := range ups {
+		if _, err := tx.ExecContext(ctx, "INSERT INTO node_inputs (node, position, input) VALUES (?, ?, ?)", id, i, ups[i]); err != nil {
+			return 0, fmt.Errorf("insert input %d: %w", i, err)
 		}
 	}
-	return nil
+	return id, nil
 }
+
+// nodeInsertColumns are the columns a new node row is written with (its
+// description is re-derived when read, so it is not stored).
+const nodeInsertColumns = "id, key, tool, stage, stage_version, params, outputs, output_hash, status, error, duration_ns, recorded_at"
 
 // updateNode rewrites the mutable part of a row that is currently failed:
 // to ok with outputs, or to failed with a newer error. The WHERE clause
 // makes "an ok row never changes" hold even if the caller got it wrong.
-func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord) error {
-	_, outputs, err := rowValues(rec)
-	if err != nil {
-		return err
+func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, outputs string) error {
+	var hash any
+	if rec.Status == pipeline.NodeOK {
+		b, err := digestBytes(string(rec.OutputHash))
+		if err != nil {
+			return fmt.Errorf("%w: output hash: %v", ErrIntegrity, err)
+		}
+		hash = b
 	}
 	res, err := tx.ExecContext(ctx, `UPDATE nodes
 		SET outputs = ?, output_hash = ?, status = ?, error = ?, duration_ns = ?, recorded_at = ?
 		WHERE key = ? AND status = 'failed'`,
-		outputs, string(rec.OutputHash), string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now()), string(rec.Key))
+		outputs, hash, string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now()), keyArg(rec.Key))
 	if err != nil {
 		return fmt.Errorf("update node: %w", err)
 	}
@@ -322,31 +399,40 @@ func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecor
 	return nil
 }
 
-// insertRunNode links a node to a run, as the next node the run touched.
-func insertRunNode(ctx context.Context, tx *qtx, run pipeline.RunID, key pipeline.KeyID, action pipeline.Action, d time.Duration, errText string) error {
+// insertRunNode links node id (key) to a run, as the next node the run
+// touched.
+func insertRunNode(ctx context.Context, tx *qtx, run pipeline.RunID, key pipeline.KeyID, id int64, action pipeline.Action, d time.Duration, errText string) error {
 	var prev string
-	err := tx.QueryRowContext(ctx, "SELECT action FROM run_nodes WHERE run_id = ? AND key = ?", string(run), string(key)).Scan(&prev)
+	err := tx.QueryRowContext(ctx, "SELECT action FROM run_nodes WHERE run_id = ? AND node = ?", string(run), id).Scan(&prev)
 	if err == nil {
 		return fmt.Errorf("run %s already recorded node %s (as %s); a run touches each key once", run, key, prev)
 	}
 	if !errors.Is(err, sql.ErrNoRows) {
 		return fmt.Errorf("read run node: %w", err)
 	}
-	// A bare max() over the (run_id, ordinal) index is answered from the
-	// index's last entry; wrapped in an expression it would scan the run.
-	var last sql.NullInt64
-	if err := tx.QueryRowContext(ctx, "SELECT max(ordinal) FROM run_nodes WHERE run_id = ?", string(run)).Scan(&last); err != nil {
-		return fmt.Errorf("next ordinal: %w", err)
+	ordinal, err := nextOrdinal(ctx, tx, run)
+	if err != nil {
+		return err
 	}
-	ordinal := 0
-	if last.Valid {
-		ordinal = int(last.Int64) + 1
-	}
-	if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal)
-		VALUES (?, ?, ?, ?, ?, ?)`, string(run), string(key), string(action), int64(d), errText, ordinal); err != nil {
+	if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, ordinal, node, action, duration_ns, error)
+		VALUES (?, ?, ?, ?, ?, ?)`, string(run), ordinal, id, string(action), int64(d), errText); err != nil {
 		return fmt.Errorf("insert run node: %w", err)
 	}
 	return nil
+}
+
+// nextOrdinal is the ordinal of the next node a run touches. A bare max()
+// over the primary key (run_id, ordinal) is answered from the index's last
+// entry; wrapped in an expression it would scan the run.
+func nextOrdinal(ctx context.Context, tx *qtx, run pipeline.RunID) (int, error) {
+	var last sql.NullInt64
+	if err := tx.QueryRowContext(ctx, "SELECT max(ordinal) FROM run_nodes WHERE run_id = ?", string(run)).Scan(&last); err != nil {
+		return 0, fmt.Errorf("next ordinal: %w", err)
+	}
+	if last.Valid {
+		return int(last.Int64) + 1, nil
+	}
+	return 0, nil
 }
 
 // RecordResults stores the run's labelled results, in one transaction.
@@ -359,8 +445,9 @@ func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results 
 		}
 		for _, r := range results {
 			var status string
-			err := tx.QueryRowContext(ctx, `SELECT n.status FROM run_nodes rn JOIN nodes n ON n.key = rn.key
-				WHERE rn.run_id = ? AND rn.key = ?`, string(run), string(r.Key)).Scan(&status)
+			var id int64
+			err := tx.QueryRowContext(ctx, `SELECT n.id, n.status FROM nodes n JOIN run_nodes rn ON rn.node = n.id
+				WHERE n.key = ? AND rn.run_id = ?`, keyArg(r.Key), string(run)).Scan(&id, &status)
 			if errors.Is(err, sql.ErrNoRows) {
 				return fmt.Errorf("result %d %q: node %s is not part of the run: %w", r.Ordinal, r.Label, r.Key, ErrNotFound)
 			}
@@ -370,8 +457,8 @@ func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results 
 			if pipeline.NodeStatus(status) != pipeline.NodeOK {
 				return fmt.Errorf("result %d %q: node %s is %s; a failed node is never a result", r.Ordinal, r.Label, r.Key, status)
 			}
-			if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, key) VALUES (?, ?, ?, ?)",
-				string(run), r.Ordinal, r.Label, string(r.Key)); err != nil {
+			if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, node) VALUES (?, ?, ?, ?)",
+				string(run), r.Ordinal, r.Label, id); err != nil {
 				return fmt.Errorf("result %d %q: %w", r.Ordinal, r.Label, err)
 			}
 		}

@@ -95,14 +95,16 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 		if err != nil {
 			return err
 		}
+		ids := make(map[pipeline.KeyID]int64, len(order))
 		for _, rec := range order {
 			old, exists, err := readStored(ctx, tx, rec.Key)
 			if err != nil {
 				return err
 			}
+			ids[rec.Key] = old.id
 			switch {
 			case !exists:
-				if err := l.insertNode(ctx, tx, rec); err != nil {
+				if ids[rec.Key], err = l.insertNode(ctx, tx, rec); err != nil {
 					return err
 				}
 				rep.Nodes++
@@ -112,7 +114,11 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 				}
 				rep.NodesKept++
 			case old.status == pipeline.NodeFailed && rec.Status == pipeline.NodeOK:
-				if err := l.updateNode(ctx, tx, rec); err != nil {
+				_, outputs, err := rowValues(rec)
+				if err != nil {
+					return err
+				}
+				if err := l.updateNode(ctx, tx, rec, outputs); err != nil {
 					return err
 				}
 				rep.Nodes++
@@ -136,14 +142,14 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 				return err
 			}
 			for _, ln := range s.links[run.ID] {
-				if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal)
-					VALUES (?, ?, ?, ?, ?, ?)`, string(run.ID), string(ln.Key), string(ln.Action), int64(ln.RunDuration), ln.RunError, ln.Ordinal); err != nil {
+				if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, ordinal, node, action, duration_ns, error)
+					VALUES (?, ?, ?, ?, ?, ?)`, string(run.ID), ln.Ordinal, ids[ln.Key], string(ln.Action), int64(ln.RunDuration), ln.RunError); err != nil {
 					return fmt.Errorf("run %s node %s: %w", run.ID, ln.Key, err)
 				}
 			}
 			for _, r := range s.results[run.ID] {
-				if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, key) VALUES (?, ?, ?, ?)",
-					string(run.ID), r.Ordinal, r.Label, string(r.Key)); err != nil {
+				if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, node) VALUES (?, ?, ?, ?)",
+					string(run.ID), r.Ordinal, r.Label, ids[r.Key]); err != nil {
 					return fmt.Errorf("run %s result %d: %w", run.ID, r.Ordinal, err)
 				}
 			}

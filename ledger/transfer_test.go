@@ -65,7 +65,7 @@ func TestAuditFindsEditedRows(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := db.Exec("UPDATE nodes SET outputs = replace(outputs, ' f ', ' f 9') WHERE key = ?", string(b.Key)); err != nil {
+	if _, err := db.Exec("UPDATE nodes SET outputs = replace(outputs, ' f ', ' f 9') WHERE key = ?", keyArg(b.Key)); err != nil {
 		t.Fatal(err)
 	}
 	if _, err := db.Exec("UPDATE runs SET config_text = config_text || ' ' WHERE id = ?", string(run)); err != nil {

@@ -111,7 +111,9 @@ var keyFormatHeader = func() string {
 // describedTool extracts the tool identity from a description's
 // "tool <quoted>" line.
 func describedTool(desc string) (string, error) {
-	for _, l := range strings.Split(desc, "\n") {
+	for rest := desc; rest != ""; {
+		var l string
+		l, rest, _ = strings.Cut(rest, "\n")
 		if q, ok := strings.CutPrefix(l, "tool "); ok {
 			tool, err := strconv.Unquote(q)
 			if err != nil {

@@ -1,0 +1,165 @@
+package ledger
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// firstLayout writes a ledger at path in the first schema layout
+// (migrations 1 to 4): the diamond a -> b, a -> c, (b, c) -> d recorded
+// computed by run r1 with d as its result, plus a failed node e, written
+// with the first layout's own statements.
+func firstLayout(t *testing.T, path string) (nodes []pipeline.NodeRecord) {
+	t.Helper()
+	ms, err := loadMigrations(migrationFiles)
+	if err != nil {
+		t.Fatal(err)
+	}
+	db, err := sql.Open("sqlite3", dsn(path))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer db.Close()
+	if err := migrate(ctx, db, ms[:4], fixedClock); err != nil {
+		t.Fatal(err)
+	}
+	a := mkNode(t, "model", pipeline.Values{"x": num(1)}, pipeline.Values{"y": num(2)})
+	b := mkNode(t, "canonical", pipeline.Values{"k": num(0.05)}, pipeline.Values{"y": num(3)}, a)
+	c := mkNode(t, "slowroll", pipeline.Values{"N": num(60)}, pipeline.Values{"y": num(4)}, a)
+	d := mkNode(t, "compare", pipeline.Values{"set": pipeline.String("demo")}, pipeline.Values{"chi2": num(1.5)}, b, c)
+	e := asFailed(mkNode(t, "slowroll", pipeline.Values{"N": num(900)}, pipeline.Values{"y": num(0)}, a), "inflation never ends")
+	info := runInfo("r1", testClock)
+	exec := func(q string, args ...any) {
+		t.Helper()
+		if _, err := db.Exec(q, args...); err != nil {
+			t.Fatalf("%s: %v", q, err)
+		}
+	}
+	exec(`INSERT INTO runs (id, started_at, finished_at, tool_version, config_path, config_text, config_hash, status, error)
+		VALUES (?, ?, ?, ?, ?, ?, ?, 'failed', '1 node(s) failed')`,
+		string(info.ID), formatTime(testClock), formatTime(testClock), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash)
+	for i, n := range []pipeline.NodeRecord{a, b, c, d, e} {
+		params, outputs, err := rowValues(n)
+		if err != nil {
+			t.Fatal(err)
+		}
+		exec(`INSERT INTO nodes (key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`, string(n.Key), n.Stage, n.Version, params, n.Description, outputs,
+			string(n.OutputHash), string(n.Status), n.Error, int64(n.Duration), formatTime(testClock))
+		for p, in := range n.Inputs {
+			exec(`INSERT INTO node_inputs (key, position, input_key, input_stage, input_output_hash) VALUES (?, ?, ?, ?, ?)`,
+				string(n.Key), p, string(in.Key), in.Stage, string(in.Output))
+		}
+		action, errText := "computed", ""
+		if n.Status == pipeline.NodeFailed {
+			action, errText = "failed", n.Error
+		}
+		exec(`INSERT INTO run_nodes (run_id, key, action, duration_ns, error, ordinal) VALUES (?, ?, ?, ?, ?, ?)`,
+			string(info.ID), string(n.Key), action, int64(n.Duration), errText, i)
+	}
+	exec(`INSERT INTO run_results (run_id, ordinal, label, key) VALUES ('r1', 0, 'd', ?)`, string(d.Key))
+	return []pipeline.NodeRecord{a, b, c, d, e}
+}
+
+// TestCompactLayoutMigration opens a first-layout ledger: migration 0005
+// must carry every node, input, run link and result over unchanged as the
+// ledger's readers see them, keep checking the copied rows (an edit is
+// still caught), and let new runs reuse and extend them.
+func TestCompactLayoutMigration(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "old.db")
+	want := firstLayout(t, path)
+	a, d, e := want[0], want[3], want[4]
+	l, err := Open(path, WithClock(fixedClock))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Close()
+	for _, n := range want {
+		got, ok, err := l.Node(ctx, n.Key)
+		if err != nil || !ok {
+			t.Fatalf("Node(%s) after migration: %v %v", n.Stage, ok, err)
+		}
+		if !reflect.DeepEqual(got, n) {
+			t.Errorf("%s node after migration:\n got %+v\nwant %+v", n.Stage, got, n)
+		}
+	}
+	lin, err := l.Lineage(ctx, d.Key)
+	if err != nil || len(lin) != 4 || lin[0].Key != a.Key || lin[3].Key != d.Key {
+		t.Errorf("Lineage(d) after migration: %d nodes, %v", len(lin), err)
+	}
+	rns, err := l.RunNodes(ctx, "r1")
+	if err != nil || len(rns) != 5 || rns[4].Action != pipeline.Failed || rns[4].RunError != e.Error || rns[2].Key != want[2].Key {
+		t.Errorf("RunNodes after migration: %+v, %v", rns, err)
+	}
+	res, err := l.RunResults(ctx, "r1")
+	if err != nil || len(res) != 1 || res[0].Key != d.Key || res[0].Label != "d" {
+		t.Errorf("RunResults after migration: %+v, %v", res, err)
+	}
+	if probs, err := l.Audit(ctx); err != nil || len(probs) != 0 {
+		t.Errorf("Audit after migration: %+v, %v", probs, err)
+	}
+	// The copied rows keep their descriptions, still checked on read.
+	var stored int
+	if err := l.db.QueryRow("SELECT count(*) FROM nodes WHERE description IS NOT NULL").Scan(&stored); err != nil || stored != 5 {
+		t.Errorf("%d copied rows keep their description (%v), want 5", stored, err)
+	}
+	// A new run reuses a copied node and adds one downstream of it.
+	run := beginRun(t, l, "r2", testClock)
+	if _, ok, err := l.Lookup(ctx, d.Key); !ok || err != nil {
+		t.Fatalf("Lookup(d): %v %v", ok, err)
+	}
+	record(t, l, run, d, pipeline.Reused)
+	f := mkNode(t, "compare", pipeline.Values{"set": pipeline.String("other")}, pipeline.Values{"chi2": num(2.5)}, d)
+	if err := l.RecordNodes(ctx, run, []pipeline.Recorded{{Node: a, Action: pipeline.Reused}, {Node: f, Action: pipeline.Computed}}); err != nil {
+		t.Fatal(err)
+	}
+	if got, ok, err := l.Node(ctx, f.Key); err != nil || !ok || !reflect.DeepEqual(got, f) {
+		t.Errorf("new node over migrated ones: %+v %v %v", got, ok, err)
+	}
+	if _, err := l.db.Exec("UPDATE nodes SET params = 'x f 7 1\n' WHERE key = ?", keyArg(a.Key)); err != nil {
+		t.Fatal(err)
+	}
+	if _, _, err := l.Node(ctx, a.Key); !errors.Is(err, ErrIntegrity) {
+		t.Errorf("edited copied row: %v, want ErrIntegrity", err)
+	}
+}
+
+// TestCompactLayoutStoresNoDescription: a node recorded in the compact
+// layout stores its key and output hash as 32-byte digests and no
+// description, and reads back with the description Describe writes.
+func TestCompactLayoutStoresNoDescription(t *testing.T) {
+	l, _ := openTest(t)
+	run := beginRun(t, l, "r1", testClock)
+	a, b := chainAB(t, l, run)
+	var keyLen, hashLen int
+	var desc sql.NullString
+	var tool string
+	if err := l.db.QueryRow("SELECT length(key), length(output_hash), description, tool FROM nodes WHERE key = ?", keyArg(b.Key)).
+		Scan(&keyLen, &hashLen, &desc, &tool); err != nil {
+		t.Fatal(err)
+	}
+	if keyLen != 32 || hashLen != 32 || desc.Valid || tool != testTool {
+		t.Errorf("stored row: key %d bytes, hash %d bytes, description %v, tool %q", keyLen, hashLen, desc, tool)
+	}
+	got, ok, err := l.Node(ctx, b.Key)
+	if err != nil || !ok || got.Description != b.Description || !reflect.DeepEqual(got.Inputs, b.Inputs) {
+		t.Errorf("Node(b) = %+v, %v, %v", got, ok, err)
+	}
+	// Prefix look-ups use the key index: odd and even numbers of digits.
+	hexPart := strings.TrimPrefix(string(a.Key), pipeline.HashPrefix)
+	for _, n := range []int{6, 7, 64} {
+		if k, err := l.ResolveKey(context.Background(), hexPart[:n]); err != nil || k != a.Key {
+			t.Errorf("ResolveKey(%d digits) = %s, %v", n, k, err)
+		}
+	}
+	if _, err := l.ResolveKey(context.Background(), "zzzzzzz"); err == nil {
+		t.Error("ResolveKey of non-hex digits succeeded")
+	}
+}
