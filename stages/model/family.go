@@ -81,30 +81,22 @@ func (e *ParamError) Error() string {
 // checking every value against its declared range. Unknown and missing
 // parameters are errors that list the allowed names.
 func (f *Family) New(given map[string]float64) (*Model, error) {
-	p := map[string]float64{}
-	allowed := strings.Join(f.ParamNames(), ", ")
-	if allowed == "" {
-		allowed = "none"
-	}
-	known := map[string]bool{}
-	for _, d := range f.Params {
-		known[d.Name] = true
-	}
 	var unknown []string
 	for n := range given {
-		if !known[n] {
+		if !f.hasParam(n) {
 			unknown = append(unknown, n)
 		}
 	}
 	if len(unknown) > 0 {
 		sort.Strings(unknown)
-		return nil, &ParamError{Family: f.Name, Param: unknown[0], Msg: "unknown parameter (allowed: " + allowed + ")"}
+		return nil, &ParamError{Family: f.Name, Param: unknown[0], Msg: "unknown parameter (allowed: " + f.allowed() + ")"}
 	}
+	p := make(map[string]float64, len(f.Params))
 	for _, d := range f.Params {
 		v, ok := given[d.Name]
 		if !ok {
 			if math.IsNaN(d.Default) {
-				return nil, &ParamError{Family: f.Name, Param: d.Name, Msg: "missing (required: " + allowed + ")"}
+				return nil, &ParamError{Family: f.Name, Param: d.Name, Msg: "missing (required: " + f.allowed() + ")"}
 			}
 			v = d.Default
 		}
@@ -116,6 +108,25 @@ func (f *Family) New(given map[string]float64) (*Model, error) {
 	// A build fails only where the model is computed (a numerical canonical
 	// map); its error already names the family.
 	return f.build(p)
+}
+
+// hasParam reports whether the family declares a parameter named n.
+func (f *Family) hasParam(n string) bool {
+	for _, d := range f.Params {
+		if d.Name == n {
+			return true
+		}
+	}
+	return false
+}
+
+// allowed lists the declared parameter names for error messages ("none"
+// when there are none).
+func (f *Family) allowed() string {
+	if len(f.Params) == 0 {
+		return "none"
+	}
+	return strings.Join(f.ParamNames(), ", ")
 }
 
 func (d Param) check(v float64) error {

@@ -228,22 +228,24 @@ func reheatOutputs(params, in pipeline.Values, history string) (pipeline.Values,
 
 // predictionValues encodes a normalised prediction.
 func predictionValues(pr reheat.Prediction) pipeline.Values {
-	return pipeline.Values{
-		"N_star":              pipeline.Float(pr.N, pipeline.UnitNone),
-		"phi_star":            pipeline.Float(pr.Point.Phi, pipeline.UnitMp),
-		"epsilon_V":           pipeline.Float(pr.Point.Epsilon, pipeline.UnitNone),
-		"eta_V":               pipeline.Float(pr.Point.Eta, pipeline.UnitNone),
-		"xi2_V":               pipeline.Float(pr.Point.Xi2, pipeline.UnitNone),
-		"n_s":                 pipeline.Float(pr.Obs.Ns, pipeline.UnitNone),
-		"r":                   pipeline.Float(pr.Obs.R, pipeline.UnitNone),
-		"alpha_s":             pipeline.Float(pr.Obs.AlphaS, pipeline.UnitNone),
-		"n_t":                 pipeline.Float(pr.Obs.Nt, pipeline.UnitNone),
-		"V0":                  pipeline.Float(pr.Scale.V0, pipeline.UnitMp4),
-		"V0_quarter_GeV":      pipeline.Float(reheat.QuarterGeV(pr.Scale.V0), pipeline.UnitGeV),
-		"energy_scale_GeV":    pipeline.Float(reheat.QuarterGeV(pr.Scale.Vstar), pipeline.UnitGeV),
-		"H_star_GeV":          pipeline.Float(reheat.GeV(pr.Scale.Hstar), pipeline.UnitGeV),
-		"rho_end_quarter_GeV": pipeline.Float(reheat.QuarterGeV(pr.Scale.RhoEnd), pipeline.UnitGeV),
-	}
+	// Room for the values the callers add: the history's and the model's
+	// specification.
+	vs := make(pipeline.Values, 32)
+	vs["N_star"] = pipeline.Float(pr.N, pipeline.UnitNone)
+	vs["phi_star"] = pipeline.Float(pr.Point.Phi, pipeline.UnitMp)
+	vs["epsilon_V"] = pipeline.Float(pr.Point.Epsilon, pipeline.UnitNone)
+	vs["eta_V"] = pipeline.Float(pr.Point.Eta, pipeline.UnitNone)
+	vs["xi2_V"] = pipeline.Float(pr.Point.Xi2, pipeline.UnitNone)
+	vs["n_s"] = pipeline.Float(pr.Obs.Ns, pipeline.UnitNone)
+	vs["r"] = pipeline.Float(pr.Obs.R, pipeline.UnitNone)
+	vs["alpha_s"] = pipeline.Float(pr.Obs.AlphaS, pipeline.UnitNone)
+	vs["n_t"] = pipeline.Float(pr.Obs.Nt, pipeline.UnitNone)
+	vs["V0"] = pipeline.Float(pr.Scale.V0, pipeline.UnitMp4)
+	vs["V0_quarter_GeV"] = pipeline.Float(reheat.QuarterGeV(pr.Scale.V0), pipeline.UnitGeV)
+	vs["energy_scale_GeV"] = pipeline.Float(reheat.QuarterGeV(pr.Scale.Vstar), pipeline.UnitGeV)
+	vs["H_star_GeV"] = pipeline.Float(reheat.GeV(pr.Scale.Hstar), pipeline.UnitGeV)
+	vs["rho_end_quarter_GeV"] = pipeline.Float(reheat.QuarterGeV(pr.Scale.RhoEnd), pipeline.UnitGeV)
+	return vs
 }
 
 // bandValues encodes a band: the span of N*, n_s and r and the histories

@@ -112,12 +112,15 @@ func (SlowRoll) Spec() pipeline.Spec {
 // decodeSlowRoll reads the settings back from node values (parameters or
 // the outputs that carry them forward).
 func decodeSlowRoll(vs pipeline.Values) SlowRollParams {
-	p := SlowRollParams{Exact: map[string]float64{}}
-	p.Method, _ = vs.Text("method")
-	p.End, _ = vs.Text("end")
-	p.EndPhi, _ = vs.Num("end_phi")
+	var p SlowRollParams
+	p.Method = text(vs, "method")
+	p.End = text(vs, "end")
+	p.EndPhi, _ = number(vs, "end_phi")
 	for _, k := range exactKeys {
-		if x, err := vs.Num(k); err == nil {
+		if x, ok := number(vs, k); ok {
+			if p.Exact == nil {
+				p.Exact = map[string]float64{}
+			}
 			p.Exact[k] = x
 		}
 	}
@@ -173,7 +176,7 @@ func (SlowRoll) Run(_ context.Context, params pipeline.Values, inputs []pipeline
 	if sol.End, err = sp.potentialEnd(sol); err != nil {
 		return nil, err
 	}
-	out := specOf(m, in)
+	out := specOf(m, in, len(params)+3)
 	for k, v := range params {
 		out[k] = v
 	}
@@ -207,12 +210,14 @@ func solutionFrom(in pipeline.Values) (*slowroll.Solution, error) {
 	if err != nil {
 		return nil, err
 	}
-	phi, err := in.Num("phi_end")
-	if err != nil {
+	phi, ok := number(in, "phi_end")
+	if !ok {
+		_, err := in.Num("phi_end")
 		return nil, err
 	}
-	dir, err := in.Num("roll_direction")
-	if err != nil {
+	dir, ok := number(in, "roll_direction")
+	if !ok {
+		_, err := in.Num("roll_direction")
 		return nil, err
 	}
 	return &slowroll.Solution{Model: m, End: slowroll.End{Phi: phi, Direction: dir, V: m.At(phi).V}}, nil

@@ -66,7 +66,7 @@ func buildModel(vs pipeline.Values) (*model.Model, error) {
 	if err != nil {
 		return nil, err
 	}
-	given := map[string]float64{}
+	given := make(map[string]float64, len(fam.Params))
 	for n, v := range vs {
 		if name, ok := strings.CutPrefix(n, ParamPrefix); ok {
 			given[name] = v.Float
@@ -82,8 +82,8 @@ func buildModel(vs pipeline.Values) (*model.Model, error) {
 		return nil, fmt.Errorf("field range needs both %s and %s", keyFieldLo, keyFieldHi)
 	}
 	if hasLo {
-		lo, _ := vs.Num(keyFieldLo)
-		hi, _ := vs.Num(keyFieldHi)
+		lo, _ := number(vs, keyFieldLo)
+		hi, _ := number(vs, keyFieldHi)
 		if lo != m.Lo || hi != m.Hi {
 			if m, err = m.WithRange(lo, hi); err != nil {
 				return nil, err
@@ -114,29 +114,49 @@ func carrySpec(in, out pipeline.Values) {
 }
 
 // specOf returns the specification to carry forward from a node whose
-// input specified m.
-func specOf(m *model.Model, in pipeline.Values) pipeline.Values {
+// input specified m, in a map with room for extra more values.
+func specOf(m *model.Model, in pipeline.Values, extra int) pipeline.Values {
 	if m.Family == CustomFamily {
-		out := pipeline.Values{}
+		out := make(pipeline.Values, len(in)+extra)
 		carrySpec(in, out)
 		return out
 	}
-	return specValues(m)
+	return specValues(m, extra)
 }
 
-// specValues returns the values that specify m, to carry forward.
-func specValues(m *model.Model) pipeline.Values {
+// specValues returns the values that specify m, to carry forward, in a
+// map with room for extra more values.
+func specValues(m *model.Model, extra int) pipeline.Values {
 	if m.Family == CustomFamily {
 		panic("specValues: a user-written model's specification is carried with carrySpec")
 	}
 	fam, _ := model.Lookup(m.Family)
-	vs := pipeline.Values{keyFamily: pipeline.String(m.Family)}
+	vs := make(pipeline.Values, 3+len(fam.Params)+extra)
+	vs[keyFamily] = pipeline.String(m.Family)
 	for _, p := range fam.Params {
 		vs[ParamPrefix+p.Name] = pipeline.Float(m.Params[p.Name], p.Unit)
 	}
 	vs[keyFieldLo] = pipeline.Float(m.Lo, pipeline.UnitMp)
 	vs[keyFieldHi] = pipeline.Float(m.Hi, pipeline.UnitMp)
 	return vs
+}
+
+// number returns the float named n and whether there is one (a missing
+// value costs no error).
+func number(vs pipeline.Values, n string) (float64, bool) {
+	v, ok := vs[n]
+	if !ok || v.Kind != pipeline.KindFloat {
+		return 0, false
+	}
+	return v.Float, true
+}
+
+// text returns the string named n, or "" when there is none.
+func text(vs pipeline.Values, n string) string {
+	if v, ok := vs[n]; ok && v.Kind == pipeline.KindString {
+		return v.Str
+	}
+	return ""
 }
 
 // onlyInput returns the single input of a one-input stage.

@@ -58,7 +58,7 @@ func (Model) Run(_ context.Context, params pipeline.Values, _ []pipeline.Values)
 		return out, nil
 	}
 	fam, _ := model.Lookup(m.Family)
-	out := specValues(m)
+	out := specValues(m, 3)
 	out["formula"] = pipeline.String(fam.Formula)
 	out["reference"] = pipeline.String(fam.Reference)
 	if fam.AsymptoticW != nil {
@@ -95,7 +95,7 @@ func (Canonical) Run(_ context.Context, _ pipeline.Values, inputs []pipeline.Val
 	if err != nil {
 		return nil, err
 	}
-	out := specOf(m, in)
+	out := specOf(m, in, 4)
 	out["native_field"] = pipeline.String(rep.Field)
 	out["canonical_map"] = pipeline.String(rep.MapFormula)
 	out["map_check_points"] = pipeline.Float(float64(rep.Points), pipeline.UnitNone)
@@ -168,7 +168,7 @@ func ForecastParams(f compare.Forecast) pipeline.Values {
 
 // GaussianFrom reads a Gaussian constraint back from compare parameters.
 func GaussianFrom(params pipeline.Values) (compare.Gaussian, bool) {
-	if k, err := params.Text("kind"); err == nil && k != KindGaussian {
+	if k, ok := params["kind"]; ok && k.Kind == pipeline.KindString && k.Str != KindGaussian {
 		return compare.Gaussian{}, false
 	}
 	var g compare.Gaussian
@@ -196,7 +196,8 @@ func (Compare) Run(_ context.Context, params pipeline.Values, inputs []pipeline.
 	if err != nil {
 		return nil, err
 	}
-	if kind, _ := params.Text("kind"); kind == KindForecast {
+	kind := text(params, "kind")
+	if kind == KindForecast {
 		var f compare.Forecast
 		f.Name, _ = params.Text("constraint")
 		f.Citation, _ = params.Text("citation")
@@ -211,7 +212,7 @@ func (Compare) Run(_ context.Context, params pipeline.Values, inputs []pipeline.
 		}, nil
 	}
 	var c compare.Comparison
-	if kind, _ := params.Text("kind"); kind == KindSamples {
+	if kind == KindSamples {
 		name, _ := params.Text("constraint")
 		citation, _ := params.Text("citation")
 		text, _ := params.Text("samples")

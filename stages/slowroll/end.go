@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"sync"
 
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/num"
@@ -58,6 +59,27 @@ func (e *RangeError) Error() string {
 // end of inflation close to an edge of the range is still bracketed.
 func scanGrid(lo, hi float64, n int) []float64 {
 	w := hi - lo
+	us := scanFractions(n)
+	xs := make([]float64, 0, len(us))
+	for _, u := range us {
+		x := lo + w*u
+		if x > lo && x < hi && (len(xs) == 0 || x > xs[len(xs)-1]) {
+			xs = append(xs, x)
+		}
+	}
+	return xs
+}
+
+// fractionCache holds scanFractions' results by n (read-only once
+// stored).
+var fractionCache sync.Map
+
+// scanFractions returns the positions of scanGrid's n points as sorted
+// fractions of the range's width, computed once for each n.
+func scanFractions(n int) []float64 {
+	if us, ok := fractionCache.Load(n); ok {
+		return us.([]float64)
+	}
 	us := make([]float64, 0, n)
 	third := n / 3
 	for i := 0; i < third; i++ {
@@ -70,14 +92,8 @@ func scanGrid(lo, hi float64, n int) []float64 {
 		us = append(us, float64(i)/float64(rest+1))
 	}
 	sort.Float64s(us)
-	xs := make([]float64, 0, len(us))
-	for _, u := range us {
-		x := lo + w*u
-		if x > lo && x < hi && (len(xs) == 0 || x > xs[len(xs)-1]) {
-			xs = append(xs, x)
-		}
-	}
-	return xs
+	stored, _ := fractionCache.LoadOrStore(n, us)
+	return stored.([]float64)
 }
 
 // FindEnd locates the end of inflation, where epsilon_V = 1, inside the
