@@ -2,7 +2,7 @@ package pipeline
 
 import (
 	"fmt"
-	"strings"
+	"strconv"
 )
 
 // Node is one execution of a stage in a graph.
@@ -48,21 +48,31 @@ func (g *Graph) Add(st Stage, params Values, label string, inputs ...int) (int, 
 			return 0, fmt.Errorf("stage %s: input %d is a %s node, want %s", spec.Name, i, got, spec.Inputs[i])
 		}
 	}
-	enc, err := params.Encode()
+	// The node's signature: stage, version, canonical parameters, inputs.
+	var arr [24]namedValue
+	entries, size := sortedValues(params, arr[:], "")
+	sig := make([]byte, 0, size+len(spec.Name)+16+8*len(inputs))
+	sig = append(sig, spec.Name...)
+	sig = append(sig, '/')
+	sig = strconv.AppendInt(sig, int64(spec.Version), 10)
+	sig = append(sig, '\n')
+	sig, err := appendValues(sig, entries, "")
 	if err != nil {
 		return 0, fmt.Errorf("stage %s: %w", spec.Name, err)
 	}
-	var sig strings.Builder
-	fmt.Fprintf(&sig, "%s/%d\n%s%v", spec.Name, spec.Version, enc, inputs)
+	for _, in := range inputs {
+		sig = append(sig, ' ')
+		sig = strconv.AppendInt(sig, int64(in), 10)
+	}
 	if g.index == nil {
 		g.index = map[string]int{}
 	}
-	if i, ok := g.index[sig.String()]; ok {
+	if i, ok := g.index[string(sig)]; ok {
 		return i, nil
 	}
 	n := &Node{Index: len(g.Nodes), Stage: st, Params: params, Inputs: inputs, Label: label}
 	g.Nodes = append(g.Nodes, n)
-	g.index[sig.String()] = n.Index
+	g.index[string(sig)] = n.Index
 	return n.Index, nil
 }
 
