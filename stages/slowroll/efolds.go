@@ -80,21 +80,26 @@ func (sol *Solution) PhiAt(N float64) (float64, error) {
 	return sol.solveIn(c, N)
 }
 
-// efoldGrid is PhiAt's bracket: field values phi[k] behind the end of
-// inflation (phi[0] = End.Phi), at steps that start at about one e-fold
-// (|V/V'| at the end) and double, each at most 90% of the way to the edge
-// of the range (the integrand may diverge there), with n[k] = N(phi[k])
-// accumulated segment by segment and slope[k] = dN/dphi = V/V' there. It
-// is extended on demand; its points depend only on the solution.
+// efoldGrid is PhiAt's bracket: field values behind the end of inflation
+// (the first is End.Phi), at steps that start at about one e-fold (|V/V'|
+// at the end) and double, each at most 90% of the way to the edge of the
+// range (the integrand may diverge there), with N accumulated segment by
+// segment. It is extended on demand; its points depend only on the
+// solution.
 type efoldGrid struct {
 	model    *model.Model
 	end      End
 	settings *Settings
-	phi, n   []float64
-	slope    []float64
+	pts      []gridPoint
 	h        float64 // the next step
 	edge     bool    // the edge of the range is reached: no further point
 	err      error   // a quadrature failure while extending
+}
+
+// gridPoint is one point of the e-fold grid: the field, N there and the
+// slope dN/dphi = V/V'.
+type gridPoint struct {
+	phi, n, slope float64
 }
 
 // cell is one grid interval [a, b] (in field order of earlier times) with
@@ -115,41 +120,40 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 		if !(h > 0) || !finite(h) {
 			h = 1e-3
 		}
-		g = &efoldGrid{model: sol.Model, end: sol.End, settings: sol.Settings,
-			phi: []float64{sol.End.Phi}, n: []float64{0}, slope: []float64{s0}, h: h}
+		g = &efoldGrid{model: sol.Model, end: sol.End, settings: sol.Settings, h: h,
+			pts: append(make([]gridPoint, 0, 16), gridPoint{phi: sol.End.Phi, slope: s0})}
 		sol.grid = g
 	}
 	back := -sol.End.Direction // the direction of earlier times
 	edge := sol.edge()
-	for g.n[len(g.n)-1] < N {
+	for g.pts[len(g.pts)-1].n < N {
 		if g.err != nil {
 			return cell{}, g.err
 		}
-		last := len(g.phi) - 1
-		a := g.phi[last]
+		last := len(g.pts) - 1
+		a, Na := g.pts[last].phi, g.pts[last].n
 		room := math.Abs(edge - a)
 		step := math.Min(g.h, 0.9*room)
 		b := a + back*step
 		if g.edge || last > 400 || step <= 1e-15*math.Max(1, math.Abs(a)) || b == a {
 			g.edge = true
 			return cell{}, &RangeError{sol.Model.Describe(), sol.Model.Lo, sol.Model.Hi,
-				fmt.Sprintf("only %.4g e-folds of inflation before the edge of the field range; %g requested", g.n[last], N)}
+				fmt.Sprintf("only %.4g e-folds of inflation before the edge of the field range; %g requested", Na, N)}
 		}
 		dN, err := sol.segment(a, b)
 		if err != nil {
 			g.err = err
 			return cell{}, err
 		}
-		g.phi = append(g.phi, b)
-		g.n = append(g.n, g.n[last]+dN)
-		g.slope = append(g.slope, sol.dNdphi(b))
+		g.pts = append(g.pts, gridPoint{phi: b, n: Na + dN, slope: sol.dNdphi(b)})
 		g.h *= 2
 	}
 	k := 1
-	for g.n[k] < N {
+	for g.pts[k].n < N {
 		k++
 	}
-	return cell{a: g.phi[k-1], b: g.phi[k], Na: g.n[k-1], Nb: g.n[k], sa: g.slope[k-1], sb: g.slope[k]}, nil
+	p, q := g.pts[k-1], g.pts[k]
+	return cell{a: p.phi, b: q.phi, Na: p.n, Nb: q.n, sa: p.slope, sb: q.slope}, nil
 }
 
 // solveIn finds phi in the cell c with N(phi) = N by Newton steps on
