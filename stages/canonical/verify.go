@@ -162,6 +162,14 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 // short range of u: the quadrature in x needs thousands of subintervals
 // there, the one in u a few. The integrand is still sqrt(K) evaluated
 // from the kinetic function, so the check stays independent of the map.
+//
+// Only an edge at x = 0 is treated so: there x = e^u keeps its relative
+// precision however close to the edge. Near an edge elsewhere (the
+// Poincaré disk's chi = ±sqrt(6 alpha)) x cannot resolve its distance to
+// the edge, and a variable that stretches that neighbourhood (x = h tanh v
+// was tried) integrates the rounding noise of K over a long interval: the
+// quadrature then fails to converge (two-plateau, alpha = 1), where the
+// one in x, whose neighbourhood of the edge is short, converges.
 func quadratureOfSqrtK(nf *model.NativeField, quad *num.QuadSettings) func(x float64) (float64, error) {
 	if nf.Lo >= 0 && nf.Origin > 0 {
 		f := func(u float64) float64 {
