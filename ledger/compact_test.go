@@ -46,12 +46,12 @@ func firstLayout(t *testing.T, path string) (nodes []pipeline.NodeRecord) {
 		VALUES (?, ?, ?, ?, ?, ?, ?, 'failed', '1 node(s) failed')`,
 		string(info.ID), formatTime(testClock), formatTime(testClock), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash)
 	for i, n := range []pipeline.NodeRecord{a, b, c, d, e} {
-		params, outputs, err := rowValues(n)
+		text, err := rowValues(n)
 		if err != nil {
 			t.Fatal(err)
 		}
 		exec(`INSERT INTO nodes (key, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
-			VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`, string(n.Key), n.Stage, n.Version, params, n.Description, outputs,
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`, string(n.Key), n.Stage, n.Version, text.params, n.Description, text.outputs,
 			string(n.OutputHash), string(n.Status), n.Error, int64(n.Duration), formatTime(testClock))
 		for p, in := range n.Inputs {
 			exec(`INSERT INTO node_inputs (key, position, input_key, input_stage, input_output_hash) VALUES (?, ?, ?, ?, ?)`,

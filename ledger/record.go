@@ -90,9 +90,9 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 // In every case the run must be running and must not have touched the key
 // before.
 func (l *Ledger) RecordNode(ctx context.Context, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
-	err := checkRecord(rec, action)
+	text, err := checkRecord(rec, action)
 	if err == nil {
-		err = l.inTx(ctx, func(tx *qtx) error { return l.recordNode(ctx, tx, run, rec, action) })
+		err = l.inTx(ctx, func(tx *qtx) error { return l.recordNodeIn(ctx, tx, run, rec, text, action, nil) })
 	}
 	if err != nil {
 		return fmt.Errorf("ledger: record %s node %s in run %s: %w", action, rec.Key, run, err)
@@ -171,11 +171,9 @@ type batchState struct {
 	nodeRows, inputRows, linkRows [][]any
 }
 
-func (l *Ledger) recordNode(ctx context.Context, tx *qtx, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
-	return l.recordNodeIn(ctx, tx, run, rec, action, nil)
-}
-
-func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action, bs *batchState) error {
+// recordNodeIn records one node (RecordNode) inside tx; text is its row
+// text from checkRecord. In a batch (bs set) the rows are queued.
+func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, rec pipeline.NodeRecord, text rowText, action pipeline.Action, bs *batchState) error {
 	if bs == nil {
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
@@ -185,15 +183,9 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 	if err != nil {
 		return err
 	}
-	var params, outputs string
-	if action != pipeline.Reused {
-		if params, outputs, err = rowValues(rec); err != nil {
+	if action != pipeline.Reused && exists {
+		if err := old.sameDescription(rec, text.params); err != nil {
 			return err
-		}
-		if exists {
-			if err := old.sameDescription(rec, params); err != nil {
-				return err
-			}
 		}
 	}
 	runErr := ""
@@ -202,7 +194,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 	case pipeline.Computed:
 		switch {
 		case !exists:
-			if id, err = l.insertNodeIn(ctx, tx, rec, params, outputs, bs); err != nil {
+			if id, err = l.insertNodeIn(ctx, tx, rec, text, bs); err != nil {
 				return err
 			}
 		case old.status == pipeline.NodeOK:
@@ -211,7 +203,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 					ErrIntegrity, rec.Key, old.outputHash, rec.OutputHash)
 			}
 		default: // failed before, ok now
-			if err := l.updateNode(ctx, tx, rec, outputs); err != nil {
+			if err := l.updateNode(ctx, tx, rec, text.outputs); err != nil {
 				return err
 			}
 		}
@@ -219,11 +211,11 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		runErr = rec.Error
 		switch {
 		case !exists:
-			if id, err = l.insertNodeIn(ctx, tx, rec, params, outputs, bs); err != nil {
+			if id, err = l.insertNodeIn(ctx, tx, rec, text, bs); err != nil {
 				return err
 			}
 		case old.status == pipeline.NodeFailed:
-			if err := l.updateNode(ctx, tx, rec, outputs); err != nil {
+			if err := l.updateNode(ctx, tx, rec, text.outputs); err != nil {
 				return err
 			}
 		}
@@ -283,33 +275,37 @@ func requireRunning(ctx context.Context, tx *qtx, run pipeline.RunID) error {
 	return nil
 }
 
+// rowText is the canonical text of a record's parameters and outputs, as
+// stored.
+type rowText struct{ params, outputs string }
+
 // rowValues returns the canonical text of a record's parameters and outputs.
-func rowValues(rec pipeline.NodeRecord) (params, outputs string, err error) {
+func rowValues(rec pipeline.NodeRecord) (rowText, error) {
 	p, err := rec.Params.Encode()
 	if err != nil {
-		return "", "", fmt.Errorf("parameters: %w", err)
+		return rowText{}, fmt.Errorf("parameters: %w", err)
 	}
 	o, err := rec.Outputs.Encode()
 	if err != nil {
-		return "", "", fmt.Errorf("outputs: %w", err)
+		return rowText{}, fmt.Errorf("outputs: %w", err)
 	}
-	return string(p), string(o), nil
+	return rowText{string(p), string(o)}, nil
 }
 
 // insertNode writes a new node row and its inputs and returns its id. Each
 // input must be an ok node of the named stage with the output hash the
 // record names.
 func (l *Ledger) insertNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord) (int64, error) {
-	params, outputs, err := rowValues(rec)
+	text, err := rowValues(rec)
 	if err != nil {
 		return 0, err
 	}
-	return l.insertNodeIn(ctx, tx, rec, params, outputs, nil)
+	return l.insertNodeIn(ctx, tx, rec, text, nil)
 }
 
-// insertNodeIn is insertNode given the encoded values; in a batch the rows
+// insertNodeIn is insertNode given the row text; in a batch the rows
 // are queued and the id is the batch's next one.
-func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, params, outputs string, bs *batchState) (int64, error) {
+func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, text rowText, bs *batchState) (int64, error) {
 	ups := make([]int64, len(rec.Inputs))
 	for i, in := range rec.Inputs {
 		up, ok, err := readStoredIn(ctx, tx, in.Key, bs)
@@ -340,7 +336,7 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 		}
 		hash = b
 	}
-	row := []any{nil, keyArg(rec.Key), tool, rec.Stage, rec.Version, params, outputs, hash,
+	row := []any{nil, keyArg(rec.Key), tool, rec.Stage, rec.Version, text.params, text.outputs, hash,
 		string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now())}
 	var id int64
 	if bs != nil {
@@ -351,7 +347,7 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 		for i := range ups {
 			bs.inputRows = append(bs.inputRows, []any{id, i, ups[i]})
 		}
-		bs.known[rec.Key] = storedNode{id: id, status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, tool: tool, version: rec.Version, params: params}
+		bs.known[rec.Key] = storedNode{id: id, status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, tool: tool, version: rec.Version, params: text.params}
 		delete(bs.absent, rec.Key)
 		return id, nil
 	}
@@ -443,22 +439,47 @@ func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results 
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
 		}
+		type linked struct {
+			id     int64
+			status string
+		}
+		nodes := map[pipeline.KeyID]linked{}
+		for rest := results; len(rest) > 0; {
+			n := min(len(rest), 500)
+			args := []any{string(run)}
+			for _, r := range rest[:n] {
+				args = append(args, keyArg(r.Key))
+			}
+			rows, err := tx.QueryContext(ctx, `SELECT n.key, n.id, n.status FROM nodes n JOIN run_nodes rn ON rn.node = n.id AND rn.run_id = ?
+				WHERE n.key IN (`+strings.TrimSuffix(strings.Repeat("?, ", n), ", ")+")", args...)
+			if err != nil {
+				return err
+			}
+			for rows.Next() {
+				var key []byte
+				var ln linked
+				if err := rows.Scan(&key, &ln.id, &ln.status); err != nil {
+					rows.Close()
+					return err
+				}
+				nodes[pipeline.KeyID(digestText(key))] = ln
+			}
+			rows.Close()
+			if err := rows.Err(); err != nil {
+				return err
+			}
+			rest = rest[n:]
+		}
 		for _, r := range results {
-			var status string
-			var id int64
-			err := tx.QueryRowContext(ctx, `SELECT n.id, n.status FROM nodes n JOIN run_nodes rn ON rn.node = n.id
-				WHERE n.key = ? AND rn.run_id = ?`, keyArg(r.Key), string(run)).Scan(&id, &status)
-			if errors.Is(err, sql.ErrNoRows) {
+			ln, ok := nodes[r.Key]
+			if !ok {
 				return fmt.Errorf("result %d %q: node %s is not part of the run: %w", r.Ordinal, r.Label, r.Key, ErrNotFound)
 			}
-			if err != nil {
-				return fmt.Errorf("result %d %q: %w", r.Ordinal, r.Label, err)
-			}
-			if pipeline.NodeStatus(status) != pipeline.NodeOK {
-				return fmt.Errorf("result %d %q: node %s is %s; a failed node is never a result", r.Ordinal, r.Label, r.Key, status)
+			if pipeline.NodeStatus(ln.status) != pipeline.NodeOK {
+				return fmt.Errorf("result %d %q: node %s is %s; a failed node is never a result", r.Ordinal, r.Label, r.Key, ln.status)
 			}
 			if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, node) VALUES (?, ?, ?, ?)",
-				string(run), r.Ordinal, r.Label, id); err != nil {
+				string(run), r.Ordinal, r.Label, ln.id); err != nil {
 				return fmt.Errorf("result %d %q: %w", r.Ordinal, r.Label, err)
 			}
 		}

@@ -114,11 +114,11 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 				}
 				rep.NodesKept++
 			case old.status == pipeline.NodeFailed && rec.Status == pipeline.NodeOK:
-				_, outputs, err := rowValues(rec)
+				text, err := rowValues(rec)
 				if err != nil {
 					return err
 				}
-				if err := l.updateNode(ctx, tx, rec, outputs); err != nil {
+				if err := l.updateNode(ctx, tx, rec, text.outputs); err != nil {
 					return err
 				}
 				rep.Nodes++

@@ -16,47 +16,50 @@ import (
 // hash must be the hash of its outputs; a failed one carries an error and no
 // outputs. A Reused record needs only a well-formed key: its row is already
 // in the ledger and is checked there.
-func checkRecord(rec pipeline.NodeRecord, action pipeline.Action) error {
+func checkRecord(rec pipeline.NodeRecord, action pipeline.Action) (rowText, error) {
 	if err := pipeline.ParseHash(string(rec.Key)); err != nil {
-		return fmt.Errorf("%w: node key: %v", ErrIntegrity, err)
+		return rowText{}, fmt.Errorf("%w: node key: %v", ErrIntegrity, err)
 	}
 	if rec.Duration < 0 {
-		return fmt.Errorf("negative duration %v", rec.Duration)
+		return rowText{}, fmt.Errorf("negative duration %v", rec.Duration)
 	}
 	switch action {
 	case pipeline.Reused:
-		return nil
+		return rowText{}, nil
 	case pipeline.Computed:
 		if rec.Status != pipeline.NodeOK {
-			return fmt.Errorf("a computed node must have status %q, found %q", pipeline.NodeOK, rec.Status)
+			return rowText{}, fmt.Errorf("a computed node must have status %q, found %q", pipeline.NodeOK, rec.Status)
 		}
 		if rec.Error != "" {
-			return fmt.Errorf("a computed node carries error text %q", rec.Error)
+			return rowText{}, fmt.Errorf("a computed node carries error text %q", rec.Error)
 		}
 		if err := checkDescription(rec, false); err != nil {
-			return err
+			return rowText{}, err
 		}
-		want, _, err := pipeline.OutputHash(rec.Outputs)
+		text, err := rowValues(rec)
 		if err != nil {
-			return fmt.Errorf("outputs: %w", err)
+			return rowText{}, err
 		}
-		if rec.OutputHash != want {
-			return fmt.Errorf("%w: output hash: expected %s (hash of the outputs' canonical encoding), found %s", ErrIntegrity, want, rec.OutputHash)
+		if want := pipeline.OutputID(pipeline.Sum([]byte(text.outputs))); rec.OutputHash != want {
+			return rowText{}, fmt.Errorf("%w: output hash: expected %s (hash of the outputs' canonical encoding), found %s", ErrIntegrity, want, rec.OutputHash)
 		}
-		return nil
+		return text, nil
 	case pipeline.Failed:
 		if rec.Status != pipeline.NodeFailed {
-			return fmt.Errorf("a failed node must have status %q, found %q", pipeline.NodeFailed, rec.Status)
+			return rowText{}, fmt.Errorf("a failed node must have status %q, found %q", pipeline.NodeFailed, rec.Status)
 		}
 		if rec.Error == "" {
-			return errors.New("a failed node must carry its error text")
+			return rowText{}, errors.New("a failed node must carry its error text")
 		}
 		if len(rec.Outputs) != 0 || rec.OutputHash != "" {
-			return fmt.Errorf("a failed node carries outputs (%d values, hash %q); a failure is never a result", len(rec.Outputs), rec.OutputHash)
+			return rowText{}, fmt.Errorf("a failed node carries outputs (%d values, hash %q); a failure is never a result", len(rec.Outputs), rec.OutputHash)
 		}
-		return checkDescription(rec, false)
+		if err := checkDescription(rec, false); err != nil {
+			return rowText{}, err
+		}
+		return rowValues(rec)
 	}
-	return fmt.Errorf("unknown action %q", action)
+	return rowText{}, fmt.Errorf("unknown action %q", action)
 }
 
 // checkDescription checks that the key is the hash of the description and

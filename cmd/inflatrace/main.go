@@ -3,12 +3,32 @@
 package main
 
 import (
+	"fmt"
 	"os"
+	"runtime/pprof"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/root"
 )
 
+// profileEnv names a file to write a CPU profile of the whole command to
+// (for contributors measuring large scans; see DEVELOPERS.md).
+const profileEnv = "INFLATRACE_CPUPROFILE"
+
 func main() {
+	if path := os.Getenv(profileEnv); path != "" {
+		f, err := os.Create(path)
+		if err == nil {
+			err = pprof.StartCPUProfile(f)
+		}
+		if err != nil {
+			fmt.Fprintf(os.Stderr, "inflatrace: %s: %v\n", profileEnv, err)
+			os.Exit(app.ExitError)
+		}
+		code := root.Main(app.System(), os.Args[1:])
+		pprof.StopCPUProfile()
+		f.Close()
+		os.Exit(code)
+	}
 	os.Exit(root.Main(app.System(), os.Args[1:]))
 }

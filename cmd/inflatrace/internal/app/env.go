@@ -53,11 +53,6 @@ func System() *Env {
 	}
 }
 
-func isTerminal(f *os.File) bool {
-	st, err := f.Stat()
-	return err == nil && st.Mode()&os.ModeCharDevice != 0
-}
-
 // Owner returns this process's identity, "host:pid", recorded with runs.
 func (e *Env) Owner() string {
 	host, _ := os.Hostname()

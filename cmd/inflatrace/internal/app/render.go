@@ -1,6 +1,7 @@
 package app
 
 import (
+	"bufio"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -14,35 +15,41 @@ import (
 // Table writes rows under a header: aligned columns on a terminal,
 // tab-separated values otherwise (for pipes and files).
 func (e *Env) Table(w io.Writer, header []string, rows [][]string) error {
-	if !e.StdoutTerminal {
-		fmt.Fprintln(w, strings.Join(header, "\t"))
-		for _, r := range rows {
-			fmt.Fprintln(w, strings.Join(r, "\t"))
-		}
-		return nil
-	}
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, strings.Join(header, "\t"))
-	for _, r := range rows {
-		fmt.Fprintln(tw, strings.Join(r, "\t"))
-	}
-	return tw.Flush()
+	return e.writeRows(w, append([][]string{header}, rows...))
 }
 
 // TableRows writes more rows of a table already started by Table (each
 // chunk of a streamed run is aligned on its own on a terminal).
 func (e *Env) TableRows(w io.Writer, rows [][]string) error {
-	if !e.StdoutTerminal {
-		for _, r := range rows {
-			fmt.Fprintln(w, strings.Join(r, "\t"))
-		}
-		return nil
+	return e.writeRows(w, rows)
+}
+
+// writeRows writes rows in one buffered pass (a large scan prints a
+// hundred thousand rows; one write call each would cost more than making
+// them).
+func (e *Env) writeRows(w io.Writer, rows [][]string) error {
+	bw := bufio.NewWriterSize(w, 64<<10)
+	var out io.Writer = bw
+	var tw *tabwriter.Writer
+	if e.StdoutTerminal {
+		tw = tabwriter.NewWriter(bw, 0, 0, 2, ' ', 0)
+		out = tw
 	}
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	for _, r := range rows {
-		fmt.Fprintln(tw, strings.Join(r, "\t"))
+		for i, c := range r {
+			if i > 0 {
+				io.WriteString(out, "\t")
+			}
+			io.WriteString(out, c)
+		}
+		io.WriteString(out, "\n")
 	}
-	return tw.Flush()
+	if tw != nil {
+		if err := tw.Flush(); err != nil {
+			return err
+		}
+	}
+	return bw.Flush()
 }
 
 // JSON writes v as indented JSON.
