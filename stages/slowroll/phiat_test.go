@@ -2,6 +2,7 @@ package slowroll
 
 import (
 	"math"
+	"sync"
 	"testing"
 
 	"github.com/inflatrace/inflatrace/stages/num"
@@ -75,6 +76,36 @@ func TestPhiAtHistoryIndependent(t *testing.T) {
 		b, errB := again.PhiAt(55)
 		if errA != nil || errB != nil || a != b {
 			t.Errorf("%s: after moving the end, PhiAt(55) = %v (%v), fresh %v (%v)", pm.family, a, errA, b, errB)
+		}
+	}
+}
+
+// TestPhiAtConcurrent: goroutines sharing one solution get the bits a
+// fresh solution gives (property: serial equals parallel; run with -race).
+func TestPhiAtConcurrent(t *testing.T) {
+	Ns := []float64{3, 55, 120, 50, 0.7, 61}
+	want := make([]float64, len(Ns))
+	for i, N := range Ns {
+		phi, err := mustSolve(t, "e-model", map[string]float64{"alpha": 1}).PhiAt(N)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want[i] = phi
+	}
+	shared := mustSolve(t, "e-model", map[string]float64{"alpha": 1})
+	got := make([]float64, len(Ns))
+	var wg sync.WaitGroup
+	for i, N := range Ns {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			got[i], _ = shared.PhiAt(N)
+		}()
+	}
+	wg.Wait()
+	for i := range Ns {
+		if math.Float64bits(got[i]) != math.Float64bits(want[i]) {
+			t.Errorf("PhiAt(%g) = %v in parallel, %v fresh", Ns[i], got[i], want[i])
 		}
 	}
 }
