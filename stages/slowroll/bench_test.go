@@ -19,7 +19,8 @@ func BenchmarkFirstOrderPrediction(b *testing.B) {
 	}
 }
 
-// BenchmarkEvaluate: Evaluate alone (the end of inflation already found).
+// BenchmarkEvaluate: Evaluate alone (the end of inflation already found;
+// the e-fold bracket, built by the first call, is reused by the others).
 func BenchmarkEvaluate(b *testing.B) {
 	sol := mustSolve(b, "e-model", map[string]float64{"alpha": 1})
 	b.ReportAllocs()

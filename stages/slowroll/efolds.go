@@ -11,7 +11,9 @@ import (
 
 // Solution is a model together with its end of inflation; it answers
 // "where is the field N e-folds before the end" and what the observables
-// are there.
+// are there. It keeps PhiAt's bracket between calls (safe for concurrent
+// use), so it must not be copied after first use; a solution whose Model,
+// End or Settings are changed builds a new bracket.
 type Solution struct {
 	Model    *model.Model
 	End      End
