@@ -450,7 +450,9 @@ func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results 
 			for _, r := range rest[:n] {
 				args = append(args, keyArg(r.Key))
 			}
-			rows, err := tx.QueryContext(ctx, `SELECT n.key, n.id, n.status FROM nodes n JOIN run_nodes rn ON rn.node = n.id AND rn.run_id = ?
+			// CROSS JOIN keeps the key index first: given a long IN list,
+			// the planner would otherwise walk all of the run's links.
+			rows, err := tx.QueryContext(ctx, `SELECT n.key, n.id, n.status FROM nodes n CROSS JOIN run_nodes rn ON rn.node = n.id AND rn.run_id = ?
 				WHERE n.key IN (`+strings.TrimSuffix(strings.Repeat("?, ", n), ", ")+")", args...)
 			if err != nil {
 				return err
