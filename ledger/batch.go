@@ -18,7 +18,7 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 	texts := make([]rowText, len(batch))
 	for i, b := range batch {
 		var err error
-		if texts[i], err = checkRecord(b.Node, b.Action); err != nil {
+		if texts[i], err = checkRecord(b.Node, b.Action, b.OutputsText); err != nil {
 			return fmt.Errorf("ledger: record %s node %s in run %s: %w", b.Action, b.Node.Key, run, err)
 		}
 	}

@@ -90,7 +90,7 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 // In every case the run must be running and must not have touched the key
 // before.
 func (l *Ledger) RecordNode(ctx context.Context, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
-	text, err := checkRecord(rec, action)
+	text, err := checkRecord(rec, action, nil)
 	if err == nil {
 		err = l.inTx(ctx, func(tx *qtx) error { return l.recordNodeIn(ctx, tx, run, rec, text, action, nil) })
 	}

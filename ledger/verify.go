@@ -10,13 +10,15 @@ import (
 )
 
 // checkRecord verifies a node record handed to RecordNode before anything
-// is written. Computed and Failed records must be genuine: the key is the
-// hash of the description and the description is the one the record's
-// stage, version, parameters and inputs produce. A computed record's output
-// hash must be the hash of its outputs; a failed one carries an error and no
-// outputs. A Reused record needs only a well-formed key: its row is already
-// in the ledger and is checked there.
-func checkRecord(rec pipeline.NodeRecord, action pipeline.Action) (rowText, error) {
+// is written, and returns the text its row stores. Computed and Failed
+// records must be genuine: the key is the hash of the description, and the
+// description names the record's stage, version, parameters and inputs
+// (so the stored row re-derives its key). A computed record's output hash must be the hash of its outputs'
+// canonical text (outputsText when the engine hands it over, else encoded
+// here); a failed one carries an error and no outputs. A Reused record
+// needs only a well-formed key: its row is already in the ledger and is
+// checked there.
+func checkRecord(rec pipeline.NodeRecord, action pipeline.Action, outputsText []byte) (rowText, error) {
 	if err := pipeline.ParseHash(string(rec.Key)); err != nil {
 		return rowText{}, fmt.Errorf("%w: node key: %v", ErrIntegrity, err)
 	}
@@ -33,14 +35,19 @@ func checkRecord(rec pipeline.NodeRecord, action pipeline.Action) (rowText, erro
 		if rec.Error != "" {
 			return rowText{}, fmt.Errorf("a computed node carries error text %q", rec.Error)
 		}
-		if err := checkDescription(rec, false); err != nil {
-			return rowText{}, err
-		}
-		text, err := rowValues(rec)
+		text, err := describedRow(rec)
 		if err != nil {
 			return rowText{}, err
 		}
-		if want := pipeline.OutputID(pipeline.Sum([]byte(text.outputs))); rec.OutputHash != want {
+		if outputsText == nil {
+			enc, err := rec.Outputs.Encode()
+			if err != nil {
+				return rowText{}, fmt.Errorf("outputs: %w", err)
+			}
+			outputsText = enc
+		}
+		text.outputs = string(outputsText)
+		if want := pipeline.OutputID(pipeline.Sum(outputsText)); rec.OutputHash != want {
 			return rowText{}, fmt.Errorf("%w: output hash: expected %s (hash of the outputs' canonical encoding), found %s", ErrIntegrity, want, rec.OutputHash)
 		}
 		return text, nil
@@ -54,12 +61,74 @@ func checkRecord(rec pipeline.NodeRecord, action pipeline.Action) (rowText, erro
 		if len(rec.Outputs) != 0 || rec.OutputHash != "" {
 			return rowText{}, fmt.Errorf("a failed node carries outputs (%d values, hash %q); a failure is never a result", len(rec.Outputs), rec.OutputHash)
 		}
-		if err := checkDescription(rec, false); err != nil {
-			return rowText{}, err
-		}
-		return rowValues(rec)
+		return describedRow(rec)
 	}
 	return rowText{}, fmt.Errorf("unknown action %q", action)
+}
+
+// describedRow checks a new record's description against its key and its
+// structured fields, reading it line by line in the layout
+// pipeline.Describe writes (today's key format only), and returns the
+// parameters' canonical text, which must be the "param" lines without
+// their prefix; the record's inputs must be those the "input" lines name.
+func describedRow(rec pipeline.NodeRecord) (rowText, error) {
+	if got := pipeline.KeyOf(rec.Description); got != rec.Key {
+		return rowText{}, fmt.Errorf("%w: node key: expected %s (hash of the description), found %s", ErrIntegrity, got, rec.Key)
+	}
+	bad := func(format string, a ...any) (rowText, error) {
+		return rowText{}, fmt.Errorf("%w: description does not match the record's stage, version, parameters and inputs: %s", ErrIntegrity, fmt.Sprintf(format, a...))
+	}
+	rest := rec.Description
+	line := func() string {
+		l, r, _ := strings.Cut(rest, "\n")
+		rest = r
+		return l
+	}
+	if h := line(); h != keyFormatHeader {
+		return bad("in another key format: header %q, want %q", h, keyFormatHeader)
+	}
+	if t := line(); !strings.HasPrefix(t, "tool ") {
+		return bad("line 2 is %q, want the tool", t)
+	}
+	if st := line(); st != "stage "+rec.Stage {
+		return bad("names stage line %q, the record says %q", st, rec.Stage)
+	}
+	if v := line(); v != "version "+strconv.Itoa(rec.Version) {
+		return bad("names version line %q, the record says %d", v, rec.Version)
+	}
+	var params strings.Builder
+	inputs := 0
+	for rest != "" {
+		l := line()
+		if p, ok := strings.CutPrefix(l, "param "); ok && inputs == 0 {
+			params.WriteString(p)
+			params.WriteByte('\n')
+			continue
+		}
+		in, ok := strings.CutPrefix(l, "input ")
+		if !ok || inputs >= len(rec.Inputs) {
+			return bad("unexpected line %q", l)
+		}
+		ref := rec.Inputs[inputs]
+		if err := pipeline.ParseHash(string(ref.Key)); err != nil {
+			return bad("input %d key: %v", inputs, err)
+		}
+		if want := strconv.Itoa(inputs) + " " + ref.Stage + " " + string(ref.Output); in != want {
+			return bad("input line %q, the record's input is %q", in, want)
+		}
+		inputs++
+	}
+	if inputs != len(rec.Inputs) {
+		return bad("%d inputs, the record has %d", inputs, len(rec.Inputs))
+	}
+	enc, err := rec.Params.Encode()
+	if err != nil {
+		return rowText{}, fmt.Errorf("parameters: %w", err)
+	}
+	if p := params.String(); string(enc) != p {
+		return bad("parameters: %s", firstDifference(p, string(enc)))
+	}
+	return rowText{params: string(enc)}, nil
 }
 
 // checkDescription checks that the key is the hash of the description and

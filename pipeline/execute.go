@@ -717,8 +717,9 @@ func (c *chunk) compute(i int) done {
 	start := s.opts.Now()
 	outputs, runErr := runStage(c.ctx, nd.Stage, nd.Params, p.inputs)
 	var hash OutputID
+	var enc []byte
 	if runErr == nil {
-		hash, _, runErr = OutputHash(outputs)
+		hash, enc, runErr = OutputHash(outputs)
 		if runErr != nil {
 			runErr = fmt.Errorf("stage produced unrecordable outputs: %w", runErr)
 		}
@@ -733,7 +734,7 @@ func (c *chunk) compute(i int) done {
 		nr.Status, nr.Outputs, nr.OutputHash = NodeOK, outputs, hash
 	}
 	if batched {
-		return done{i: i, out: out, rec: Recorded{Node: nr, Action: out.Action}, hasRec: true}
+		return done{i: i, out: out, rec: Recorded{Node: nr, Action: out.Action, OutputsText: enc}, hasRec: true}
 	}
 	if err := s.rec.RecordNode(c.ctx, s.info.ID, nr, out.Action); err != nil {
 		return done{i: i, err: fmt.Errorf("record %s (%s): %w", p.key, nd.Label, err)}

@@ -94,6 +94,10 @@ type Recorder interface {
 type Recorded struct {
 	Node   NodeRecord
 	Action Action
+	// OutputsText is the canonical encoding of Node.Outputs (Values.Encode)
+	// that the engine hashed, when it has it; a recorder may store it
+	// instead of encoding the outputs again, after checking its hash.
+	OutputsText []byte
 }
 
 // BatchRecorder is a Recorder that can store many nodes of a run in one
