@@ -44,9 +44,8 @@ type Stage interface {
 
 // CheckParams checks a node's parameters against the stage's declaration.
 func (s Spec) CheckParams(params Values) error {
-	declared := map[string]ParamSpec{}
+	matched := 0
 	for _, p := range s.Params {
-		declared[p.Name] = p
 		v, ok := params[p.Name]
 		if !ok {
 			if p.Optional {
@@ -54,6 +53,7 @@ func (s Spec) CheckParams(params Values) error {
 			}
 			return fmt.Errorf("stage %s: missing parameter %q", s.Name, p.Name)
 		}
+		matched++
 		if v.Kind != p.Kind {
 			return fmt.Errorf("stage %s: parameter %q has the wrong kind", s.Name, p.Name)
 		}
@@ -61,8 +61,13 @@ func (s Spec) CheckParams(params Values) error {
 			return fmt.Errorf("stage %s: parameter %q in %q, want %q", s.Name, p.Name, v.Unit, p.Unit)
 		}
 	}
+	if matched == len(params) {
+		return nil
+	}
+	// Some names are not declared: each must be open, and the first that
+	// is not (in name order) is reported.
 	for _, n := range params.Names() {
-		if _, ok := declared[n]; ok {
+		if s.declares(n) {
 			continue
 		}
 		if hasAnyPrefix(n, s.OpenParams) && params[n].Kind == KindFloat {
@@ -71,6 +76,15 @@ func (s Spec) CheckParams(params Values) error {
 		return fmt.Errorf("stage %s: undeclared parameter %q", s.Name, n)
 	}
 	return nil
+}
+
+func (s Spec) declares(name string) bool {
+	for _, p := range s.Params {
+		if p.Name == name {
+			return true
+		}
+	}
+	return false
 }
 
 func hasAnyPrefix(s string, prefixes []string) bool {

@@ -29,8 +29,15 @@ var Histories = []string{HistoryFixed, HistoryInstant, HistoryTemperature, Histo
 // history reports the span of N*, n_s and r over a sweep of histories.
 type Reheat struct{}
 
-// Spec declares the stage.
-func (Reheat) Spec() pipeline.Spec {
+// reheatSpec is the stage's declaration, built once (a scan adds a node of
+// each stage per model point).
+var reheatSpec = Reheat{}.spec()
+
+// Spec declares the stage. The declaration is shared: callers must not
+// modify its slices.
+func (Reheat) Spec() pipeline.Spec { return reheatSpec }
+
+func (Reheat) spec() pipeline.Spec {
 	opt := func(name, unit string) pipeline.ParamSpec {
 		return pipeline.ParamSpec{Name: name, Kind: pipeline.KindFloat, Unit: unit, Optional: true}
 	}

@@ -96,8 +96,15 @@ func contains(xs []string, x string) bool {
 // exact method checks that the background reaches it).
 type SlowRoll struct{}
 
-// Spec declares the stage.
-func (SlowRoll) Spec() pipeline.Spec {
+// slowRollSpec is the stage's declaration, built once (a scan adds a node of
+// each stage per model point).
+var slowRollSpec = SlowRoll{}.spec()
+
+// Spec declares the stage. The declaration is shared: callers must not
+// modify its slices.
+func (SlowRoll) Spec() pipeline.Spec { return slowRollSpec }
+
+func (SlowRoll) spec() pipeline.Spec {
 	ps := []pipeline.ParamSpec{
 		{Name: "method", Kind: pipeline.KindString},
 		{Name: "end", Kind: pipeline.KindString},

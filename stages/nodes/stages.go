@@ -23,8 +23,15 @@ const (
 // parameters and records the model's specification, formula and reference.
 type Model struct{}
 
-// Spec declares the stage.
-func (Model) Spec() pipeline.Spec {
+// modelSpec is the stage's declaration, built once (a scan adds a node of
+// each stage per model point).
+var modelSpec = Model{}.spec()
+
+// Spec declares the stage. The declaration is shared: callers must not
+// modify its slices.
+func (Model) Spec() pipeline.Spec { return modelSpec }
+
+func (Model) spec() pipeline.Spec {
 	return pipeline.Spec{
 		Name: ModelStage, Version: ModelVersion,
 		Params: []pipeline.ParamSpec{
@@ -76,8 +83,15 @@ func (Model) Run(_ context.Context, params pipeline.Values, _ []pipeline.Values)
 // a quadrature of sqrt(K).
 type Canonical struct{}
 
-// Spec declares the stage.
-func (Canonical) Spec() pipeline.Spec {
+// canonicalSpec is the stage's declaration, built once (a scan adds a node of
+// each stage per model point).
+var canonicalSpec = Canonical{}.spec()
+
+// Spec declares the stage. The declaration is shared: callers must not
+// modify its slices.
+func (Canonical) Spec() pipeline.Spec { return canonicalSpec }
+
+func (Canonical) spec() pipeline.Spec {
 	return pipeline.Spec{Name: CanonicalStage, Version: CanonicalVersion, Inputs: []string{ModelStage}}
 }
 
@@ -126,8 +140,15 @@ const (
 	KindForecast = "forecast"
 )
 
-// Spec declares the stage.
-func (Compare) Spec() pipeline.Spec {
+// compareSpec is the stage's declaration, built once (a scan adds a node of
+// each stage per model point).
+var compareSpec = Compare{}.spec()
+
+// Spec declares the stage. The declaration is shared: callers must not
+// modify its slices.
+func (Compare) Spec() pipeline.Spec { return compareSpec }
+
+func (Compare) spec() pipeline.Spec {
 	f := func(name string) pipeline.ParamSpec {
 		return pipeline.ParamSpec{Name: name, Kind: pipeline.KindFloat, Unit: pipeline.UnitNone, Optional: true}
 	}

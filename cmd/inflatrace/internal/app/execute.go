@@ -25,7 +25,7 @@ var ChunkPoints = 1000
 // Batch is the number of nodes written to the ledger per transaction (at
 // most a second apart), so that an interrupted run loses at most that
 // much work.
-const Batch = 20000
+const Batch = 10000
 
 // ExecuteStudy records and runs a checked study in the ledger with the
 // given parallelism. A run with failed nodes returns its outcome together
