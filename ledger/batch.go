@@ -152,77 +152,138 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 }
 
 // LookupMany returns the successful nodes among keys, each fully decoded
-// and verified as Lookup does, in a few queries (pipeline.BatchLookup).
+// and verified as Lookup does (pipeline.BatchLookup). Large sets are read
+// by two reader connections at once, each in a few queries.
 func (l *Ledger) LookupMany(ctx context.Context, keys []pipeline.KeyID) (map[pipeline.KeyID]pipeline.NodeRecord, error) {
 	out := make(map[pipeline.KeyID]pipeline.NodeRecord, len(keys))
+	parts := [][]pipeline.KeyID{keys}
+	if len(keys) >= 2*lookupSplit {
+		parts = [][]pipeline.KeyID{keys[:len(keys)/2], keys[len(keys)/2:]}
+	}
+	found := make([][]storedRow, len(parts))
+	errs := make([]error, len(parts))
+	var wg sync.WaitGroup
+	for i, part := range parts {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			found[i], errs[i] = l.lookupRows(ctx, part)
+		}()
+	}
+	wg.Wait()
+	for i := range parts {
+		if errs[i] != nil {
+			return nil, fmt.Errorf("ledger: look up %d nodes: %w", len(keys), errs[i])
+		}
+		for _, row := range found[i] {
+			out[row.rec.Key] = row.rec
+			l.seen.put(row.rec.Key, storedNode{id: row.id, status: row.rec.Status, outputHash: row.rec.OutputHash, stage: row.rec.Stage})
+		}
+	}
+	return out, nil
+}
+
+// lookupSplit is the smallest share of a look-up worth a second reader.
+const lookupSplit = 64
+
+// lookupRows reads the ok rows among keys in one read transaction, 500
+// keys at a time: their ids from the key index alone, then the rows in id
+// order (the order a scan wrote them, so neighbouring rows share pages)
+// and their inputs, each verified as it is finished.
+func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]storedRow, error) {
+	var out []storedRow
 	err := l.inReadTx(ctx, func(tx *qtx) error {
 		for len(keys) > 0 {
 			n := min(len(keys), 500)
-			marks := strings.TrimSuffix(strings.Repeat("?, ", n), ", ")
 			args := make([]any, n)
 			for i, k := range keys[:n] {
 				args[i] = keyArg(k)
 			}
-			rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+" FROM nodes n WHERE n.status = 'ok' AND n.key IN ("+marks+")", args...)
+			keys = keys[n:]
+			ids, err := queryIDs(ctx, tx, "SELECT id FROM nodes WHERE key IN ("+marks(n)+")", args...)
+			if err != nil || len(ids) == 0 {
+				return err
+			}
+			rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+" FROM nodes n WHERE n.status = 'ok' AND n.id IN ("+marks(len(ids))+") ORDER BY n.id", ids...)
 			if err != nil {
 				return err
 			}
 			found := map[int64]*storedRow{}
-			var ids []any
+			start := len(out)
 			for rows.Next() {
 				row, err := scanNode(rows)
 				if err != nil {
 					rows.Close()
 					return err
 				}
-				found[row.id] = &row
-				ids = append(ids, row.id)
+				out = append(out, row)
 			}
 			rows.Close()
 			if err := rows.Err(); err != nil {
 				return err
 			}
-			if len(ids) > 0 {
-				in, err := tx.QueryContext(ctx, "SELECT ni.node, "+inputColumns+" FROM "+inputsJoin+
-					" WHERE ni.node IN ("+strings.TrimSuffix(strings.Repeat("?, ", len(ids)), ", ")+") ORDER BY ni.node, ni.position", ids...)
-				if err != nil {
+			ids = ids[:0]
+			for i := start; i < len(out); i++ {
+				found[out[i].id] = &out[i]
+				ids = append(ids, out[i].id)
+			}
+			if len(ids) == 0 {
+				continue
+			}
+			in, err := tx.QueryContext(ctx, "SELECT ni.node, "+inputColumns+" FROM "+inputsJoin+
+				" WHERE ni.node IN ("+marks(len(ids))+") ORDER BY ni.node, ni.position", ids...)
+			if err != nil {
+				return err
+			}
+			for in.Next() {
+				var (
+					node, pos int64
+					key, hash []byte
+					stage     string
+				)
+				if err := in.Scan(&node, &pos, &key, &stage, &hash); err != nil {
+					in.Close()
 					return err
 				}
-				for in.Next() {
-					var (
-						node, pos int64
-						key, hash []byte
-						stage     string
-					)
-					if err := in.Scan(&node, &pos, &key, &stage, &hash); err != nil {
-						in.Close()
-						return err
-					}
-					if err := appendInput(&found[node].rec, int(pos), key, stage, hash); err != nil {
-						in.Close()
-						return err
-					}
-				}
-				in.Close()
-				if err := in.Err(); err != nil {
+				if err := appendInput(&found[node].rec, int(pos), key, stage, hash); err != nil {
+					in.Close()
 					return err
 				}
 			}
-			for _, row := range found {
-				if err := finishNode(row); err != nil {
+			in.Close()
+			if err := in.Err(); err != nil {
+				return err
+			}
+			for i := start; i < len(out); i++ {
+				if err := finishNode(&out[i]); err != nil {
 					return err
 				}
-				out[row.rec.Key] = row.rec
-				l.seen.put(row.rec.Key, storedNode{id: row.id, status: row.rec.Status, outputHash: row.rec.OutputHash, stage: row.rec.Stage})
 			}
-			keys = keys[n:]
 		}
 		return nil
 	})
+	return out, err
+}
+
+// marks is n comma-separated placeholders.
+func marks(n int) string { return strings.TrimSuffix(strings.Repeat("?, ", n), ", ") }
+
+// queryIDs runs a query of one integer column.
+func queryIDs(ctx context.Context, tx *qtx, q string, args ...any) ([]any, error) {
+	rows, err := tx.QueryContext(ctx, q, args...)
 	if err != nil {
-		return nil, fmt.Errorf("ledger: look up %d nodes: %w", len(keys), err)
+		return nil, err
 	}
-	return out, nil
+	defer rows.Close()
+	var ids []any
+	for rows.Next() {
+		var id int64
+		if err := rows.Scan(&id); err != nil {
+			return nil, err
+		}
+		ids = append(ids, id)
+	}
+	return ids, rows.Err()
 }
 
 var _ pipeline.BatchLookup = (*Ledger)(nil)
