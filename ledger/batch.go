@@ -298,7 +298,7 @@ type seenRows struct {
 	rows map[pipeline.KeyID]storedNode
 }
 
-const seenLimit = 1 << 20
+const seenLimit = 1 << 17
 
 func (s *seenRows) put(k pipeline.KeyID, st storedNode) {
 	s.mu.Lock()

@@ -770,10 +770,11 @@ func (c *parser) models(tables []map[string]any) ([]*modelGroup, error) {
 			}
 			return full, nil
 		}
-		for _, m := range g.probes() {
-			if _, err := check(m); err != nil {
-				return nil, err
-			}
+		if err := g.eachProbe(func(m ModelSpec) error {
+			_, err := check(m)
+			return err
+		}); err != nil {
+			return nil, err
 		}
 		full, err := check(g.at(0))
 		if err != nil {

@@ -63,13 +63,15 @@ func (g *modelGroup) make(idx []int) ModelSpec {
 // at returns point i of the group.
 func (g *modelGroup) at(i int) ModelSpec { return g.make(g.index(i)) }
 
-// probes returns points that together hold every value of every axis:
-// each value with the other axes at their first values.
-func (g *modelGroup) probes() []ModelSpec {
-	var out []ModelSpec
+// eachProbe calls f with points that together hold every value of every
+// axis (each value with the other axes at their first values), one at a
+// time, so that checking a million-value axis does not hold a million
+// points; it stops at f's first error.
+func (g *modelGroup) eachProbe(f func(ModelSpec) error) error {
+	idx := make([]int, len(g.axes))
 	for k, a := range g.axes {
 		for j := range a.xs {
-			idx := make([]int, len(g.axes))
+			clear(idx)
 			if g.zip {
 				for kk, b := range g.axes {
 					if len(b.xs) > 1 {
@@ -78,10 +80,12 @@ func (g *modelGroup) probes() []ModelSpec {
 				}
 			}
 			idx[k] = j
-			out = append(out, g.make(idx))
+			if err := f(g.make(idx)); err != nil {
+				return err
+			}
 		}
 	}
-	return out
+	return nil
 }
 
 // has reports whether the group gives parameter n.
