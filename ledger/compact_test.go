@@ -163,3 +163,23 @@ func TestCompactLayoutStoresNoDescription(t *testing.T) {
 		t.Error("ResolveKey of non-hex digits succeeded")
 	}
 }
+
+// TestPageSize: a new ledger file gets PageSize; an existing one keeps
+// the page size it was made with (SQLite cannot change it in WAL mode).
+func TestPageSize(t *testing.T) {
+	l, _ := openTest(t)
+	var size int
+	if err := l.db.QueryRow("PRAGMA page_size").Scan(&size); err != nil || size != PageSize {
+		t.Errorf("new ledger: page size %d (%v), want %d", size, err, PageSize)
+	}
+	path := filepath.Join(t.TempDir(), "old.db")
+	firstLayout(t, path)
+	old, err := Open(path, WithClock(fixedClock))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer old.Close()
+	if err := old.db.QueryRow("PRAGMA page_size").Scan(&size); err != nil || size != 4096 {
+		t.Errorf("existing ledger: page size %d (%v), want 4096 as made", size, err)
+	}
+}

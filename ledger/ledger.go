@@ -64,6 +64,9 @@ func Open(path string, opts ...Option) (*Ledger, error) {
 	if err := probeOwner(path); err != nil {
 		return nil, fmt.Errorf("open ledger %s: %w", path, err)
 	}
+	if err := createWithPageSize(path); err != nil {
+		return nil, fmt.Errorf("open ledger %s: %w", path, err)
+	}
 	db, err := sql.Open("sqlite3", dsn(path))
 	if err != nil {
 		return nil, fmt.Errorf("open ledger %s: %w", path, err)
@@ -139,6 +142,31 @@ func (l *Ledger) Close() error {
 	}
 	if err := l.db.Close(); err != nil {
 		return fmt.Errorf("close ledger %s: %w", l.path, err)
+	}
+	return nil
+}
+
+// PageSize is the page size of a new ledger file. Measured on first-order
+// scans (2 cores): 1e5 points take the same time with 4 or 16 KiB pages,
+// 1e6 points 365 s with 16 KiB against 414 s with 4 KiB (fewer, larger
+// pages: a shallower key index and fewer system calls per WAL frame).
+// Existing files keep their page size.
+const PageSize = 16384
+
+// createWithPageSize gives a new or empty ledger file its page size. It
+// must be set before the file is switched to WAL, which the normal
+// connection does as it connects.
+func createWithPageSize(path string) error {
+	if fi, err := os.Stat(path); err == nil && fi.Size() > 0 {
+		return nil
+	}
+	db, err := sql.Open("sqlite3", fileURI(path))
+	if err != nil {
+		return err
+	}
+	defer db.Close()
+	if _, err := db.Exec(fmt.Sprintf("PRAGMA page_size = %d; PRAGMA journal_mode = WAL", PageSize)); err != nil {
+		return fmt.Errorf("set page size: %w", err)
 	}
 	return nil
 }
