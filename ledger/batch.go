@@ -208,7 +208,7 @@ func (l *Ledger) LookupMany(ctx context.Context, keys []pipeline.KeyID) (map[pip
 		}
 		for _, row := range found[i] {
 			out[row.rec.Key] = row.rec
-			l.seen.put(row.rec.Key, storedNode{id: row.id, status: row.rec.Status, outputHash: row.rec.OutputHash, stage: row.rec.Stage})
+			l.seen.put(row.rec.Key, row.stored())
 		}
 	}
 	return out, nil

@@ -33,6 +33,11 @@ type storedRow struct {
 	rec     pipeline.NodeRecord
 }
 
+// stored is what recording the row's reuse needs of it.
+func (r storedRow) stored() storedNode {
+	return storedNode{id: r.id, status: r.rec.Status, outputHash: r.rec.OutputHash, stage: r.rec.Stage}
+}
+
 // scanNode reads nodeColumns (then any extra destinations) and decodes the
 // values, checking the outputs against their hash. The inputs are filled
 // in, and the description rebuilt and checked, by finishNode.

@@ -67,7 +67,7 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 	if !found || row.rec.Status != pipeline.NodeOK {
 		return pipeline.NodeRecord{}, false, nil
 	}
-	l.seen.put(key, storedNode{id: row.id, status: row.rec.Status, outputHash: row.rec.OutputHash, stage: row.rec.Stage})
+	l.seen.put(key, row.stored())
 	return row.rec, true, nil
 }
 
@@ -328,13 +328,9 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 	if err != nil {
 		return 0, fmt.Errorf("%w: description: %v", ErrIntegrity, err)
 	}
-	var hash any // NULL for a failed node
-	if rec.Status == pipeline.NodeOK {
-		b, err := digestBytes(string(rec.OutputHash))
-		if err != nil {
-			return 0, fmt.Errorf("%w: output hash: %v", ErrIntegrity, err)
-		}
-		hash = b
+	hash, err := outputHashArg(rec)
+	if err != nil {
+		return 0, err
 	}
 	row := []any{nil, keyArg(rec.Key), tool, rec.Stage, rec.Version, text.params, text.outputs, hash,
 		string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now())}
@@ -366,6 +362,19 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 	return id, nil
 }
 
+// outputHashArg is a record's output hash as stored: its digest, or NULL
+// for a failed node.
+func outputHashArg(rec pipeline.NodeRecord) (any, error) {
+	if rec.Status != pipeline.NodeOK {
+		return nil, nil
+	}
+	b, err := digestBytes(string(rec.OutputHash))
+	if err != nil {
+		return nil, fmt.Errorf("%w: output hash: %v", ErrIntegrity, err)
+	}
+	return b, nil
+}
+
 // nodeInsertColumns are the columns a new node row is written with (its
 // description is re-derived when read, so it is not stored).
 const nodeInsertColumns = "id, key, tool, stage, stage_version, params, outputs, output_hash, status, error, duration_ns, recorded_at"
@@ -374,13 +383,9 @@ const nodeInsertColumns = "id, key, tool, stage, stage_version, params, outputs,
 // to ok with outputs, or to failed with a newer error. The WHERE clause
 // makes "an ok row never changes" hold even if the caller got it wrong.
 func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, outputs string) error {
-	var hash any
-	if rec.Status == pipeline.NodeOK {
-		b, err := digestBytes(string(rec.OutputHash))
-		if err != nil {
-			return fmt.Errorf("%w: output hash: %v", ErrIntegrity, err)
-		}
-		hash = b
+	hash, err := outputHashArg(rec)
+	if err != nil {
+		return err
 	}
 	res, err := tx.ExecContext(ctx, `UPDATE nodes
 		SET outputs = ?, output_hash = ?, status = ?, error = ?, duration_ns = ?, recorded_at = ?
