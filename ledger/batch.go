@@ -20,11 +20,27 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 	if err != nil {
 		return fmt.Errorf("ledger: record %s node %s in run %s: %w", batch[bad].Action, batch[bad].Node.Key, run, err)
 	}
+	used, err := l.recordBatch(ctx, run, batch, texts, true)
+	if err != nil && used {
+		// A key LookupMany found missing was written by another process
+		// since: once more, reading every key.
+		_, err = l.recordBatch(ctx, run, batch, texts, false)
+	}
+	if err != nil {
+		return fmt.Errorf("ledger: record %d nodes in run %s: %w", len(batch), run, err)
+	}
+	return nil
+}
+
+// recordBatch is RecordNodes' transaction. With missing set, keys that
+// LookupMany found absent moments ago are taken as absent without reading
+// them again; used reports whether any was.
+func (l *Ledger) recordBatch(ctx context.Context, run pipeline.RunID, batch []pipeline.Recorded, texts []rowText, missing bool) (used bool, err error) {
 	err = l.inTx(ctx, func(tx *qtx) error {
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
 		}
-		bs := &batchState{known: map[pipeline.KeyID]storedNode{}, absent: map[pipeline.KeyID]bool{}}
+		bs := &batchState{known: map[pipeline.KeyID]storedNode{}, absent: map[pipeline.KeyID]bool{}, now: formatTime(l.now())}
 		var err error
 		if bs.ordinal, err = nextOrdinal(ctx, tx, run); err != nil {
 			return err
@@ -34,7 +50,7 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 			return err
 		}
 		bs.nextID = top.Int64 + 1
-		if err := l.prefetch(ctx, tx, batch, bs); err != nil {
+		if used, err = l.prefetch(ctx, tx, batch, bs, missing); err != nil {
 			return err
 		}
 		for i, b := range batch {
@@ -59,10 +75,7 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 		}
 		return nil
 	})
-	if err != nil {
-		return fmt.Errorf("ledger: record %d nodes in run %s: %w", len(batch), run, err)
-	}
-	return nil
+	return used, err
 }
 
 var _ pipeline.BatchRecorder = (*Ledger)(nil)
@@ -125,7 +138,7 @@ func insertRows(ctx context.Context, tx *qtx, head, tail string, cols int, rows 
 // Reused nodes the engine has just looked up here are taken from the
 // look-up's memory of their rows (their link's foreign key still checks
 // that the row is there).
-func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batchState) error {
+func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batchState, missing bool) (used bool, err error) {
 	seen := map[pipeline.KeyID]bool{}
 	var keys []pipeline.KeyID
 	add := func(k pipeline.KeyID) {
@@ -135,11 +148,14 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 		}
 	}
 	for _, b := range batch {
-		if b.Action == pipeline.Reused {
+		switch {
+		case b.Action == pipeline.Reused:
 			if st, ok := l.seen.take(b.Node.Key); ok {
 				bs.known[b.Node.Key] = st
 				continue
 			}
+		case missing && l.missing.take(b.Node.Key):
+			seen[b.Node.Key], bs.absent[b.Node.Key], used = true, true, true
 		}
 		add(b.Node.Key)
 		for _, in := range b.Node.Inputs {
@@ -160,14 +176,14 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 		}
 		rows, err := tx.QueryContext(ctx, q, args...)
 		if err != nil {
-			return err
+			return used, err
 		}
 		for rows.Next() {
 			var key []byte
 			st, err := scanStored(rows, &key)
 			if err != nil {
 				rows.Close()
-				return err
+				return used, err
 			}
 			k := pipeline.KeyID(digestText(key))
 			bs.known[k] = st
@@ -175,11 +191,11 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 		}
 		rows.Close()
 		if err := rows.Err(); err != nil {
-			return err
+			return used, err
 		}
 		keys = keys[n:]
 	}
-	return nil
+	return used, nil
 }
 
 // LookupMany returns the successful nodes among keys, each fully decoded
@@ -230,10 +246,14 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 			for i, k := range keys[:n] {
 				args[i] = keyArg(k)
 			}
+			part := keys[:n]
 			keys = keys[n:]
-			ids, err := queryIDs(ctx, tx, "SELECT id FROM nodes WHERE key IN ("+marks(n)+")", args...)
-			if err != nil || len(ids) == 0 {
+			ids, err := l.existing(ctx, tx, part, args)
+			if err != nil {
 				return err
+			}
+			if len(ids) == 0 {
+				continue
 			}
 			rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+" FROM nodes n WHERE n.status = 'ok' AND n.id IN ("+marks(len(ids))+") ORDER BY n.id", ids...)
 			if err != nil {
@@ -299,22 +319,35 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 // marks is n comma-separated placeholders.
 func marks(n int) string { return strings.TrimSuffix(strings.Repeat("?, ", n), ", ") }
 
-// queryIDs runs a query of one integer column.
-func queryIDs(ctx context.Context, tx *qtx, q string, args ...any) ([]any, error) {
-	rows, err := tx.QueryContext(ctx, q, args...)
+// existing returns the ids of the stored rows among keys (args are the
+// keys as query arguments), from the key index alone, and remembers the
+// keys not stored at all (l.missing) for recording them a moment later.
+func (l *Ledger) existing(ctx context.Context, tx *qtx, keys []pipeline.KeyID, args []any) ([]any, error) {
+	rows, err := tx.QueryContext(ctx, "SELECT key, id FROM nodes WHERE key IN ("+marks(len(keys))+")", args...)
 	if err != nil {
 		return nil, err
 	}
 	defer rows.Close()
 	var ids []any
+	stored := make(map[pipeline.KeyID]bool, len(keys))
 	for rows.Next() {
+		var key []byte
 		var id int64
-		if err := rows.Scan(&id); err != nil {
+		if err := rows.Scan(&key, &id); err != nil {
 			return nil, err
 		}
+		stored[pipeline.KeyID(digestText(key))] = true
 		ids = append(ids, id)
 	}
-	return ids, rows.Err()
+	if err := rows.Err(); err != nil {
+		return nil, err
+	}
+	for _, k := range keys {
+		if !stored[k] {
+			l.missing.put(k)
+		}
+	}
+	return ids, nil
 }
 
 var _ pipeline.BatchLookup = (*Ledger)(nil)
@@ -338,6 +371,36 @@ func (s *seenRows) put(k pipeline.KeyID, st storedNode) {
 		s.rows = map[pipeline.KeyID]storedNode{}
 	}
 	s.rows[k] = st
+}
+
+// missingKeys remembers keys LookupMany found not stored, so that
+// recording them a moment later need not read them again. Such an entry
+// can go stale (another process may write the key in between); the
+// batch then fails on the key's uniqueness and is recorded again reading
+// every key. Entries are taken when used; the memory is emptied when it
+// grows past seenLimit.
+type missingKeys struct {
+	mu   sync.Mutex
+	keys map[pipeline.KeyID]struct{}
+}
+
+func (m *missingKeys) put(k pipeline.KeyID) {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if m.keys == nil || len(m.keys) >= seenLimit {
+		m.keys = map[pipeline.KeyID]struct{}{}
+	}
+	m.keys[k] = struct{}{}
+}
+
+func (m *missingKeys) take(k pipeline.KeyID) bool {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	_, ok := m.keys[k]
+	if ok {
+		delete(m.keys, k)
+	}
+	return ok
 }
 
 func (s *seenRows) take(k pipeline.KeyID) (storedNode, bool) {

@@ -183,3 +183,53 @@ func TestPageSize(t *testing.T) {
 		t.Errorf("existing ledger: page size %d (%v), want 4096 as made", size, err)
 	}
 }
+
+// TestMissingKeyWrittenMeanwhile: a key LookupMany found missing is
+// recorded without being read again; when another process wrote it in
+// between, the batch is recorded again reading every key, and the node is
+// linked to the run once, with its row unchanged.
+func TestMissingKeyWrittenMeanwhile(t *testing.T) {
+	l, path := openTest(t)
+	other, err := Open(path, WithClock(fixedClock))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer other.Close()
+	run := beginRun(t, l, "r1", testClock)
+	a := mkNode(t, "model", pipeline.Values{"x": num(1)}, pipeline.Values{"y": num(2)})
+	b := mkNode(t, "canonical", pipeline.Values{"k": num(0.05)}, pipeline.Values{"y": num(3)}, a)
+	found, err := l.LookupMany(ctx, []pipeline.KeyID{a.Key, b.Key})
+	if err != nil || len(found) != 0 {
+		t.Fatalf("LookupMany on an empty ledger: %v, %v", found, err)
+	}
+	// The fast path is taken when nothing intervenes.
+	used, err := l.recordBatch(ctx, run, []pipeline.Recorded{{Node: a, Action: pipeline.Computed}}, []rowText{mustText(t, a)}, true)
+	if err != nil || !used {
+		t.Fatalf("recordBatch with a missing key: used %v, %v", used, err)
+	}
+	// Another process writes b after this one found it missing.
+	otherRun := beginRun(t, other, "r2", testClock)
+	record(t, other, otherRun, a, pipeline.Reused)
+	record(t, other, otherRun, b, pipeline.Computed)
+	before := rowCounts(t, l)
+	if err := l.RecordNodes(ctx, run, []pipeline.Recorded{{Node: b, Action: pipeline.Computed}}); err != nil {
+		t.Fatalf("RecordNodes after another process wrote the key: %v", err)
+	}
+	after := rowCounts(t, l)
+	if after["nodes"] != before["nodes"] || after["run_nodes"] != before["run_nodes"]+1 {
+		t.Errorf("rows before %v, after %v: want one more link and no new node", before, after)
+	}
+	rns, err := l.RunNodes(ctx, run)
+	if err != nil || len(rns) != 2 || rns[1].Key != b.Key || rns[1].Action != pipeline.Computed {
+		t.Errorf("run r1 nodes: %+v, %v", rns, err)
+	}
+}
+
+func mustText(t *testing.T, rec pipeline.NodeRecord) rowText {
+	t.Helper()
+	text, err := checkRecord(rec, pipeline.Computed, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return text
+}

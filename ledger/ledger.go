@@ -29,11 +29,12 @@ const applicationID = 0x696e6674
 // Ledger is an open provenance database. Its methods are safe for
 // concurrent use; each exported method runs in one transaction.
 type Ledger struct {
-	db   *sql.DB // the writer: one connection, immediate transactions
-	rdb  *sql.DB // readers: several connections, reading in WAL snapshots
-	path string
-	now  func() time.Time
-	seen seenRows // rows LookupMany found, for recording their reuse
+	db      *sql.DB // the writer: one connection, immediate transactions
+	rdb     *sql.DB // readers: several connections, reading in WAL snapshots
+	path    string
+	now     func() time.Time
+	seen    seenRows    // rows LookupMany found, for recording their reuse
+	missing missingKeys // keys LookupMany found not stored, for recording them
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)

@@ -165,6 +165,7 @@ func (s storedNode) sameDescription(rec pipeline.NodeRecord, params string) erro
 type batchState struct {
 	ordinal int
 	nextID  int64
+	now     string // the batch's recorded_at
 	known   map[pipeline.KeyID]storedNode
 	absent  map[pipeline.KeyID]bool // keys known not to be stored
 	// Rows to insert at the end of the batch, many per statement.
@@ -332,8 +333,14 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 	if err != nil {
 		return 0, err
 	}
+	var now string
+	if bs != nil {
+		now = bs.now
+	} else {
+		now = formatTime(l.now())
+	}
 	row := []any{nil, keyArg(rec.Key), tool, rec.Stage, rec.Version, text.params, text.outputs, hash,
-		string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now())}
+		string(rec.Status), rec.Error, int64(rec.Duration), now}
 	var id int64
 	if bs != nil {
 		id = bs.nextID
