@@ -137,7 +137,8 @@ func insertRows(ctx context.Context, tx *qtx, head, tail string, cols int, rows 
 // are already stored, so that recording a node does not query for each.
 // Reused nodes the engine has just looked up here are taken from the
 // look-up's memory of their rows (their link's foreign key still checks
-// that the row is there).
+// that the row is there); with missing set, so are the new nodes it found
+// not stored (l.missing), and used reports whether any was.
 func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batchState, missing bool) (used bool, err error) {
 	seen := map[pipeline.KeyID]bool{}
 	var keys []pipeline.KeyID
