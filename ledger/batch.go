@@ -155,7 +155,7 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 				bs.known[b.Node.Key] = st
 				continue
 			}
-		case missing && l.missing.take(b.Node.Key):
+		case missing && l.taken(b.Node.Key):
 			seen[b.Node.Key], bs.absent[b.Node.Key], used = true, true, true
 		}
 		add(b.Node.Key)
@@ -320,6 +320,12 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 // marks is n comma-separated placeholders.
 func marks(n int) string { return strings.TrimSuffix(strings.Repeat("?, ", n), ", ") }
 
+// taken says whether l.missing held k, and forgets it.
+func (l *Ledger) taken(k pipeline.KeyID) bool {
+	_, ok := l.missing.take(k)
+	return ok
+}
+
 // existing returns the ids of the stored rows among keys (args are the
 // keys as query arguments), from the key index alone, and remembers the
 // keys not stored at all (l.missing) for recording them a moment later.
@@ -345,7 +351,7 @@ func (l *Ledger) existing(ctx context.Context, tx *qtx, keys []pipeline.KeyID, a
 	}
 	for _, k := range keys {
 		if !stored[k] {
-			l.missing.put(k)
+			l.missing.put(k, struct{}{})
 		}
 	}
 	return ids, nil
@@ -353,63 +359,31 @@ func (l *Ledger) existing(ctx context.Context, tx *qtx, keys []pipeline.KeyID, a
 
 var _ pipeline.BatchLookup = (*Ledger)(nil)
 
-// seenRows remembers the rows LookupMany found (their ids, statuses and
-// output hashes), so that recording their reuse a moment later needs no
-// second read. Node ids never change and ok rows never change, so an entry
-// cannot go stale; entries are taken when used, and the memory is emptied
-// when it grows past seenLimit (a miss only costs a read).
-type seenRows struct {
-	mu   sync.Mutex
-	rows map[pipeline.KeyID]storedNode
+// keyMemo is a small memory of keys a look-up has just answered, for the
+// writer a moment later: entries are taken when used, and the memory is
+// emptied when it grows past memoLimit (a miss only costs a read).
+type keyMemo[V any] struct {
+	mu sync.Mutex
+	m  map[pipeline.KeyID]V
 }
 
-const seenLimit = 1 << 17
+const memoLimit = 1 << 17
 
-func (s *seenRows) put(k pipeline.KeyID, st storedNode) {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	if s.rows == nil || len(s.rows) >= seenLimit {
-		s.rows = map[pipeline.KeyID]storedNode{}
+func (km *keyMemo[V]) put(k pipeline.KeyID, v V) {
+	km.mu.Lock()
+	defer km.mu.Unlock()
+	if km.m == nil || len(km.m) >= memoLimit {
+		km.m = map[pipeline.KeyID]V{}
 	}
-	s.rows[k] = st
+	km.m[k] = v
 }
 
-// missingKeys remembers keys LookupMany found not stored, so that
-// recording them a moment later need not read them again. Such an entry
-// can go stale (another process may write the key in between); the
-// batch then fails on the key's uniqueness and is recorded again reading
-// every key. Entries are taken when used; the memory is emptied when it
-// grows past seenLimit.
-type missingKeys struct {
-	mu   sync.Mutex
-	keys map[pipeline.KeyID]struct{}
-}
-
-func (m *missingKeys) put(k pipeline.KeyID) {
-	m.mu.Lock()
-	defer m.mu.Unlock()
-	if m.keys == nil || len(m.keys) >= seenLimit {
-		m.keys = map[pipeline.KeyID]struct{}{}
-	}
-	m.keys[k] = struct{}{}
-}
-
-func (m *missingKeys) take(k pipeline.KeyID) bool {
-	m.mu.Lock()
-	defer m.mu.Unlock()
-	_, ok := m.keys[k]
+func (km *keyMemo[V]) take(k pipeline.KeyID) (V, bool) {
+	km.mu.Lock()
+	defer km.mu.Unlock()
+	v, ok := km.m[k]
 	if ok {
-		delete(m.keys, k)
+		delete(km.m, k)
 	}
-	return ok
-}
-
-func (s *seenRows) take(k pipeline.KeyID) (storedNode, bool) {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	st, ok := s.rows[k]
-	if ok {
-		delete(s.rows, k)
-	}
-	return st, ok
+	return v, ok
 }

@@ -29,12 +29,18 @@ const applicationID = 0x696e6674
 // Ledger is an open provenance database. Its methods are safe for
 // concurrent use; each exported method runs in one transaction.
 type Ledger struct {
-	db      *sql.DB // the writer: one connection, immediate transactions
-	rdb     *sql.DB // readers: several connections, reading in WAL snapshots
-	path    string
-	now     func() time.Time
-	seen    seenRows    // rows LookupMany found, for recording their reuse
-	missing missingKeys // keys LookupMany found not stored, for recording them
+	db   *sql.DB // the writer: one connection, immediate transactions
+	rdb  *sql.DB // readers: several connections, reading in WAL snapshots
+	path string
+	now  func() time.Time
+	// What LookupMany just found, for the writer a moment later: rows
+	// (their ids, statuses and output hashes; ids never change and ok rows
+	// never change, so an entry cannot go stale) and keys not stored at
+	// all (an entry can go stale when another process writes the key; the
+	// batch then fails on the key's uniqueness and is recorded again
+	// reading every key).
+	seen    keyMemo[storedNode]
+	missing keyMemo[struct{}]
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)
