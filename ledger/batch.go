@@ -274,36 +274,13 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 			if err := rows.Err(); err != nil {
 				return err
 			}
-			ids = ids[:0]
 			for i := start; i < len(out); i++ {
 				found[out[i].id] = &out[i]
-				ids = append(ids, out[i].id)
 			}
-			if len(ids) == 0 {
+			if len(found) == 0 {
 				continue
 			}
-			in, err := tx.QueryContext(ctx, "SELECT ni.node, "+inputColumns+" FROM "+inputsJoin+
-				" WHERE ni.node IN ("+marks(len(ids))+") ORDER BY ni.node, ni.position", ids...)
-			if err != nil {
-				return err
-			}
-			for in.Next() {
-				var (
-					node, pos int64
-					key, hash []byte
-					stage     string
-				)
-				if err := in.Scan(&node, &pos, &key, &stage, &hash); err != nil {
-					in.Close()
-					return err
-				}
-				if err := appendInput(&found[node].rec, int(pos), key, stage, hash); err != nil {
-					in.Close()
-					return err
-				}
-			}
-			in.Close()
-			if err := in.Err(); err != nil {
+			if err := loadInputs(ctx, tx, found); err != nil {
 				return err
 			}
 			for i := start; i < len(out); i++ {

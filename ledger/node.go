@@ -13,13 +13,6 @@ import (
 // nodeColumns are the columns scanNode reads, from table alias n.
 const nodeColumns = "n.id, n.key, n.tool, n.stage, n.stage_version, n.params, n.description, n.outputs, n.output_hash, n.status, n.error, n.duration_ns"
 
-// inputColumns are the columns appendInput takes for one input of node ni.node:
-// its position and the input node's key, stage and output hash.
-const inputColumns = "ni.position, u.key, u.stage, u.output_hash"
-
-// inputsJoin joins node_inputs (ni) to the input rows (u).
-const inputsJoin = "node_inputs ni JOIN nodes u ON u.id = ni.input"
-
 type scanner interface{ Scan(dest ...any) error }
 
 // storedRow is a node row as read: the record, plus the row id and the
@@ -81,43 +74,50 @@ func scanNode(s scanner, extra ...any) (storedRow, error) {
 	return row, nil
 }
 
-// appendInput appends one input read with inputColumns, checking that the
-// positions run 0, 1, 2...
-func appendInput(rec *pipeline.NodeRecord, pos int, key []byte, stage string, hash []byte) error {
-	if pos != len(rec.Inputs) {
-		return fmt.Errorf("%w: node %s: input positions skip from %d to %d", ErrIntegrity, rec.Key, len(rec.Inputs)-1, pos)
+// loadInputs reads the inputs of the given rows (by id) in one query, in
+// declared order, checking that each row's positions run 0, 1, 2...
+func loadInputs(ctx context.Context, tx *qtx, rows map[int64]*storedRow) error {
+	ids := make([]any, 0, len(rows))
+	for id, row := range rows {
+		ids = append(ids, id)
+		row.rec.Inputs = nil
 	}
-	k, err := storedKey(key)
+	in, err := tx.QueryContext(ctx, "SELECT ni.node, ni.position, u.key, u.stage, u.output_hash FROM node_inputs ni JOIN nodes u ON u.id = ni.input"+
+		" WHERE ni.node IN ("+marks(len(ids))+") ORDER BY ni.node, ni.position", ids...)
 	if err != nil {
-		return fmt.Errorf("node %s: input %d: %w", rec.Key, pos, err)
+		return fmt.Errorf("read inputs: %w", err)
 	}
-	rec.Inputs = append(rec.Inputs, pipeline.InputRef{Stage: stage, Key: k, Output: pipeline.OutputID(digestText(hash))})
+	defer in.Close()
+	for in.Next() {
+		var (
+			node      int64
+			pos       int
+			key, hash []byte
+			stage     string
+		)
+		if err := in.Scan(&node, &pos, &key, &stage, &hash); err != nil {
+			return fmt.Errorf("read inputs: %w", err)
+		}
+		rec := &rows[node].rec
+		if pos != len(rec.Inputs) {
+			return fmt.Errorf("%w: node %s: input positions skip from %d to %d", ErrIntegrity, rec.Key, len(rec.Inputs)-1, pos)
+		}
+		k, err := storedKey(key)
+		if err != nil {
+			return fmt.Errorf("node %s: input %d: %w", rec.Key, pos, err)
+		}
+		rec.Inputs = append(rec.Inputs, pipeline.InputRef{Stage: stage, Key: k, Output: pipeline.OutputID(digestText(hash))})
+	}
+	if err := in.Err(); err != nil {
+		return fmt.Errorf("read inputs: %w", err)
+	}
 	return nil
 }
 
 // completeNode loads a scanned node's inputs and finishes it.
 func completeNode(ctx context.Context, tx *qtx, row *storedRow) error {
-	rows, err := tx.QueryContext(ctx, "SELECT "+inputColumns+" FROM "+inputsJoin+" WHERE ni.node = ? ORDER BY ni.position", row.id)
-	if err != nil {
-		return fmt.Errorf("node %s: read inputs: %w", row.rec.Key, err)
-	}
-	defer rows.Close()
-	row.rec.Inputs = nil
-	for rows.Next() {
-		var (
-			pos       int
-			key, hash []byte
-			stage     string
-		)
-		if err := rows.Scan(&pos, &key, &stage, &hash); err != nil {
-			return fmt.Errorf("node %s: read inputs: %w", row.rec.Key, err)
-		}
-		if err := appendInput(&row.rec, pos, key, stage, hash); err != nil {
-			return err
-		}
-	}
-	if err := rows.Err(); err != nil {
-		return fmt.Errorf("node %s: read inputs: %w", row.rec.Key, err)
+	if err := loadInputs(ctx, tx, map[int64]*storedRow{row.id: row}); err != nil {
+		return fmt.Errorf("node %s: %w", row.rec.Key, err)
 	}
 	return finishNode(row)
 }

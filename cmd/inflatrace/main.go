@@ -25,19 +25,32 @@ func main() {
 	if os.Getenv("GOMEMLIMIT") == "" {
 		debug.SetMemoryLimit(memoryLimit)
 	}
-	if path := os.Getenv(profileEnv); path != "" {
-		f, err := os.Create(path)
-		if err == nil {
-			err = pprof.StartCPUProfile(f)
-		}
-		if err != nil {
-			fmt.Fprintf(os.Stderr, "inflatrace: %s: %v\n", profileEnv, err)
-			os.Exit(app.ExitError)
-		}
-		code := root.Main(app.System(), os.Args[1:])
+	stop, err := startProfile(os.Getenv(profileEnv))
+	if err != nil {
+		fmt.Fprintf(os.Stderr, "inflatrace: %s: %v\n", profileEnv, err)
+		os.Exit(app.ExitError)
+	}
+	code := root.Main(app.System(), os.Args[1:])
+	stop()
+	os.Exit(code)
+}
+
+// startProfile starts a CPU profile written to path (nothing when path is
+// empty) and returns the function that ends it.
+func startProfile(path string) (stop func(), err error) {
+	if path == "" {
+		return func() {}, nil
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		return nil, err
+	}
+	if err := pprof.StartCPUProfile(f); err != nil {
+		f.Close()
+		return nil, err
+	}
+	return func() {
 		pprof.StopCPUProfile()
 		f.Close()
-		os.Exit(code)
-	}
-	os.Exit(root.Main(app.System(), os.Args[1:]))
+	}, nil
 }
