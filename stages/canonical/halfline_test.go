@@ -21,7 +21,7 @@ func TestHalfLineQuadrature(t *testing.T) {
 	quad := &num.QuadSettings{RelTol: 1e-13, AbsTol: 1e-14}
 	for _, alpha := range []float64{1e-2, 0.1, 1.0 / 3, 1, 7.0 / 3, 10, 1e2} {
 		m := mustNew(t, "e-model", map[string]float64{"alpha": alpha})
-		integral := quadratureOfSqrtK(m.Native, quad)
+		integral := quadratureOfSqrtK(m.Native, quad, 0)
 		for _, lnY := range []float64{-3, 1e-3, 0.5, 2, 10, 60, 245} {
 			y := math.Exp(lnY)
 			got, err := integral(y)
@@ -35,7 +35,7 @@ func TestHalfLineQuadrature(t *testing.T) {
 		}
 	}
 	m := mustNew(t, "e-model", map[string]float64{"alpha": 1})
-	inU := quadratureOfSqrtK(m.Native, quad)
+	inU := quadratureOfSqrtK(m.Native, quad, 0)
 	sqrtK := func(y float64) float64 { return math.Sqrt(m.Native.Kinetic(y)) }
 	for _, y := range []float64{0.05, 0.7, 1.3, 10, 100} {
 		a, err := inU(y)

@@ -45,7 +45,14 @@ var tModel = &Family{
 			V: func(phi num.Jet) num.Jet {
 				return num.PowConst(num.Tanh(num.Scale(1/s, phi)), 2*n)
 			},
-			Lo: 0, Hi: math.Max(14*s, 60*math.Sqrt(n)),
+			// The range ends where N(phi) = (3 alpha/(4n)) (cosh(2 phi/s) - 1),
+			// the slow-roll e-folds from phi = 0 (V/V' = (s/(4n)) sinh(2 phi/s),
+			// integrated), reaches rangeEfolds: for large alpha that is
+			// phi^2/(4n) of the monomial, for small alpha a few s beyond the
+			// end; and at least 14 s, well onto the plateau (N ~ e^28 alpha
+			// there). A range fixed in M_p would reach, at small alpha, where
+			// cosh(phi/s)^2 overflows and V' rounds to 0.
+			Lo: 0, Hi: math.Max(14*s, reachAt(func(phi float64) float64 { return 3 * alpha / (4 * n) * (math.Cosh(2*phi/s) - 1) }, 0, s/8)),
 			Native: &NativeField{
 				Name: "chi", Lo: -s, Hi: s, Origin: 0,
 				Kinetic: func(x float64) float64 {
@@ -82,8 +89,16 @@ var eModel = &Family{
 		b := math.Sqrt(2 / (3 * alpha))
 		return &Model{
 			Family: "e-model", Params: p,
-			V:  func(phi num.Jet) num.Jet { return plateauExp(phi, b, 2*n) },
-			Lo: 0, Hi: math.Max(30/b, 60*math.Sqrt(n)),
+			V: func(phi num.Jet) num.Jet { return plateauExp(phi, b, 2*n) },
+			// The range ends where N(phi) = (3 alpha/(4n)) (e^(b phi) - 1 - b phi),
+			// the slow-roll e-folds from phi = 0 (V/V' = (e^(b phi) - 1)/(2 n b),
+			// integrated), reaches rangeEfolds: phi^2/(4n) for large alpha, a
+			// few 1/b beyond the end for small alpha, where a fixed range in M_p
+			// would reach y = e^(b phi) beyond the largest float; and at least
+			// 30/b, well onto the plateau.
+			Lo: 0, Hi: math.Max(30/b, reachAt(func(phi float64) float64 {
+				return 3 * alpha / (4 * n) * (math.Expm1(b*phi) - b*phi)
+			}, 0, 1/(8*b))),
 			Native: &NativeField{
 				Name: "y", Lo: 0, Hi: inf, Origin: 1,
 				Kinetic: func(y float64) float64 { return 3 * alpha / (2 * y * y) },

@@ -50,3 +50,25 @@ func onDomain(lo, hi float64, v func(num.Jet) num.Jet) func(num.Jet) num.Jet {
 		return v(phi)
 	}
 }
+
+// reachAt returns the field value at which efolds (growing with the
+// field, from the value from) equals rangeEfolds, by bisection inside
+// reach's bracket. Unlike reach it does not overshoot (reach may double
+// the field), for potentials that flatten to the last bit of a float
+// beyond it: there V' rounds to zero and no e-fold integral exists.
+func reachAt(efolds func(phi float64) float64, from, w float64) float64 {
+	hi := reach(efolds, from, w)
+	lo := from
+	if d := hi - from; d > w {
+		lo = from + d/2
+	}
+	for i := 0; i < 200 && hi-lo > 1e-15*math.Abs(hi); i++ {
+		mid := lo + (hi-lo)/2
+		if n := efolds(mid); n >= rangeEfolds || math.IsInf(n, 1) || math.IsNaN(n) {
+			hi = mid
+		} else {
+			lo = mid
+		}
+	}
+	return hi
+}

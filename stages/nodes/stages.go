@@ -12,10 +12,10 @@ import (
 // Versions of the stages. Bump one whenever its numerics or its outputs
 // change: the version is part of every key of that stage.
 const (
-	ModelVersion     = 1
-	CanonicalVersion = 2 // 2: quadrature of sqrt(K) in ln x on a positive native domain
-	SlowRollVersion  = 2 // 2: PhiAt on a shared e-fold bracket with a final Newton correction (second-order calibration, exact start)
-	ReheatVersion    = 2 // 2: secant steps for the self-consistent N*; PhiAt as in slow roll 2
+	ModelVersion     = 2 // 2: alpha-attractor field ranges adapt to alpha
+	CanonicalVersion = 3 // 2: quadrature of sqrt(K) in ln x on a positive native domain; 3: a quadrature at its rounding floor near a pole is accepted
+	SlowRollVersion  = 3 // 2: PhiAt on a shared e-fold bracket with a final Newton correction (second-order calibration, exact start); 3: the bracket's steps follow the slope's scale and N's growth
+	ReheatVersion    = 3 // 2: secant steps for the self-consistent N*; PhiAt as in slow roll 2; 3: PhiAt as in slow roll 3
 	CompareVersion   = 1
 )
 

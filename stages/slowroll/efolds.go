@@ -117,8 +117,15 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 	defer sol.mu.Unlock()
 	g := sol.grid
 	if g == nil || g.model != sol.Model || g.end != sol.End || g.settings != sol.Settings {
-		s0 := sol.dNdphi(sol.End.Phi)
-		h := math.Abs(s0) // about one e-fold
+		j := sol.Model.At(sol.End.Phi)
+		s0 := j.V / j.D1
+		h := math.Abs(s0) // about one e-fold where the slope changes slowly
+		if c := math.Abs(j.D1 / j.D2); c < h {
+			// The slope changes over |V'/V''|: for a steep plateau (an
+			// alpha-attractor at small alpha) far less than V/V', and a
+			// first step of V/V' would leap over every e-fold at once.
+			h = c
+		}
 		if !(h > 0) || !finite(h) {
 			h = 1e-3
 		}
@@ -137,7 +144,7 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 		room := math.Abs(edge - a)
 		step := math.Min(g.h, 0.9*room)
 		b := a + back*step
-		if g.edge || last > 400 || step <= 1e-15*math.Max(1, math.Abs(a)) || b == a {
+		if g.edge || last > 4000 || step <= 1e-15*math.Max(1, math.Abs(a)) || b == a {
 			g.edge = true
 			return cell{}, &RangeError{sol.Model.Describe(), sol.Model.Lo, sol.Model.Hi,
 				fmt.Sprintf("only %.4g e-folds of inflation before the edge of the field range; %g requested", Na, N)}
@@ -147,8 +154,24 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 			g.err = err
 			return cell{}, err
 		}
+		grow := math.Max(Na, 1)
+		if !(dN <= 3*grow) && step > 1e-12*math.Max(1, math.Abs(a)) {
+			// N would more than quadruple across the step (or the
+			// integral is not finite): take a shorter one, so that a cell
+			// spans a modest range of N and its interpolant is a good
+			// start for Newton's method.
+			g.h = step / 4
+			continue
+		}
+		if !finite(dN) {
+			g.edge = true
+			return cell{}, &RangeError{sol.Model.Describe(), sol.Model.Lo, sol.Model.Hi,
+				fmt.Sprintf("the e-fold integral diverges at phi = %.6g (V' = 0 there: the field would stop before %g e-folds)", b, N)}
+		}
 		g.pts = append(g.pts, gridPoint{phi: b, n: Na + dN, slope: sol.dNdphi(b)})
-		g.h *= 2
+		if dN < grow {
+			g.h *= 2
+		}
 	}
 	k := 1
 	for g.pts[k].n < N {
