@@ -37,7 +37,7 @@ func checkDerivs(t *testing.T, what string, got, want [4]float64, tol, abs float
 //     E = e^(-q phi) (Stewart 1995, hep-ph/9405389);
 //   - loop 1 + alpha ln phi: alpha/phi, -alpha/phi^2, 2 alpha/phi^3 (Dvali,
 //     Shafi & Schaefer 1994, hep-ph/9406319);
-//   - radion gauge phi^2/D, D = alpha + phi^2: 2 alpha phi/D^2,
+//   - radion-assisted gauge phi^2/D, D = alpha + phi^2: 2 alpha phi/D^2,
 //     2 alpha (alpha - 3 phi^2)/D^3, -24 alpha phi (alpha - phi^2)/D^4
 //     (Fairbairn, Lopez Honorez & Tytgat 2003, hep-ph/0302160);
 //   - two-plateau e^(-2 gamma)(e^w - 1), w = gamma (1 + tanh u),
@@ -121,8 +121,8 @@ func TestCatalogueDerivatives(t *testing.T) {
 		{"exponential-plateau", map[string]float64{"q": 10}, []float64{0.05, 0.5, 1.2}, ex(10)},
 		{"loop", map[string]float64{"alpha": 0.01}, []float64{0.008, 0.5, 3}, lp(0.01)},
 		{"loop", map[string]float64{"alpha": 2}, []float64{0.7, 2, 20}, lp(2)},
-		{"radion-gauge", map[string]float64{"alpha": 1}, []float64{0.3, 1, 5, 15}, rg(1)},
-		{"radion-gauge", map[string]float64{"alpha": 1e-3}, []float64{0.01, 0.1, 0.5}, rg(1e-3)},
+		{"radion-assisted-gauge", map[string]float64{"alpha": 1}, []float64{0.3, 1, 5, 15}, rg(1)},
+		{"radion-assisted-gauge", map[string]float64{"alpha": 1e-3}, []float64{0.01, 0.1, 0.5}, rg(1e-3)},
 		{"two-plateau", map[string]float64{"alpha": 7.0 / 3, "gamma": 125}, []float64{-30, -5, 0, 4, 9, 20}, tp(7.0/3, 125)},
 		{"two-plateau", map[string]float64{"alpha": 0.5, "gamma": 10}, []float64{-10, -1, 0.5, 3, 8}, tp(0.5, 10)},
 	}
@@ -145,7 +145,7 @@ func ftoa(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 //     to 1e-14 relative (alpha -> q round-trips through a square root, and
 //     the two compute 1 - e^(-q phi) differently);
 //   - brane with p = 2 and mu^2 = alpha is, for phi^2 >> alpha, 1 - alpha/phi^2,
-//     and radion gauge is 1 - alpha/(alpha + phi^2): their difference is
+//     and radion-assisted gauge is 1 - alpha/(alpha + phi^2): their difference is
 //     alpha^2/(phi^2 (alpha + phi^2)) (derived here), checked to 4e-16
 //     absolute (two values near 1 subtracted).
 func TestCatalogueIdentities(t *testing.T) {
@@ -170,11 +170,11 @@ func TestCatalogueIdentities(t *testing.T) {
 		}
 	}
 	const alpha = 0.04
-	rg := mustNew(t, "radion-gauge", map[string]float64{"alpha": alpha})
+	rg := mustNew(t, "radion-assisted-gauge", map[string]float64{"alpha": alpha})
 	br := mustNew(t, "brane", map[string]float64{"mu": math.Sqrt(alpha), "p": 2})
 	for _, phi := range []float64{0.5, 2, 10} {
 		if d, want := br.At(phi).V-rg.At(phi).V, -alpha*alpha/(phi*phi*(alpha+phi*phi)); !within(d, want, 0, 4e-16) {
-			t.Errorf("brane - radion gauge at %g = %g, want %g", phi, d, want)
+			t.Errorf("brane - radion-assisted gauge at %g = %g, want %g", phi, d, want)
 		}
 	}
 }
@@ -194,7 +194,7 @@ func TestDomainGuards(t *testing.T) {
 		{"brane", map[string]float64{"mu": 1}, []float64{0.5}},
 		{"exponential-plateau", map[string]float64{"q": 1}, []float64{-0.1}},
 		{"loop", map[string]float64{"alpha": 1}, []float64{0.3}},
-		{"radion-gauge", map[string]float64{"alpha": 1}, []float64{-2}},
+		{"radion-assisted-gauge", map[string]float64{"alpha": 1}, []float64{-2}},
 	} {
 		m := mustNew(t, c.family, c.params)
 		for _, phi := range c.outside {

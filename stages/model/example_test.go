@@ -34,7 +34,7 @@ func ExampleFamily_New() {
 func ExampleLookup() {
 	_, err := model.Lookup("quintic")
 	fmt.Println(err)
-	// Output: unknown model family "quintic" (known: brane, coleman-weinberg, e-model, exponential-plateau, higgs, hilltop, hilltop-quadratic, hilltop-quartic, loop, natural, power-law, radion-gauge, starobinsky, t-model, two-plateau)
+	// Output: unknown model family "quintic" (known: brane, coleman-weinberg, e-model, exponential-plateau, higgs, hilltop, hilltop-quadratic, hilltop-quartic, loop, natural, power-law, radion-assisted-gauge, starobinsky, t-model, two-plateau)
 }
 
 // A model written on its own field with a kinetic function and no

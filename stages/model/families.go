@@ -13,7 +13,7 @@ func init() {
 	for _, f := range []*Family{
 		tModel, eModel, starobinsky, powerLaw, natural, hilltop,
 		hilltopQuadratic, hilltopQuartic, colemanWeinberg,
-		brane, exponentialPlateau, loop, radionGauge,
+		brane, exponentialPlateau, loop, radionAssistedGauge,
 		higgs, twoPlateau,
 	} {
 		register(f)

@@ -157,11 +157,23 @@ var registry = map[string]*Family{}
 
 func register(f *Family) { registry[f.Name] = f }
 
+// renamed maps a family's former name to its current one, so that a study
+// written with the old name is refused with an error naming the new one
+// (the old name is not accepted as an alias: a key records the name).
+var renamed = map[string]string{
+	// Named after the words of the paper it cites (Fairbairn, Lopez Honorez
+	// & Tytgat 2003, "Radion assisted gauge inflation", hep-ph/0302160).
+	"radion-gauge": "radion-assisted-gauge",
+}
+
 // Lookup returns the built-in family with this name, or an error listing
-// the known families.
+// the known families (or naming the new name of a renamed family).
 func Lookup(name string) (*Family, error) {
 	if f, ok := registry[name]; ok {
 		return f, nil
+	}
+	if to, ok := renamed[name]; ok {
+		return nil, fmt.Errorf("family %q was renamed %q", name, to)
 	}
 	return nil, fmt.Errorf("unknown model family %q (known: %s)", name, strings.Join(Names(), ", "))
 }

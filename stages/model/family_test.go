@@ -18,7 +18,7 @@ func TestRegistry(t *testing.T) {
 		"t-model": "alpha,n", "e-model": "alpha,n", "starobinsky": "",
 		"power-law": "p", "natural": "f", "hilltop": "mu,p",
 		"hilltop-quadratic": "mu", "hilltop-quartic": "mu", "coleman-weinberg": "v",
-		"brane": "mu,p", "exponential-plateau": "q", "loop": "alpha", "radion-gauge": "alpha",
+		"brane": "mu,p", "exponential-plateau": "q", "loop": "alpha", "radion-assisted-gauge": "alpha",
 		"higgs": "xi", "two-plateau": "alpha,gamma",
 	}
 	var want []string
@@ -75,6 +75,34 @@ func TestLookupUnknownListsKnown(t *testing.T) {
 	}
 }
 
+// A renamed family's old name is refused with an error naming the new one,
+// and every new name is a registered family that the old name does not
+// shadow (an old name must not be registered again).
+func TestLookupRenamedNamesNew(t *testing.T) {
+	if len(renamed) == 0 {
+		t.Fatal("no renamed families: radion-gauge was renamed")
+	}
+	for from, to := range renamed {
+		if _, ok := registry[from]; ok {
+			t.Errorf("old name %q is still registered", from)
+		}
+		if _, err := Lookup(to); err != nil {
+			t.Errorf("new name %q: %v", to, err)
+		}
+		_, err := Lookup(from)
+		if err == nil {
+			t.Errorf("Lookup(%q) succeeded", from)
+			continue
+		}
+		if want := `family "` + from + `" was renamed "` + to + `"`; err.Error() != want {
+			t.Errorf("Lookup(%q) = %q, want %q", from, err, want)
+		}
+	}
+	if _, err := Lookup("radion-gauge"); err == nil || !strings.Contains(err.Error(), `"radion-assisted-gauge"`) {
+		t.Errorf("Lookup(radion-gauge) = %v, want the new name radion-assisted-gauge", err)
+	}
+}
+
 func TestParameterValidation(t *testing.T) {
 	cases := []struct {
 		family string
@@ -105,7 +133,7 @@ func TestParameterValidation(t *testing.T) {
 		{"brane", map[string]float64{"mu": math.Inf(1)}, "mu", []string{"not finite"}},
 		{"exponential-plateau", map[string]float64{"q": -0.5}, "q", []string{"outside"}},
 		{"loop", map[string]float64{"alpha": 0}, "alpha", []string{"outside"}},
-		{"radion-gauge", map[string]float64{"alpha": -1}, "alpha", []string{"outside"}},
+		{"radion-assisted-gauge", map[string]float64{"alpha": -1}, "alpha", []string{"outside"}},
 		{"higgs", map[string]float64{"xi": 0}, "xi", []string{"outside (0, 1e+10]"}},
 		{"higgs", map[string]float64{"xi": 1e11}, "xi", []string{"outside"}},
 		{"higgs", map[string]float64{"xi": 1e4, "lambda": 0.1}, "lambda", []string{"unknown", "allowed: xi"}},

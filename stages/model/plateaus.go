@@ -102,7 +102,7 @@ var loop = &Family{
 	},
 }
 
-// radionGauge is radion gauge inflation, V = V0 phi^2/(alpha + phi^2): a
+// radionAssistedGauge is radion-assisted gauge inflation, V = V0 phi^2/(alpha + phi^2): a
 // gauge (Wilson-line) inflaton whose potential is flattened by a shrinking
 // extra dimension (Fairbairn, Lopez Honorez & Tytgat 2003, "Radion assisted
 // gauge inflation", PRD 67, 101302, hep-ph/0302160; this single-field form
@@ -110,8 +110,8 @@ var loop = &Family{
 // epsilon_V = 2 alpha^2/(phi^2 (alpha + phi^2)^2) falls monotonically (one
 // end) and N(phi) = phi^2/4 + phi^4/(8 alpha) from phi = 0 (derived here).
 // V is NaN for phi < 0, the mirror image with its own end.
-var radionGauge = &Family{
-	Name:      "radion-gauge",
+var radionAssistedGauge = &Family{
+	Name:      "radion-assisted-gauge",
 	Formula:   "V = V0 phi^2/(alpha + phi^2)",
 	Reference: "Fairbairn, Lopez Honorez & Tytgat 2003, PRD 67, 101302, hep-ph/0302160",
 	Params: []Param{{Name: "alpha", Unit: "M_p^2", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
@@ -122,7 +122,7 @@ var radionGauge = &Family{
 		a := p["alpha"]
 		n := func(phi float64) float64 { return phi*phi/4 + phi*phi*phi*phi/(8*a) }
 		return &Model{
-			Family: "radion-gauge", Params: p,
+			Family: "radion-assisted-gauge", Params: p,
 			V: onDomain(0, inf, func(phi num.Jet) num.Jet {
 				// The derivatives from 1 - alpha/D (no cancellation where
 				// phi^2 >> alpha), the value from phi^2/D (none where

@@ -116,7 +116,7 @@ func TestLoopPublished(t *testing.T) {
 //     n_s = 1 - 2(p+1)/((p+2) N) (for p = 4, 1 - 5/(3N), the
 //     brane-inflation result of Kachru et al. 2003, hep-th/0308055, from
 //     memory), to 1e-3 of 1 - n_s at mu = 1e-3;
-//   - radion gauge with alpha << 1: V ≈ 1 - alpha/phi^2, the brane case
+//   - radion-assisted gauge with alpha << 1: V ≈ 1 - alpha/phi^2, the brane case
 //     p = 2: n_s = 1 - 3/(2N), to 1e-3 at alpha = 1e-6;
 //   - exponential plateau: n_s ≈ 1 - 2/N, r ≈ 8/(q^2 N^2) at large N
 //     (Stewart 1995, hep-ph/9405389: n ≈ 1 - 2/N, as summarised in public
@@ -132,7 +132,7 @@ func TestSmallFieldLimits(t *testing.T) {
 		{"quartic hilltop", "hilltop-quartic", map[string]float64{"mu": 0.01}, func(N float64) float64 { return 1 - 3/N }, 1e-3},
 		{"brane p=4", "brane", map[string]float64{"mu": 1e-3}, func(N float64) float64 { return 1 - 5/(3*N) }, 1e-3},
 		{"brane p=6", "brane", map[string]float64{"mu": 1e-3, "p": 6}, func(N float64) float64 { return 1 - 14/(8*N) }, 1e-3},
-		{"radion gauge", "radion-gauge", map[string]float64{"alpha": 1e-6}, func(N float64) float64 { return 1 - 1.5/N }, 1e-3},
+		{"radion-assisted gauge", "radion-assisted-gauge", map[string]float64{"alpha": 1e-6}, func(N float64) float64 { return 1 - 1.5/N }, 1e-3},
 		{"exponential plateau", "exponential-plateau", map[string]float64{"q": 5}, func(N float64) float64 { return 1 - 2/N }, 3e-2},
 	} {
 		sol := solve(t, build(t, c.family, c.params))
@@ -153,7 +153,7 @@ func TestSmallFieldLimits(t *testing.T) {
 // minimum approach chaotic phi^2 inflation, n_s = 1 - 2/(N + 1/2),
 // r = 8/(N + 1/2) (published-values B4, p = 2, and the slow-roll package's
 // reference test): Coleman–Weinberg for v -> infinity (V ≈ 8 (phi - v)^2/v^2
-// near the minimum, derived here) and radion gauge for alpha -> infinity
+// near the minimum, derived here) and radion-assisted gauge for alpha -> infinity
 // (V ≈ phi^2/alpha). Property: the deviation at N = 60 falls as the scale
 // grows (like 1/v and 1/alpha) and is below 2e-3 at the largest.
 func TestQuadraticLimits(t *testing.T) {
@@ -163,7 +163,7 @@ func TestQuadraticLimits(t *testing.T) {
 		values        []float64
 	}{
 		{"coleman-weinberg", "v", []float64{100, 1e3, 1e4}},
-		{"radion-gauge", "alpha", []float64{1e2, 1e4, 1e6}},
+		{"radion-assisted-gauge", "alpha", []float64{1e2, 1e4, 1e6}},
 	} {
 		prev := math.Inf(1)
 		for _, v := range c.values {

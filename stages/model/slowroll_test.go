@@ -90,9 +90,9 @@ var catalogue = []struct {
 	{"exponential-plateau", map[string]float64{"q": 5}},
 	{"loop", map[string]float64{"alpha": 0.01}},
 	{"loop", map[string]float64{"alpha": 1}},
-	{"radion-gauge", map[string]float64{"alpha": 1e-3}},
-	{"radion-gauge", map[string]float64{"alpha": 1}},
-	{"radion-gauge", map[string]float64{"alpha": 100}},
+	{"radion-assisted-gauge", map[string]float64{"alpha": 1e-3}},
+	{"radion-assisted-gauge", map[string]float64{"alpha": 1}},
+	{"radion-assisted-gauge", map[string]float64{"alpha": 100}},
 	{"higgs", map[string]float64{"xi": 1}},
 	{"higgs", map[string]float64{"xi": 1e4}},
 	{"higgs", map[string]float64{"xi": 1e8}},
@@ -218,7 +218,7 @@ func (cf closedForm) check(t *testing.T, m *model.Model) {
 //     eta = -q^2 E/V, N = (e^(q phi) - q phi)/q^2, E = e^(-q phi);
 //   - loop, V = 1 + alpha ln phi: eps = alpha^2/(2 phi^2 V^2),
 //     eta = -alpha/(phi^2 V), N = phi^2/(2 alpha) + (phi^2/2)(ln phi - 1/2);
-//   - radion gauge, V = phi^2/(alpha + phi^2): eps = 2 alpha^2/(phi^2 D^2),
+//   - radion-assisted gauge, V = phi^2/(alpha + phi^2): eps = 2 alpha^2/(phi^2 D^2),
 //     eta = 2 alpha (alpha - 3 phi^2)/(phi^2 D^2), D = alpha + phi^2,
 //     N = phi^2/4 + phi^4/(8 alpha);
 //   - hilltop-quadratic, V = 1 - phi^2/mu^2: eps = 2 phi^2/(mu^4 V^2),
@@ -297,9 +297,9 @@ func TestClosedFormSlowRoll(t *testing.T) {
 		{"exponential-plateau", map[string]float64{"q": 5}, ex(5)},
 		{"loop", map[string]float64{"alpha": 0.01}, lp(0.01)},
 		{"loop", map[string]float64{"alpha": 1}, lp(1)},
-		{"radion-gauge", map[string]float64{"alpha": 1e-3}, rg(1e-3)},
-		{"radion-gauge", map[string]float64{"alpha": 1}, rg(1)},
-		{"radion-gauge", map[string]float64{"alpha": 100}, rg(100)},
+		{"radion-assisted-gauge", map[string]float64{"alpha": 1e-3}, rg(1e-3)},
+		{"radion-assisted-gauge", map[string]float64{"alpha": 1}, rg(1)},
+		{"radion-assisted-gauge", map[string]float64{"alpha": 100}, rg(100)},
 	} {
 		c.cf.check(t, build(t, c.family, c.params))
 	}
