@@ -11,7 +11,9 @@ type Point struct {
 // Gaussian approximation or a kernel density estimate from samples.
 //
 // DeltaChi2 is -2 ln of the likelihood (or posterior density) relative to
-// its maximum over r >= 0. Levels gives the Delta chi^2 of the boundaries
+// its maximum over r >= 0 (the two-parameter reading); R95 is the
+// one-dimensional 95% bound on r (the one-dimensional reading, see
+// Comparison). Levels gives the Delta chi^2 of the boundaries
 // of the 68.27% and 95.45% regions, and Inside answers whether a point lies
 // within them, so that Inside(x) is DeltaChi2(x) <= Levels() for every
 // representation.
@@ -24,6 +26,9 @@ type Constraint interface {
 	Inside(ns, r float64) (in68, in95 bool)
 	// Levels returns the Delta chi^2 on the 68.27% and 95.45% boundaries.
 	Levels() (d68, d95 float64)
+	// R95 returns the one-dimensional 95% upper bound on r (marginalised
+	// over n_s) against which Comparison.ExceedsR95 is judged.
+	R95() float64
 }
 
 // Probabilities enclosed by the one- and two-sigma regions: erf(k/sqrt 2)

@@ -108,12 +108,37 @@ func asymptoticErfcinv(target float64) float64 {
 }
 
 // Comparison is the result of comparing one prediction with a constraint.
+// It carries two readings that answer different questions and need not
+// agree.
+//
+// The two-parameter reading (DeltaChi2, Sigmas, Inside68, Inside95) places
+// the point (n_s, r) in the joint (n_s, r) distribution: Delta chi^2 is
+// turned into sigmas with two degrees of freedom, so a point exactly on a
+// published one-dimensional 95% bound on r with n_s at its mean has
+// Delta chi^2 = 1.959964^2 = 3.84, which is 1.45 sigma and inside the two-
+// parameter 95.45% region.
+//
+// The one-dimensional reading (R95, ExceedsR95) asks only whether r is
+// above the published 95% upper bound on r, marginalised over n_s: the
+// statement "r < r95 at 95%" as the paper makes it.
 type Comparison struct {
-	DeltaChi2 float64
-	Sigmas    float64
-	Inside68  bool // Delta chi^2 <= 2.2958 (68.27% for two parameters)
-	Inside95  bool // Delta chi^2 <= 6.1801 (95.45% for two parameters)
+	DeltaChi2  float64
+	Sigmas     float64
+	Inside68   bool    // Delta chi^2 <= 2.2958 (68.27% for two parameters)
+	Inside95   bool    // Delta chi^2 <= 6.1801 (95.45% for two parameters)
+	R95        float64 // the one-dimensional 95% upper bound on r used
+	ExceedsR95 bool    // r > R95
 }
+
+// R95 returns the one-dimensional 95% upper bound on r of the constraint,
+// mean_r + 1.959964 sigma_r. For a published one-sided limit (mean_r = 0,
+// sigma_r = upper_95/1.959964, see HalfNormal95) it is the 95% quantile of
+// the half-normal, that is the published upper_95 to rounding (within an
+// ulp or two); for r given as mean +/- sigma it is the upper end of the
+// central 95% interval of the Gaussian (common practice). The correlation
+// with n_s does not enter: the marginal of a bivariate Gaussian is the
+// Gaussian of its own mean and sigma.
+func (g Gaussian) R95() float64 { return g.MeanR + HalfNormal95*g.SigmaR }
 
 // Chi2Level returns the Delta chi^2 enclosing probability P for two
 // parameters: the quantile of the chi^2 distribution with two degrees of
@@ -123,10 +148,13 @@ func Chi2Level(P float64) float64 { return distuv.ChiSquared{K: 2}.Quantile(P) }
 // Compare evaluates the prediction (n_s, r) against g.
 func (g Gaussian) Compare(ns, r float64) Comparison {
 	d := g.DeltaChi2(ns, r)
+	r95 := g.R95()
 	return Comparison{
-		DeltaChi2: d,
-		Sigmas:    Sigmas(d),
-		Inside68:  d <= Chi2Level(math.Erf(1/math.Sqrt2)),
-		Inside95:  d <= Chi2Level(math.Erf(2/math.Sqrt2)),
+		DeltaChi2:  d,
+		Sigmas:     Sigmas(d),
+		Inside68:   d <= Chi2Level(math.Erf(1/math.Sqrt2)),
+		Inside95:   d <= Chi2Level(math.Erf(2/math.Sqrt2)),
+		R95:        r95,
+		ExceedsR95: r > r95,
 	}
 }

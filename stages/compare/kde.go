@@ -52,6 +52,7 @@ type KDE struct {
 	lnMax          float64
 	lnLevel        [2]float64 // ln f_P for P68, P95
 	lnAtSamples    []float64  // ln p(x_i), ascending
+	r95            float64    // 95% quantile of the samples' r
 }
 
 // MaxKDESamples is the most samples NewKDE accepts: construction costs
@@ -114,6 +115,12 @@ func NewKDE(name, citation string, samples []Point) (*KDE, error) {
 	}
 	k.argmax, k.lnMax = k.polish(k.pts[best], k.lnAtSamples[best])
 	sort.Float64s(k.lnAtSamples)
+	rs := make([]float64, n)
+	for i, p := range k.pts {
+		rs[i] = p.R
+	}
+	sort.Float64s(rs)
+	k.r95 = stat.Quantile(0.95, stat.LinInterp, rs, nil)
 	for j, P := range []float64{P68, P95} {
 		k.lnLevel[j] = stat.Quantile(1-P, stat.LinInterp, k.lnAtSamples, nil)
 	}
@@ -263,14 +270,22 @@ func (k *KDE) Enclosed(ns, r float64) float64 {
 	return float64(len(k.lnAtSamples)-below) / float64(len(k.lnAtSamples))
 }
 
+// R95 returns the one-dimensional 95% upper bound on r: the 95% quantile
+// of the samples' r (their marginal over n_s), interpolated linearly
+// between order statistics (gonum's stat.LinInterp). It is read from the
+// samples themselves, not from the smoothed density, as a chain's
+// published limit is (common practice).
+func (k *KDE) R95() float64 { return k.r95 }
+
 // Compare evaluates (n_s, r) against the estimate. Sigmas is the
 // two-parameter Gaussian equivalent of Delta chi^2 (Sigmas); the Inside
 // flags come from the highest-density levels, whose Delta chi^2 need not
-// be 2.30 and 6.18 when the constraint is not Gaussian.
+// be 2.30 and 6.18 when the constraint is not Gaussian; ExceedsR95 is
+// r > R95.
 func (k *KDE) Compare(ns, r float64) Comparison {
 	d := k.DeltaChi2(ns, r)
 	in68, in95 := k.Inside(ns, r)
-	return Comparison{DeltaChi2: d, Sigmas: Sigmas(d), Inside68: in68, Inside95: in95}
+	return Comparison{DeltaChi2: d, Sigmas: Sigmas(d), Inside68: in68, Inside95: in95, R95: k.r95, ExceedsR95: r > k.r95}
 }
 
 // Extent returns a box holding the samples widened by four kernel
