@@ -3,6 +3,7 @@ package nodes
 import (
 	"context"
 	"fmt"
+	"math"
 	"strings"
 
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -160,7 +161,7 @@ func reheatOutputs(params, in pipeline.Values, history string) (pipeline.Values,
 			nMax = N
 		}
 	}
-	ev, err := evaluator(in, reheat.Normalisation{As: As}, nMax)
+	ev, check, err := evaluator(in, reheat.Normalisation{As: As}, nMax)
 	if err != nil {
 		return nil, err
 	}
@@ -171,6 +172,9 @@ func reheatOutputs(params, in pipeline.Values, history string) (pipeline.Values,
 		}
 		pr, err := ev.At(v[0])
 		if err != nil {
+			return nil, err
+		}
+		if err := check(pr); err != nil {
 			return nil, err
 		}
 		out := predictionValues(pr)
@@ -214,12 +218,20 @@ func reheatOutputs(params, in pipeline.Values, history string) (pipeline.Values,
 		if err != nil {
 			return nil, err
 		}
+		for _, end := range []reheat.Prediction{b.NMin.Pred, b.NMax.Pred} {
+			if err := check(end); err != nil {
+				return nil, fmt.Errorf("band edge: %w", err)
+			}
+		}
 		return bandValues(b, params), nil
 	default:
 		return nil, fmt.Errorf("unknown reheating history %q (known: %s)", history, strings.Join(Histories, ", "))
 	}
 	pr, err := reheat.Match(ev, h, era, 55)
 	if err != nil {
+		return nil, err
+	}
+	if err := check(pr); err != nil {
 		return nil, err
 	}
 	out := predictionValues(pr)
@@ -240,6 +252,7 @@ func predictionValues(pr reheat.Prediction) pipeline.Values {
 	vs := make(pipeline.Values, 32)
 	vs["N_star"] = pipeline.Float(pr.N, pipeline.UnitNone)
 	vs["phi_star"] = pipeline.Float(pr.Point.Phi, pipeline.UnitMp)
+	vs["phi_end"] = pipeline.Float(pr.PhiEnd, pipeline.UnitMp) // the end N* is counted from
 	vs["epsilon_V"] = pipeline.Float(pr.Point.Epsilon, pipeline.UnitNone)
 	vs["eta_V"] = pipeline.Float(pr.Point.Eta, pipeline.UnitNone)
 	vs["xi2_V"] = pipeline.Float(pr.Point.Xi2, pipeline.UnitNone)
@@ -281,32 +294,87 @@ func bandValues(b reheat.BandResult, params pipeline.Values) pipeline.Values {
 	}
 }
 
-// evaluator returns the prediction at N for the slow-roll node's method.
+// evaluator returns the prediction at N for the slow-roll node's method,
+// and the self-consistency check every prediction of it must pass before
+// it is reported (slowroll.CheckPivot with the e-fold count the method
+// solves, and finite observables and scales).
 //
 // The exact method integrates the background far enough back for pivots
 // up to nMax e-folds before the end.
-func evaluator(in pipeline.Values, n reheat.Normalisation, nMax float64) (reheat.Evaluator, error) {
+func evaluator(in pipeline.Values, n reheat.Normalisation, nMax float64) (reheat.Evaluator, func(reheat.Prediction) error, error) {
 	sol, err := solutionFrom(in)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	sp := decodeSlowRoll(in)
+	checkWith := func(c func(N float64) slowroll.PivotCheck) func(reheat.Prediction) error {
+		return func(pr reheat.Prediction) error {
+			name := sol.Model.Describe()
+			if !(pr.N > 0) || !finite(pr.N) {
+				return &slowroll.ConsistencyError{Model: name, N: pr.N, Msg: fmt.Sprintf("N* = %g", pr.N)}
+			}
+			if err := sol.CheckPivot(pr.Point.Phi, c(pr.N)); err != nil {
+				return err
+			}
+			if err := slowroll.CheckObservables(name, pr.N, pr.Obs); err != nil {
+				return err
+			}
+			for _, v := range []struct {
+				what string
+				x    float64
+			}{{"V0", pr.Scale.V0}, {"V*", pr.Scale.Vstar}, {"H*", pr.Scale.Hstar}, {"rho_end", pr.Scale.RhoEnd}} {
+				if !(v.x > 0) || !finite(v.x) {
+					return &slowroll.ConsistencyError{Model: name, Phi: pr.Point.Phi, N: pr.N, Msg: fmt.Sprintf("%s = %g after normalisation to A_s", v.what, v.x)}
+				}
+			}
+			return nil
+		}
+	}
 	switch sp.Method {
 	case MethodFirst:
-		return reheat.FirstOrder{Sol: sol, Norm: n}, nil
-	case MethodSecond:
-		v, err := need(in, MethodSecond, "cal_phi", "cal_N_exact", "cal_delta_N", "phi_end_exact")
-		if err != nil {
-			return nil, err
+		var cal *slowroll.EndCalibration
+		if sp.End == EndEpsilonHOne {
+			if cal, err = calibration(in); err != nil {
+				return nil, nil, err
+			}
 		}
-		cal := &slowroll.EndCalibration{Phi: v[0], NExact: v[1], DeltaN: v[2], PhiEnd: v[3]}
-		return reheat.SecondOrder{Sol: sol, Cal: cal, Norm: n}, nil
+		check := checkWith(func(N float64) slowroll.PivotCheck {
+			if cal != nil {
+				N -= reheat.FirstOrderEndShift(cal)
+			}
+			return slowroll.PivotCheck{Target: N}
+		})
+		return reheat.FirstOrder{Sol: sol, Norm: n, Cal: cal}, check, nil
+	case MethodSecond:
+		cal, err := calibration(in)
+		if err != nil {
+			return nil, nil, err
+		}
+		check := checkWith(func(N float64) slowroll.PivotCheck {
+			return slowroll.PivotCheck{Target: N - cal.DeltaN, Shift: sol.EfoldShift}
+		})
+		return reheat.SecondOrder{Sol: sol, Cal: cal, Norm: n}, check, nil
 	case MethodExact:
 		es, err := slowroll.SolveExact(sol.Model, nMax, sp.exactSettings())
 		if err != nil {
-			return nil, err
+			return nil, nil, err
 		}
-		return reheat.Exact{Sol: es, Norm: n}, nil
+		// The exact pivot is where the exact background has N e-folds left;
+		// the first-order count is no independent measure of that, so the
+		// check is the range, epsilon_V and finiteness only.
+		check := checkWith(func(N float64) slowroll.PivotCheck { return slowroll.PivotCheck{Target: N, RelTol: -1} })
+		return reheat.Exact{Sol: es, Norm: n}, check, nil
 	}
-	return nil, fmt.Errorf("slow-roll method %q has no evaluator", sp.Method)
+	return nil, nil, fmt.Errorf("slow-roll method %q has no evaluator", sp.Method)
 }
+
+// calibration reads the end calibration a slow-roll node recorded.
+func calibration(in pipeline.Values) (*slowroll.EndCalibration, error) {
+	v, err := need(in, "end calibration", "cal_phi", "cal_N_exact", "cal_delta_N", "phi_end_exact")
+	if err != nil {
+		return nil, err
+	}
+	return &slowroll.EndCalibration{Phi: v[0], NExact: v[1], DeltaN: v[2], PhiEnd: v[3]}, nil
+}
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

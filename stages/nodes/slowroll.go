@@ -22,7 +22,7 @@ var Methods = []string{MethodFirst, MethodSecond, MethodExact}
 // Ends of inflation.
 const (
 	EndEpsilonVOne = "epsilon_V=1"
-	EndEpsilonHOne = "epsilon_H=1" // second and exact only: a property of the trajectory
+	EndEpsilonHOne = "epsilon_H=1" // on the exact background; first order counts its pivot from there
 	EndEtaVOne     = "eta_V=1"     // |eta_V| = 1
 	EndField       = "field"       // at the field value end_phi
 )
@@ -55,7 +55,7 @@ func (p SlowRollParams) Values() pipeline.Values {
 	if p.End == EndField {
 		vs["end_phi"] = pipeline.Float(p.EndPhi, pipeline.UnitMp)
 	}
-	if p.Method != MethodFirst {
+	if p.Method != MethodFirst || p.End == EndEpsilonHOne { // the exact background is integrated
 		for k, v := range p.Exact {
 			vs[k] = pipeline.Float(v, pipeline.UnitNone)
 		}
@@ -70,9 +70,6 @@ func (p SlowRollParams) Check() error {
 	}
 	if !contains(Ends, p.End) {
 		return fmt.Errorf("end of inflation %q is not available (available: %s)", p.End, strings.Join(Ends, ", "))
-	}
-	if p.Method == MethodFirst && p.End == EndEpsilonHOne {
-		return fmt.Errorf("end %s needs the trajectory: use method %s or %s (first order ends at %s)", EndEpsilonHOne, MethodSecond, MethodExact, EndEpsilonVOne)
 	}
 	for k := range p.Exact {
 		if !contains(exactKeys, k) {
@@ -190,8 +187,11 @@ func (SlowRoll) Run(_ context.Context, params pipeline.Values, inputs []pipeline
 	out["phi_end"] = pipeline.Float(sol.End.Phi, pipeline.UnitMp)
 	out["roll_direction"] = pipeline.Float(sol.End.Direction, pipeline.UnitNone)
 	out["V_end_shape"] = pipeline.Float(sol.End.V, pipeline.UnitNone)
-	switch sp.Method {
-	case MethodSecond:
+	switch {
+	case sp.Method == MethodSecond || (sp.Method == MethodFirst && sp.End == EndEpsilonHOne):
+		// Second order always counts from the exact end; first order does
+		// when asked to end at epsilon_H = 1 (first-order formulas at the
+		// pivot N* e-folds before the exact end).
 		cal, err := sol.CalibrateEnd(sp.exactSettings())
 		if err != nil {
 			return nil, fmt.Errorf("calibrating the end of inflation on the exact background: %w", err)
@@ -200,7 +200,7 @@ func (SlowRoll) Run(_ context.Context, params pipeline.Values, inputs []pipeline
 		out["cal_N_exact"] = pipeline.Float(cal.NExact, pipeline.UnitNone)
 		out["cal_delta_N"] = pipeline.Float(cal.DeltaN, pipeline.UnitNone)
 		out["phi_end_exact"] = pipeline.Float(cal.PhiEnd, pipeline.UnitMp)
-	case MethodExact:
+	case sp.Method == MethodExact:
 		es, err := slowroll.SolveExact(m, 60, sp.exactSettings())
 		if err != nil {
 			return nil, err
@@ -228,4 +228,29 @@ func solutionFrom(in pipeline.Values) (*slowroll.Solution, error) {
 		return nil, err
 	}
 	return &slowroll.Solution{Model: m, End: slowroll.End{Phi: phi, Direction: dir, V: m.At(phi).V}}, nil
+}
+
+// NStarDefinition says in words what N* counts for a method and an end
+// condition; every result carries it.
+func NStarDefinition(method, end string) string {
+	to := map[string]string{
+		EndEpsilonVOne: "epsilon_V = 1",
+		EndEpsilonHOne: "epsilon_H = 1 on the exact background",
+		EndEtaVOne:     "|eta_V| = 1",
+		EndField:       "the field end_phi",
+	}[end]
+	if to == "" {
+		to = end
+	}
+	switch {
+	case method == MethodFirst && end == EndEpsilonHOne:
+		return "e-folds from the pivot's horizon exit to " + to + ": first-order slow-roll count (integral of V/V') to 20 e-folds before the slow-roll end, exact background from there; first-order observables at that pivot"
+	case method == MethodFirst:
+		return "first-order slow-roll e-folds (integral of V/V') from the pivot to " + to
+	case method == MethodSecond:
+		return "second-order slow-roll e-folds from the pivot's horizon exit to " + to + ", the last 20 e-folds on the exact background"
+	case method == MethodExact:
+		return "e-folds of the exact background from the pivot's horizon exit (k* = aH) to " + to
+	}
+	return ""
 }

@@ -36,10 +36,14 @@ func Normalise(p slowroll.Point, end slowroll.End, n Normalisation) Scale {
 
 // Prediction is one matched prediction at the pivot.
 type Prediction struct {
-	N     float64 // e-folds between the pivot's exit and the end of inflation
-	Point slowroll.Point
-	Obs   slowroll.Observables
-	Scale Scale
+	N float64 // e-folds between the pivot's exit and the end of inflation
+	// PhiEnd is the end of inflation the method counted N from [M_p]:
+	// the slow-roll end, or the exact end (epsilon_H = 1) where the
+	// method calibrates or integrates the background.
+	PhiEnd float64
+	Point  slowroll.Point
+	Obs    slowroll.Observables
+	Scale  Scale
 	// TReh is the reheating temperature [M_p]; for instantaneous
 	// reheating it is the maximum, T_max. Zero when not computed.
 	TReh float64
@@ -55,7 +59,7 @@ func AtEfolds(sol *slowroll.Solution, N float64, n Normalisation) (Prediction, e
 	if err != nil {
 		return Prediction{}, err
 	}
-	return Prediction{N: N, Point: p, Obs: o, Scale: Normalise(p, sol.End, n)}, nil
+	return Prediction{N: N, PhiEnd: sol.End.Phi, Point: p, Obs: o, Scale: Normalise(p, sol.End, n)}, nil
 }
 
 // History describes the thermal history after inflation needed to relate
@@ -105,19 +109,45 @@ func (h History) InstantEfolds(s Scale) (N, TReh float64) {
 }
 
 // FirstOrder evaluates a slow-roll solution at first order and normalises
-// it to A_s.
+// it to A_s. With Cal the pivot is counted from the exact end of inflation
+// (epsilon_H = 1 on the exact background): the first-order count from the
+// slow-roll end is N - FirstOrderEndShift(Cal), and rho_end is taken at the
+// exact end; the observables are the first-order formulas at that pivot.
 type FirstOrder struct {
 	Sol  *slowroll.Solution
 	Norm Normalisation
+	Cal  *slowroll.EndCalibration
+}
+
+// FirstOrderEndShift is the e-folds the exact background adds after the
+// field CalibrationEfolds first-order e-folds before the slow-roll end,
+// beyond those first-order e-folds: N_exact = N_first + shift near the end.
+func FirstOrderEndShift(cal *slowroll.EndCalibration) float64 {
+	return cal.NExact - slowroll.CalibrationEfolds
 }
 
 // At implements Evaluator.
-func (f FirstOrder) At(N float64) (Prediction, error) { return AtEfolds(f.Sol, N, f.Norm) }
+func (f FirstOrder) At(N float64) (Prediction, error) {
+	if f.Cal == nil {
+		return AtEfolds(f.Sol, N, f.Norm)
+	}
+	shift := FirstOrderEndShift(f.Cal)
+	if !(N-shift >= 0) {
+		return Prediction{}, fmt.Errorf("%s: N = %g is inside the exact end of inflation (shift %.4g e-folds)", f.Sol.Model.Describe(), N, shift)
+	}
+	p, o, err := f.Sol.Evaluate(N - shift)
+	if err != nil {
+		return Prediction{}, err
+	}
+	p.N = N
+	end := slowroll.End{Phi: f.Cal.PhiEnd, Direction: f.Sol.End.Direction, V: f.Sol.Model.At(f.Cal.PhiEnd).V}
+	return Prediction{N: N, PhiEnd: f.Cal.PhiEnd, Point: p, Obs: o, Scale: Normalise(p, end, f.Norm)}, nil
+}
 
 // Instant solves the matching for instantaneous reheating self-consistently
 // at first order (Match with EraInstant).
 func Instant(sol *slowroll.Solution, h History, n Normalisation) (Prediction, error) {
-	return Match(FirstOrder{sol, n}, h, Era{Kind: EraInstant}, 55)
+	return Match(FirstOrder{Sol: sol, Norm: n}, h, Era{Kind: EraInstant}, 55)
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

@@ -40,7 +40,7 @@ func (s SecondOrder) At(N float64) (Prediction, error) {
 	}
 	ve := V0 * s.Sol.Model.At(phiEnd).V
 	sc := Scale{V0: V0, Vstar: V0 * p.V, Hstar: math.Sqrt(V0 * h2), Vend: ve, RhoEnd: 1.5 * ve}
-	return Prediction{N: N, Point: p, Obs: obs, Scale: sc}, nil
+	return Prediction{N: N, PhiEnd: phiEnd, Point: p, Obs: obs, Scale: sc}, nil
 }
 
 // Exact evaluates the exact background and mode solution: the observables
@@ -65,5 +65,5 @@ func (e Exact) At(N float64) (Prediction, error) {
 	ve := V0 * m.At(r.PhiEnd).V
 	sc := Scale{V0: V0, Vstar: V0 * p.V, Hstar: math.Sqrt(V0 * p.V / (3 - r.EpsilonH)), Vend: ve, RhoEnd: 1.5 * ve}
 	obs := slowroll.Observables{Ns: r.Ns, R: r.R, AlphaS: r.AlphaS, Nt: r.Nt}
-	return Prediction{N: N, Point: p, Obs: obs, Scale: sc}, nil
+	return Prediction{N: N, PhiEnd: r.PhiEnd, Point: p, Obs: obs, Scale: sc}, nil
 }

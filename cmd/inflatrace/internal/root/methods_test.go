@@ -1,11 +1,10 @@
 package root
 
 import (
+	"encoding/json"
 	"math"
 	"strings"
 	"testing"
-
-	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 )
 
 const methodsStudy = `[slow_roll]
@@ -57,8 +56,27 @@ func TestMethodsInOneRun(t *testing.T) {
 	if !strings.Contains(out, `"method": "exact"`) || !strings.Contains(out, "0.9648983") {
 		t.Errorf("predict --method exact: %s", out)
 	}
-	_, errs, code := h.run("predict", "--family", "starobinsky", "--efolds", "55", "--end", "epsilon_H=1")
-	if code != app.ExitUsage || !strings.Contains(errs, "slow_roll.end") {
-		t.Errorf("first order with epsilon_H=1: exit %d, %s", code, errs)
+	// First order counted from the exact end (epsilon_H = 1): the end it
+	// reports is the exact method's, and its pivot lies nearer the exact
+	// pivot than first order counted from epsilon_V = 1 (the count's
+	// error near the end is gone; what remains is the first-order count's
+	// O(epsilon) error per e-fold). A property that could be false.
+	pick := func(args ...string) map[string]any {
+		var r map[string]any
+		if err := json.Unmarshal([]byte(h.mustRun(append([]string{"predict", "--family", "starobinsky", "--efolds", "55", "--json"}, args...)...)), &r); err != nil {
+			t.Fatal(err)
+		}
+		return r
+	}
+	fH, fV, xH := pick("--end", "epsilon_H=1"), pick("--end", "epsilon_V=1"), pick("--method", "exact", "--end", "epsilon_H=1")
+	num := func(r map[string]any, k string) float64 { return r[k].(float64) }
+	if d := math.Abs(num(fH, "phi_end") - num(xH, "phi_end")); d > 1e-9 {
+		t.Errorf("first order at epsilon_H=1 reports phi_end %v, exact %v", fH["phi_end"], xH["phi_end"])
+	}
+	if fH["end"] != "epsilon_H=1" || fH["N_star_definition"] == "" || fH["phi_end_slow_roll"] == nil {
+		t.Errorf("first order at epsilon_H=1: end %v, N_star_definition %v, phi_end_slow_roll %v", fH["end"], fH["N_star_definition"], fH["phi_end_slow_roll"])
+	}
+	if dH, dV := math.Abs(num(fH, "phi_star")-num(xH, "phi_star")), math.Abs(num(fV, "phi_star")-num(xH, "phi_star")); !(dH < dV/2) {
+		t.Errorf("pivot from the exact end is %.3g from the exact pivot, from epsilon_V = 1 %.3g", dH, dV)
 	}
 }
