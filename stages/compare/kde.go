@@ -115,12 +115,7 @@ func NewKDE(name, citation string, samples []Point) (*KDE, error) {
 	}
 	k.argmax, k.lnMax = k.polish(k.pts[best], k.lnAtSamples[best])
 	sort.Float64s(k.lnAtSamples)
-	rs := make([]float64, n)
-	for i, p := range k.pts {
-		rs[i] = p.R
-	}
-	sort.Float64s(rs)
-	k.r95 = stat.Quantile(0.95, stat.LinInterp, rs, nil)
+	k.r95 = SampleR95(k.pts)
 	for j, P := range []float64{P68, P95} {
 		k.lnLevel[j] = stat.Quantile(1-P, stat.LinInterp, k.lnAtSamples, nil)
 	}
@@ -270,12 +265,22 @@ func (k *KDE) Enclosed(ns, r float64) float64 {
 	return float64(len(k.lnAtSamples)-below) / float64(len(k.lnAtSamples))
 }
 
-// R95 returns the one-dimensional 95% upper bound on r: the 95% quantile
-// of the samples' r (their marginal over n_s), interpolated linearly
-// between order statistics (gonum's stat.LinInterp). It is read from the
-// samples themselves, not from the smoothed density, as a chain's
-// published limit is (common practice).
+// R95 returns the one-dimensional 95% upper bound on r, SampleR95 of the
+// samples.
 func (k *KDE) R95() float64 { return k.r95 }
+
+// SampleR95 returns the 95% quantile of the samples' r (their marginal
+// over n_s), interpolated linearly between order statistics (gonum's
+// stat.LinInterp). It is read from the samples themselves, not from the
+// smoothed density, as a chain's published limit is (common practice).
+func SampleR95(pts []Point) float64 {
+	rs := make([]float64, len(pts))
+	for i, p := range pts {
+		rs[i] = p.R
+	}
+	sort.Float64s(rs)
+	return stat.Quantile(0.95, stat.LinInterp, rs, nil)
+}
 
 // Compare evaluates (n_s, r) against the estimate. Sigmas is the
 // two-parameter Gaussian equivalent of Delta chi^2 (Sigmas); the Inside

@@ -10,11 +10,14 @@ import (
 	"path/filepath"
 	"sort"
 	"strings"
+	"sync"
 
 	"github.com/pelletier/go-toml/v2"
 
 	"github.com/inflatrace/inflatrace/configs"
+	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/compare"
+	"github.com/inflatrace/inflatrace/stages/nodes"
 )
 
 // constraintFile is the format of a constraint set file.
@@ -163,4 +166,57 @@ func ShippedNames() []string {
 	}
 	sort.Strings(names)
 	return names
+}
+
+// OneDimensionalBound returns the one-dimensional 95% upper bound on r of
+// the constraint described by a compare node's parameters (see
+// compare.Comparison for the two readings): mean_r + 1.959964 sigma_r for
+// a Gaussian set (the published upper_95, to rounding, for a one-sided
+// limit), the 95% quantile of the samples' r for a sample set. ok is false
+// for a forecast or parameters that describe no constraint.
+func OneDimensionalBound(params pipeline.Values) (r95 float64, ok bool) {
+	kind := ""
+	if k, found := params["kind"]; found && k.Kind == pipeline.KindString {
+		kind = k.Str
+	}
+	switch kind {
+	case nodes.KindForecast:
+		return 0, false
+	case nodes.KindSamples:
+		text, err := params.Text("samples")
+		if err != nil {
+			return 0, false
+		}
+		return sampleBound(text)
+	}
+	g, isGauss := nodes.GaussianFrom(params)
+	if !isGauss || g.Check() != nil {
+		return 0, false
+	}
+	return g.R95(), true
+}
+
+// sampleBounds remembers the bound of the last few sample texts: every
+// point of a scan has its own compare node with the same samples.
+var sampleBounds struct {
+	sync.Mutex
+	m map[string]float64
+}
+
+func sampleBound(text string) (float64, bool) {
+	sampleBounds.Lock()
+	defer sampleBounds.Unlock()
+	if r95, ok := sampleBounds.m[text]; ok {
+		return r95, true
+	}
+	pts, err := compare.ParseSamples("samples", []byte(text))
+	if err != nil {
+		return 0, false
+	}
+	if sampleBounds.m == nil || len(sampleBounds.m) >= 8 {
+		sampleBounds.m = map[string]float64{}
+	}
+	r95 := compare.SampleR95(pts)
+	sampleBounds.m[text] = r95
+	return r95, true
 }

@@ -36,6 +36,8 @@ type Result struct {
 	NSigma         *float64           `json:"n_sigma,omitempty"`
 	Inside68       *bool              `json:"inside_68,omitempty"`
 	Inside95       *bool              `json:"inside_95,omitempty"`
+	R95            *float64           `json:"r95,omitempty"`         // the constraint's 1-D 95% bound on r
+	ExceedsR95     *bool              `json:"exceeds_r95,omitempty"` // r > r95
 	DetectionSigma *float64           `json:"detection_sigma,omitempty"`
 	Detected5Sigma *bool              `json:"detected_5sigma,omitempty"`
 	Key            string             `json:"key"`
@@ -58,10 +60,14 @@ type Band struct {
 	RAtNStar  [2]float64 `json:"r_at_N_star"`
 }
 
-// StageOutputs is one node of a result's lineage: its stage and outputs.
+// StageOutputs is one node of a result's lineage: its stage and outputs,
+// and optionally its parameters (a compare node's give the constraint,
+// from which Assemble reads the one-dimensional bound r95 when the outputs
+// do not carry it).
 type StageOutputs struct {
 	Stage   string
 	Outputs pipeline.Values
+	Params  pipeline.Values
 }
 
 // Assemble builds a result from the outputs along its lineage (any order).
@@ -83,6 +89,7 @@ func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
 		b := s == "yes"
 		return &b
 	}
+	var compareParams pipeline.Values
 	for _, l := range lineage {
 		vs := l.Outputs
 		switch l.Stage {
@@ -132,8 +139,17 @@ func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
 			res.NSigma = opt(vs, "n_sigma")
 			res.Inside68 = flag(vs, "inside_68")
 			res.Inside95 = flag(vs, "inside_95")
+			res.R95 = opt(vs, "r95")
+			res.ExceedsR95 = flag(vs, "exceeds_r95")
+			compareParams = l.Params
 			res.DetectionSigma = opt(vs, "detection_sigma")
 			res.Detected5Sigma = flag(vs, "detected_5sigma")
+		}
+	}
+	if res.R95 == nil && res.DeltaChi2 != nil && compareParams != nil {
+		if r95, ok := OneDimensionalBound(compareParams); ok {
+			exceeds := res.R > r95
+			res.R95, res.ExceedsR95 = &r95, &exceeds
 		}
 	}
 	return res
@@ -161,7 +177,7 @@ func Results(g *pipeline.Graph, rep *pipeline.Report) []Result {
 			if o.Err != nil && firstErr == "" {
 				firstErr = o.Err.Error()
 			}
-			lineage = append(lineage, StageOutputs{Stage: g.Nodes[i].Stage.Spec().Name, Outputs: o.Outputs})
+			lineage = append(lineage, StageOutputs{Stage: g.Nodes[i].Stage.Spec().Name, Outputs: o.Outputs, Params: g.Nodes[i].Params})
 		}
 		walk(r.Node)
 		res := Assemble(r.Label, rep.Outcomes[r.Node].Key, lineage)
