@@ -240,9 +240,9 @@ func TestTwoPlateauTail(t *testing.T) {
 
 // TestAsymptoticW: the two-plateau family's asymptotic equation of state
 // w = -1 + 2/(9 alpha) (Akrami, Kallosh, Linde & Vardanyan 2018,
-// arXiv:1712.09693, abstract; published-values B8, V) and its value
-// -1 + 2/21 = -0.9048 for the seven-disk alpha = 7/3 (B8, C, to its four
-// printed decimals). Where lambda^2 = 2/(3 alpha) >= 6 (alpha <= 1/9) there
+// arXiv:1712.09693, abstract) and its value -1 + 2/21 = -0.9048 for
+// alpha = 7/3 (the abstract's example; the arithmetic to four decimals,
+// 5e-5). Where lambda^2 = 2/(3 alpha) >= 6 (alpha <= 1/9) there
 // is no scalar-dominated attractor (Copeland, Liddle & Wands 1998,
 // gr-qc/9711068, from memory) and ok is false.
 func TestAsymptoticW(t *testing.T) {
@@ -253,7 +253,7 @@ func TestAsymptoticW(t *testing.T) {
 	m := mustNew(t, "two-plateau", map[string]float64{"alpha": 7.0 / 3, "gamma": 125})
 	w, ok := f.AsymptoticW(m.Params)
 	if !ok || math.Abs(w-(-0.9048)) > 5e-5 {
-		t.Errorf("alpha=7/3: w = %.6f (ok %v), B8 gives -0.9048", w, ok)
+		t.Errorf("alpha=7/3: w = %.6f (ok %v), -1 + 2/(9 alpha) = -0.9048", w, ok)
 	}
 	for _, alpha := range []float64{0.2, 1, 3, 100} {
 		w, ok := f.AsymptoticW(map[string]float64{"alpha": alpha, "gamma": 50})

@@ -71,7 +71,7 @@ func plateauPower(phi, b, m float64) [4]float64 {
 //     (1 - exp(-sqrt(2/(3 alpha)) phi))^(2n): Kallosh & Linde 2013,
 //     arXiv:1306.5220; Kallosh, Linde & Roest 2013, arXiv:1311.0472;
 //   - Starobinsky (1 - exp(-sqrt(2/3) phi))^2: Starobinsky 1980, PLB 91, 99
-//     (Einstein-frame form as in published-values B2);
+//     (its Einstein-frame form with the reduced Planck mass: common practice);
 //   - power law phi^p: Linde 1983, PLB 129, 177;
 //   - natural 1 + cos(phi/f): Freese, Frieman & Olinto 1990, PRL 65, 3233;
 //   - hilltop 1 - (phi/mu)^p: Boubekeur & Lyth 2005, hep-ph/0502047.

@@ -6,7 +6,8 @@ import (
 )
 
 // TestStewartLythConstant: C = -2 + ln 2 + γ_E = -0.729637
-// (published-values B7, computed there, C), with γ_E = 0.5772156649
+// (Stewart & Lyth 1993, PLB 302, 171, gr-qc/9302019, the definition;
+// the value computed here), with γ_E = 0.5772156649
 // (from memory: the ten-digit value found in standard tables such as
 // Abramowitz & Stegun 1964, ch. 6).
 func TestStewartLythConstant(t *testing.T) {
@@ -44,7 +45,8 @@ func TestSecondOrderPowerLaw(t *testing.T) {
 // TestSecondOrderLimit: scaling all slow-roll parameters by λ → 0, the
 // second-order observables from FlowFromPotential approach the
 // first-order ones (FirstOrder, with ε_2 ≈ 4ε_V - 2η_V and
-// ε_2ε_3 ≈ 16ε_V² - 12ε_Vη_V + 2ξ²_V: published-values B7, C) with a
+// ε_2ε_3 ≈ 16ε_V² - 12ε_Vη_V + 2ξ²_V, derived at leading order from
+// ε_1 ≈ ε_V and ε_{i+1} = d ln|ε_i|/dN: common practice) with a
 // difference that falls like λ² for n_s, n_t and r (the second-order
 // terms) and like λ³ for alpha_s, which is of second order in both (a
 // property: a wrong leading coefficient would leave a difference one

@@ -135,7 +135,7 @@ func TestShippedConstraint(t *testing.T) {
 }
 
 // The shipped sets hold the published numbers exactly (quoted here from
-// the papers, with the status of each in shared/reference/published-values.md).
+// the papers cited beside each case).
 func TestShippedSetsHoldPublishedNumbers(t *testing.T) {
 	cases := []struct {
 		name           string
