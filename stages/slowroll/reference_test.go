@@ -18,7 +18,7 @@ const closedFormTol = 1e-9
 // Inflation and Large-Scale Structure", ch. 7 formulas applied to phi^2;
 // the running from Kosowsky & Turner 1995, astro-ph/9504071, eq. 9, with
 // xi^2 = 0, derived here). N = 60: n_s = 0.966942, r = 0.132231
-// (published-values B4, p = 2, C).
+// (computed from these formulas).
 func TestQuadraticChaotic(t *testing.T) {
 	sol := mustSolve(t, "power-law", map[string]float64{"p": 2})
 	if !within(sol.End.Phi, math.Sqrt2, 1e-14, 0) || sol.End.Direction != -1 {
@@ -45,8 +45,8 @@ func TestQuadraticChaotic(t *testing.T) {
 			t.Errorf("Point.N = %g, want %g", p.N, N)
 		}
 	}
-	// The printed digits of published-values B4 (p = 2, N = 60), to half a
-	// unit of the sixth decimal.
+	// The six computed decimals of the formulas above (p = 2, N = 60), to
+	// half a unit of the sixth decimal.
 	_, o := mustEvaluate(t, sol, 60)
 	if math.Abs(o.Ns-0.966942) > 5e-7 || math.Abs(o.R-0.132231) > 5e-7 {
 		t.Errorf("phi^2 at N=60: n_s = %.7f, r = %.7f; want 0.966942, 0.132231", o.Ns, o.R)
@@ -55,15 +55,16 @@ func TestQuadraticChaotic(t *testing.T) {
 
 // TestPowerLaw: V = phi^p with the end at epsilon_V = 1 (phi_end = p/sqrt 2)
 // gives, exactly at first order, n_s = 1 - 2(p+2)/(4N+p), r = 16p/(4N+p)
-// (published-values B4, derived, C; the large-N form 1 - (p+2)/(2N),
+// (derived here; the large-N form 1 - (p+2)/(2N),
 // 4p/N is Planck 2018 X sect. 5, from memory). The running,
 // alpha_s = -8(p+2)/(4N+p)^2, is derived here from the first-order formula
 // (Kosowsky & Turner 1995, eq. 9) with xi^2 = 4(p-1)(p-2)/(4N+p)^2.
-// The table rows are the printed B4 values (half a unit of the 5th decimal).
+// The table rows are these formulas computed by hand to five decimals
+// (computed; checked to half a unit of the 5th decimal).
 func TestPowerLaw(t *testing.T) {
 	table := []struct {
 		p, N   float64
-		ns, r  float64 // published-values B4, "with N + p/4" column (C)
+		ns, r  float64 // computed from the formula with N + p/4
 		digits float64 // half a unit of the last printed decimal
 	}{
 		{2.0 / 3, 50, 0.97342, 0.05316, 5e-6}, {2.0 / 3, 60, 0.97784, 0.04432, 5e-6},
@@ -92,20 +93,21 @@ func TestPowerLaw(t *testing.T) {
 			}
 		}
 		if math.Abs(o.Ns-row.ns) > row.digits || math.Abs(o.R-row.r) > row.digits {
-			t.Errorf("phi^%.4g at N=%g: (n_s, r) = (%.6f, %.6f), B4 prints (%.5f, %.5f)", row.p, row.N, o.Ns, o.R, row.ns, row.r)
+			t.Errorf("phi^%.4g at N=%g: (n_s, r) = (%.6f, %.6f), computed (%.5f, %.5f)", row.p, row.N, o.Ns, o.R, row.ns, row.r)
 		}
 	}
 }
 
 // TestNatural: V = 1 + cos(phi/f), x = phi/f. Closed forms of
-// published-values B5 (derived, C): sin^2(x_end/2) = 2f^2/(1 + 2f^2),
+// first-order slow roll (derived here): sin^2(x_end/2) = 2f^2/(1 + 2f^2),
 // sin(x_*/2) = sin(x_end/2) e^(-N/(2 f^2)),
 // n_s - 1 = -(3 - cos x)/(f^2 (1 + cos x)), r = 8(1 - cos x)/(f^2 (1 + cos x)).
-// The B5 table rows are checked to half a unit of the printed 5th decimal.
+// The table rows, computed by hand from them to five decimals (computed),
+// are checked to half a unit of the 5th decimal.
 func TestNatural(t *testing.T) {
 	table := []struct {
 		f, N  float64
-		ns, r float64 // published-values B5 (C)
+		ns, r float64 // computed from the closed forms
 	}{
 		{5, 50, 0.94776, 0.04895}, {5, 60, 0.95219, 0.03124},
 		{7, 50, 0.95695, 0.09057}, {7, 60, 0.96284, 0.06699},
@@ -132,19 +134,20 @@ func TestNatural(t *testing.T) {
 			t.Errorf("f=%g N=%g: r = %.15g, want %.15g", f, row.N, o.R, 8*(1-c)/(f*f*(1+c)))
 		}
 		if math.Abs(o.Ns-row.ns) > 5e-6 || math.Abs(o.R-row.r) > 5e-6 {
-			t.Errorf("natural f=%g N=%g: (n_s, r) = (%.6f, %.6f), B5 prints (%.5f, %.5f)", f, row.N, o.Ns, o.R, row.ns, row.r)
+			t.Errorf("natural f=%g N=%g: (n_s, r) = (%.6f, %.6f), computed (%.5f, %.5f)", f, row.N, o.Ns, o.R, row.ns, row.r)
 		}
 	}
 }
 
-// TestStarobinskyTable: published-values B2, first-order numeric column
-// (C): phi_end = 0.94018 and (n_s, r) at N = 50, 55, 57, 60, to half a unit
+// TestStarobinskyTable: first-order slow roll of V = (1 - e^(-sqrt(2/3)
+// phi))^2 (Starobinsky 1980, PLB 91, 99, in its Einstein-frame form:
+// common practice), computed by hand to five decimals (computed): phi_end = 0.94018 and (n_s, r) at N = 50, 55, 57, 60, to half a unit
 // of the printed 5th decimal. phi_end also has the closed form
 // sqrt(3/2) ln(1 + 2/sqrt 3) (epsilon_V = 1; derived here).
 func TestStarobinskyTable(t *testing.T) {
 	sol := mustSolve(t, "starobinsky", nil)
 	if math.Abs(sol.End.Phi-0.94018) > 5e-6 {
-		t.Errorf("phi_end = %.6f, B2 prints 0.94018", sol.End.Phi)
+		t.Errorf("phi_end = %.6f, computed 0.94018", sol.End.Phi)
 	}
 	if want := math.Sqrt(1.5) * math.Log(1+2/math.Sqrt(3)); !within(sol.End.Phi, want, 1e-14, 0) {
 		t.Errorf("phi_end = %.17g, closed form %.17g", sol.End.Phi, want)
@@ -154,13 +157,13 @@ func TestStarobinskyTable(t *testing.T) {
 	} {
 		_, o := mustEvaluate(t, sol, row.N)
 		if math.Abs(o.Ns-row.ns) > 5e-6 || math.Abs(o.R-row.r) > 5e-6 {
-			t.Errorf("Starobinsky N=%g: (n_s, r) = (%.6f, %.6f), B2 prints (%.5f, %.5f)", row.N, o.Ns, o.R, row.ns, row.r)
+			t.Errorf("Starobinsky N=%g: (n_s, r) = (%.6f, %.6f), computed (%.5f, %.5f)", row.N, o.Ns, o.R, row.ns, row.r)
 		}
 	}
 }
 
 // Closed first-order solutions of the two alpha-attractors with n = 1,
-// derived here by the method of published-values B4/B5 (integrate
+// derived here by the method of the power-law and natural tests (integrate
 // N = int V/V' dphi, end at epsilon_V = 1, insert in the first-order
 // formulas of Liddle & Lyth 2000; the running as -dn_s/dN). They are
 // consistency checks (C-like), not published values.
@@ -232,8 +235,8 @@ func TestAlphaAttractorClosedForms(t *testing.T) {
 }
 
 // TestSevenDiskTargets: r for 3 alpha = 1..7 at N = 53 against the
-// leading-order table r = 12 alpha/N^2 of published-values B1 (C, from the
-// formula of Kallosh, Linde & Roest 2013, arXiv:1311.0472, V) and the
+// leading-order r = 12 alpha/N^2 (Kallosh, Linde & Roest 2013,
+// arXiv:1311.0472, abstract; tabulated by hand: computed) and the
 // statement that 3 alpha = 7 gives r ≈ 1e-2 for 53 e-folds (Ferrara &
 // Kallosh 2016, arXiv:1610.04163, V).
 //
@@ -255,7 +258,7 @@ func TestSevenDiskTargets(t *testing.T) {
 			sol := mustSolve(t, fam.name, map[string]float64{"alpha": alpha})
 			_, o := mustEvaluate(t, sol, 53)
 			if dev := o.R/table[k-1] - 1; math.Abs(dev) > fam.tol {
-				t.Errorf("%s 3alpha=%d N=53: r = %.5f, B1 table %.5f (%.1f%%, tolerance %.0f%%)", fam.name, k, o.R, table[k-1], 100*dev, 100*fam.tol)
+				t.Errorf("%s 3alpha=%d N=53: r = %.5f, 12 alpha/N^2 = %.5f (%.1f%%, tolerance %.0f%%)", fam.name, k, o.R, table[k-1], 100*dev, 100*fam.tol)
 			}
 		}
 	}
