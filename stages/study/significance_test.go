@@ -2,6 +2,7 @@ package study
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -96,5 +97,39 @@ func TestOneDimensionalBound(t *testing.T) {
 	// r runs evenly over 0 .. 0.0199: its 95% quantile is near 0.95 x 0.0199.
 	if math.Abs(r95-0.95*0.0199) > 2e-4 {
 		t.Errorf("sample bound %v, want about %v", r95, 0.95*0.0199)
+	}
+}
+
+// TestShippedDataStatements: what the shipped files must say beside their
+// numbers.
+func TestShippedDataStatements(t *testing.T) {
+	// The P-ACT-LB table value rounds to the abstract's n_s = 0.974 ± 0.003
+	// (Louis et al. 2025, arXiv:2503.14452, abstract).
+	g, err := Shipped("act-dr6-bk18-2025")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Round(g.MeanNs*1000) != 974 || math.Round(g.SigmaNs*1000) != 3 {
+		t.Errorf("act-dr6-bk18-2025: n_s = %v ± %v does not round to the abstract's 0.974 ± 0.003", g.MeanNs, g.SigmaNs)
+	}
+	// CMB-S4: DOE and NSF stopped supporting the project on 9 July 2025
+	// (statement on cmb-s4.org); the citation, which travels with every
+	// comparison into the ledger, says so.
+	f, err := ShippedForecast("cmb-s4")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"design target", "9 July 2025"} {
+		if !strings.Contains(f.Citation, want) {
+			t.Errorf("cmb-s4 citation %q lacks %q", f.Citation, want)
+		}
+	}
+	// The BK18 limit is cited to BICEP/Keck 2021 and the PR4 limit to
+	// Tristram et al. 2022.
+	for name, want := range map[string]string{"planck2018-bk18": "arXiv:2110.00483", "planck-pr4-bk18-bao-2022": "arXiv:2112.07961"} {
+		g, err := Shipped(name)
+		if err != nil || !strings.Contains(g.Citation, want) {
+			t.Errorf("%s: citation %q (%v), want %s", name, g.Citation, err, want)
+		}
 	}
 }
