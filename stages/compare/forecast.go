@@ -29,9 +29,10 @@ func (f Forecast) Check() error {
 
 // Significance returns the detection significance r/sigma(r) of a true
 // tensor-to-scalar ratio r, in standard deviations. It takes sigma(r) at
-// its r = 0 value; for r comparable to sigma(r) or larger the sample
-// variance of the B modes themselves raises sigma(r), so this is an upper
-// bound there (common practice).
+// its r = 0 value for every r, unscaled: none of the shipped forecasts
+// publishes sigma(r) as a function of the fiducial r. For r comparable to
+// sigma(r) or larger the sample variance of the B modes themselves raises
+// sigma(r), so this is an upper bound there (common practice).
 func (f Forecast) Significance(r float64) float64 { return r / f.SigmaR }
 
 // Detects reports whether r would be detected at k standard deviations or

@@ -11,7 +11,9 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
+	stagenodes "github.com/inflatrace/inflatrace/stages/nodes"
 	"github.com/inflatrace/inflatrace/stages/study"
 )
 
@@ -123,6 +125,7 @@ func Run(ctx context.Context, o *Options) error {
 	if err != nil {
 		return err
 	}
+	addBounds(results, nodes)
 	out := Output{Run: string(id), Status: string(run.Status), Started: run.Started.UTC().Format(time.RFC3339Nano),
 		ToolVersion: run.ToolVersion, ConfigPath: run.ConfigPath, ConfigHash: run.ConfigHash, Config: run.ConfigText,
 		Error: run.Error, Results: results}
@@ -166,5 +169,70 @@ func Run(ctx context.Context, o *Options) error {
 		return err
 	}
 	fmt.Fprintf(w, "\n# results (%d)\n", len(results))
-	return o.Env.Table(w, app.ResultHeader, app.ResultRows(results))
+	if err := o.Env.Table(w, app.ResultHeader, app.ResultRows(results)); err != nil {
+		return err
+	}
+	return significance(o.Env, results)
+}
+
+// addBounds fills in the one-dimensional reading (r95, exceeds_r95) of
+// results whose lineage was read without the compare node's parameters,
+// from the run's own compare nodes (a result's key is its compare node's).
+func addBounds(results []study.Result, nodes []ledger.RunNode) {
+	params := map[string]pipeline.Values{}
+	for _, n := range nodes {
+		if n.Stage == stagenodes.CompareStage {
+			params[string(n.Key)] = n.Params
+		}
+	}
+	for i := range results {
+		r := &results[i]
+		if r.R95 != nil || r.DeltaChi2 == nil || r.Error != "" {
+			continue
+		}
+		if p, ok := params[r.Key]; ok {
+			if r95, ok := study.OneDimensionalBound(p); ok {
+				exceeds := r.R > r95
+				r.R95, r.ExceedsR95 = &r95, &exceeds
+			}
+		}
+	}
+}
+
+// SignificanceNote explains the two readings show prints for each
+// comparison with a constraint set.
+const SignificanceNote = `# significance: two readings of each comparison
+#   n_sigma, inside_68, inside_95: the point (n_s, r) in the joint two-parameter
+#     distribution; Delta chi^2 is read with two degrees of freedom (2.30 is
+#     1 sigma, 6.18 is 2 sigma), so a model at the mean n_s exactly on a
+#     published 95% limit on r has Delta chi^2 = 3.84: 1.45 sigma, inside_95.
+#   r95, exceeds_r95: the set's one-dimensional 95% upper bound on r (the
+#     published limit; mean + 1.96 sigma for r = mean +/- sigma; the 95%
+#     quantile of r for a sample set) and whether the model's r is above it.
+`
+
+// significance prints, for the results compared with a constraint set,
+// both readings side by side; nothing when there are none.
+func significance(env *app.Env, results []study.Result) error {
+	var rows [][]string
+	for _, r := range results {
+		if r.R95 == nil || r.ExceedsR95 == nil || r.NSigma == nil || r.Inside95 == nil {
+			continue
+		}
+		rows = append(rows, []string{r.Label, r.Constraint, fmt.Sprintf("%.4g", r.R), fmt.Sprintf("%.4g", *r.R95),
+			yesNo(*r.ExceedsR95), fmt.Sprintf("%.3g", *r.NSigma), yesNo(*r.Inside95)})
+	}
+	if len(rows) == 0 {
+		return nil
+	}
+	w := env.Stdout
+	fmt.Fprintf(w, "\n%s", SignificanceNote)
+	return env.Table(w, []string{"result", "constraint", "r", "r95", "exceeds_r95", "n_sigma", "inside_95"}, rows)
+}
+
+func yesNo(b bool) string {
+	if b {
+		return "yes"
+	}
+	return "no"
 }
