@@ -22,7 +22,12 @@ func init() {
 
 var alphaParam = Param{Name: "alpha", Unit: "1", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
 	Doc: "alpha-attractor parameter; the Kähler curvature is R_K = -2/(3 alpha)"}
-var nParam = Param{Name: "n", Unit: "1", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: 1,
+
+// nParam is bounded by 100: beyond it the monomial's power 2n makes V
+// underflow double precision between the end of inflation and the minimum,
+// where the exact background still has to run, and n_s, r have long
+// reached their n-independent plateau values.
+var nParam = Param{Name: "n", Unit: "1", Min: 0, Max: 100, MinOpen: true, Default: 1,
 	Doc: "power of the potential's monomial in the native field"}
 
 // tModel is the alpha-attractor T-model, V = V0 tanh^(2n)(phi/sqrt(6 alpha)).
@@ -141,7 +146,10 @@ var powerLaw = &Family{
 	Name:      "power-law",
 	Formula:   "V = V0 phi^p",
 	Reference: "Linde 1983, Phys. Lett. B 129, 177",
-	Params: []Param{{Name: "p", Unit: "1", Min: 0, Max: inf, MinOpen: true, MaxOpen: true, Default: noDefault,
+	// p is bounded by 100: beyond it phi^p overflows double precision
+	// inside the field range that holds 600 e-folds (phi ~ sqrt(1200 p)),
+	// and n_s = 1 - (p + 2)/(2N) is far from any data long before.
+	Params: []Param{{Name: "p", Unit: "1", Min: 0, Max: 100, MinOpen: true, Default: noDefault,
 		Doc: "power of the monomial (2/3, 1 and 4/3 for axion monodromy)"}},
 	Kind: KindLargeField,
 	Tags: []string{"chaotic", "axion monodromy"},
@@ -149,8 +157,10 @@ var powerLaw = &Family{
 		q := p["p"]
 		return &Model{
 			Family: "power-law", Params: p,
-			V:  func(phi num.Jet) num.Jet { return num.PowConst(phi, q) },
-			Lo: 0, Hi: 200 * math.Sqrt(q),
+			V: func(phi num.Jet) num.Jet { return num.PowConst(phi, q) },
+			// N(phi) = (phi^2 - phi_end^2)/(2p) with phi_end = p/sqrt(2): the
+			// range holds 1.44 x 600 e-folds beyond the end.
+			Lo: 0, Hi: 1.2 * math.Sqrt(2*q*rangeEfolds+q*q/2),
 		}, nil
 	},
 }
@@ -171,7 +181,13 @@ var natural = &Family{
 		f := p["f"]
 		return &Model{
 			Family: "natural", Params: p,
-			V:  func(phi num.Jet) num.Jet { return num.AddConst(num.Cos(num.Scale(1/f, phi)), 1) },
+			// 1 + cos(phi/f) written as 2 cos^2(phi/(2f)): near the minimum
+			// the sum cancels to rounding noise of relative size 1e-16/V,
+			// which no e-fold quadrature converges through at large f.
+			V: func(phi num.Jet) num.Jet {
+				c := num.Cos(num.Scale(1/(2*f), phi))
+				return num.Scale(2, num.Mul(c, c))
+			},
 			Lo: 0, Hi: math.Pi * f,
 		}, nil
 	},

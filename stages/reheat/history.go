@@ -118,14 +118,16 @@ type Evaluator interface {
 
 // Match solves N* self-consistently for a reheating era: V* and V_end, and
 // so N*, depend on N* through the normalisation of the potential. The map
-// g: N -> N*(N) has a slope of order 1/N, so the fixed point N = g(N) is
-// found from the given start by secant steps on g(N) - N (each new N is
-// N_k + (g_k - N_k)/(1 - s), s the slope of g through the last two
-// iterates), taking the plain fixed-point step N_(k+1) = g(N_k) on the
-// first iteration and whenever the secant slope is not below 1/2 in
-// magnitude. It stops when |g(N) - N| < 1e-11 and returns the prediction
-// at that N. The iterates depend only on the start, so the result is
-// deterministic.
+// g: N -> N*(N) has a slope of order 1/N for most models, so the fixed
+// point N = g(N) is found from the given start by secant steps on
+// g(N) - N (each new N is N_k + (g_k - N_k)/(1 - s), s the slope of g
+// through the last two iterates), the first step being the plain
+// fixed-point step N_1 = g(N_0). Once iterates on both sides of the root
+// are known, a step that leaves that bracket is replaced by bisection, so
+// the root is found even where g's slope exceeds 1 in magnitude (a hilltop
+// near its top). It stops when |g(N) - N| < 1e-11 and returns the
+// prediction at that N. The iterates depend only on the start, so the
+// result is deterministic.
 func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 	if err := h.Check(); err != nil {
 		return Prediction{}, err
@@ -134,9 +136,9 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 		return Prediction{}, err
 	}
 	N := start
-	prevStep := math.Inf(1)
 	var prevN, prevG float64
-	for iter := 0; iter < 100; iter++ {
+	lo, hi := math.NaN(), math.NaN() // g(lo) > lo, g(hi) < hi once seen
+	for iter := 0; iter < 200; iter++ {
 		pr, err := ev.At(N)
 		if err != nil {
 			return Prediction{}, fmt.Errorf("reheating matching at N* = %.6g: %w", N, err)
@@ -148,8 +150,8 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 		if !finite(m.N) || m.N <= 0 {
 			return Prediction{}, fmt.Errorf("reheating matching gives N* = %g (from N = %g)", m.N, N)
 		}
-		step := math.Abs(m.N - N)
-		if step < 1e-11 {
+		F := m.N - N
+		if math.Abs(F) < 1e-11 {
 			fm, err := h.Efolds(pr.Scale, e)
 			if err != nil {
 				return Prediction{}, err
@@ -160,17 +162,26 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 			}
 			return pr, nil
 		}
-		if iter > 5 && step > prevStep {
-			return Prediction{}, fmt.Errorf("reheating matching: N* iteration does not contract (N = %g, step %g)", N, step)
+		if F > 0 {
+			lo = N
+		} else {
+			hi = N
 		}
 		next := m.N
 		if iter > 0 && N != prevN {
-			if s := (m.N - prevG) / (N - prevN); math.Abs(s) < 0.5 {
-				next = N + (m.N-N)/(1-s)
+			if s := (m.N - prevG) / (N - prevN); s != 1 && finite(s) {
+				next = N + F/(1-s)
 			}
 		}
-		prevStep, prevN, prevG = step, N, m.N
+		// Once the root is bracketed, a step that leaves the bracket is
+		// replaced by bisection: for models whose normalisation moves N*
+		// by more than an e-fold per e-fold (a hilltop near its top), the
+		// fixed-point map does not contract, but the root is still found.
+		if !math.IsNaN(lo) && !math.IsNaN(hi) && !((next-lo)*(next-hi) < 0) {
+			next = 0.5 * (lo + hi)
+		}
+		prevN, prevG = N, m.N
 		N = next
 	}
-	return Prediction{}, fmt.Errorf("reheating matching: N* did not converge in 100 iterations (last %g)", N)
+	return Prediction{}, fmt.Errorf("reheating matching: N* did not converge in 200 iterations (last %g)", N)
 }

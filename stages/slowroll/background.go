@@ -199,6 +199,12 @@ func integrateBackground(m *model.Model, phi0, dir float64, cfg *exactConfig) (*
 		if errors.As(err, &nf) {
 			return nil, fail(NeverEnds, fmt.Sprintf("the potential is not finite beyond the trajectory after %.4g e-folds (the field reaches the edge of its range)", r.T), err)
 		}
+		if gap := math.Min(math.Abs(r.Y[0]-m.Lo), math.Abs(m.Hi-r.Y[0])); gap < 1e-9*math.Max(1, math.Max(math.Abs(m.Lo), math.Abs(m.Hi))) {
+			// The integrator stalls at the edge of the range: the field has
+			// rolled to the potential's minimum there (a cusp for a power
+			// below 1) still inflating, so the end condition never holds.
+			return nil, fail(NeverEnds, fmt.Sprintf("the field rolls to the edge of its range (the potential's minimum at phi = %.6g) after %.4g e-folds, still inflating (epsilon_H = %.3g < 1)", r.Y[0], r.T, 0.5*r.Y[1]*r.Y[1]), nil)
+		}
 		return nil, fail(NeverEnds, "background integration failed", err)
 	}
 	if r.Status != ode.Stopped {

@@ -64,6 +64,9 @@ func (sol *Solution) CheckPivot(phi float64, c PivotCheck) error {
 	if !(p.V > 0) || !finite(p.V) {
 		return fail("V(phi* = %.10g) = %g", phi, p.V)
 	}
+	if p.Epsilon == 0 {
+		return &RangeError{m.Describe(), m.Lo, m.Hi, fmt.Sprintf("the potential is flat to double precision at the pivot phi* = %.6g (epsilon_V = 0): the pivot lies too close to the top of the hill for r and A_s to be computed", phi)}
+	}
 	if !(p.Epsilon < 1) {
 		return fail("epsilon_V(phi* = %.10g) = %g: the pivot is not inflating", phi, p.Epsilon)
 	}

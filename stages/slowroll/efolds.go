@@ -144,7 +144,10 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 		room := math.Abs(edge - a)
 		step := math.Min(g.h, 0.9*room)
 		b := a + back*step
-		if g.edge || last > 4000 || step <= 1e-15*math.Max(1, math.Abs(a)) || b == a {
+		// The bracket stops at the edge of the range, or within 1e-280 M_p
+		// of it (short of denormal numbers, where V' loses its digits): a
+		// pivot closer to a hilltop than that is beyond double precision.
+		if g.edge || last > 4000 || step <= 1e-15*math.Abs(a) || b == a || room < 1e-280 {
 			g.edge = true
 			return cell{}, &RangeError{sol.Model.Describe(), sol.Model.Lo, sol.Model.Hi,
 				fmt.Sprintf("only %.4g e-folds of inflation before the edge of the field range; %g requested", Na, N)}

@@ -139,6 +139,13 @@ func FindEndWhere(m *model.Model, cond Condition, s *Settings) (End, error) {
 	minEps, maxEps := math.Inf(1), math.Inf(-1)
 	for i, x := range xs {
 		p := At(m, x)
+		if p.V == 0 {
+			// V rounds to zero (a monomial of high power near its minimum,
+			// tanh^(2n) at large n): no inflation there, as at a minimum.
+			g[i] = math.Inf(1)
+			maxEps = math.Inf(1)
+			continue
+		}
 		if !(p.V > 0) || !finite(p.Epsilon) {
 			// Within a millionth of the range's width of its ends the
 			// potential may vanish (a minimum on the edge, the top of a

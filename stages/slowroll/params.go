@@ -25,7 +25,7 @@ func At(m *model.Model, phi float64) Point {
 		V:       j.V,
 		Epsilon: 0.5 * u * u,
 		Eta:     j.D2 / j.V,
-		Xi2:     j.D1 * j.D3 / (j.V * j.V),
+		Xi2:     u * (j.D3 / j.V), // not V'V'''/V^2, which overflows for high powers
 	}
 }
 

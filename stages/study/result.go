@@ -15,10 +15,13 @@ type Result struct {
 	Potential      string             `json:"potential,omitempty"` // a user-written model's V
 	Kinetic        string             `json:"kinetic,omitempty"`   // and K
 	Method         string             `json:"method,omitempty"`
+	End            string             `json:"end,omitempty"`               // the end-of-inflation condition
+	NStarDef       string             `json:"N_star_definition,omitempty"` // what N* counts, in words
 	Reheating      string             `json:"reheating,omitempty"`
 	NStar          float64            `json:"N_star"`
 	PhiStar        float64            `json:"phi_star"`
-	PhiEnd         float64            `json:"phi_end"`
+	PhiEnd         float64            `json:"phi_end"`                     // the end N* is counted from
+	PhiEndSlowRoll *float64           `json:"phi_end_slow_roll,omitempty"` // the potential's end condition, where it differs
 	Ns             float64            `json:"n_s"`
 	R              float64            `json:"r"`
 	AlphaS         float64            `json:"alpha_s"`
@@ -104,11 +107,20 @@ func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
 			}
 		case nodes.SlowRollStage:
 			res.Method, _ = vs.Text("method")
-			res.PhiEnd = num(vs, "phi_end")
+			res.End, _ = vs.Text("end")
+			res.NStarDef = nodes.NStarDefinition(res.Method, res.End)
+			if res.PhiEnd == 0 { // the reheat node's end, where recorded, is the one used
+				res.PhiEnd = num(vs, "phi_end")
+			}
+			sr := num(vs, "phi_end")
+			res.PhiEndSlowRoll = &sr
 		case nodes.ReheatStage:
 			res.Reheating, _ = vs.Text("reheating")
 			res.NStar = num(vs, "N_star")
 			res.PhiStar = num(vs, "phi_star")
+			if v := opt(vs, "phi_end"); v != nil {
+				res.PhiEnd = *v
+			}
 			res.Ns = num(vs, "n_s")
 			res.R = num(vs, "r")
 			res.AlphaS = num(vs, "alpha_s")
@@ -145,6 +157,9 @@ func Assemble(label string, key pipeline.KeyID, lineage []StageOutputs) Result {
 			res.DetectionSigma = opt(vs, "detection_sigma")
 			res.Detected5Sigma = flag(vs, "detected_5sigma")
 		}
+	}
+	if res.PhiEndSlowRoll != nil && *res.PhiEndSlowRoll == res.PhiEnd {
+		res.PhiEndSlowRoll = nil // the same point: reported once
 	}
 	if res.R95 == nil && res.DeltaChi2 != nil && compareParams != nil {
 		if r95, ok := OneDimensionalBound(compareParams); ok {
