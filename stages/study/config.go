@@ -394,6 +394,41 @@ func grid(t map[string]any) ([]float64, []string, error) {
 
 var thermalKeys = []string{"k_pivot_per_Mpc", "T_0_K", "g_s0", "g_reh", "g_s_reh", "T_bbn_GeV"}
 
+// Bounds on the reheating inputs of a study. Values outside them are
+// refused as bad input (they are not numbers any history could produce):
+//
+//   - N_star: from MinNStar to MaxNStar e-folds. Inflation at the lowest
+//     scale nucleosynthesis allows (V^(1/4) near 4 MeV), reheating at once,
+//     puts the pivot about 14 e-folds before the end (N* is about
+//     61.6 + ln(V^(1/4)/M_p) for instantaneous reheating), and a stiff era
+//     (w_reh = 1) from the highest scale the r bound allows down to
+//     nucleosynthesis adds about 14 to the 57 of that scale (N* grows by
+//     (3w-1)/(12(1+w)) times the log of the density drop; common practice,
+//     Liddle & Leach 2003, astro-ph/0305263), so physical values lie
+//     between about 14 and 71. The bounds leave room
+//     for scans beyond that (n_s against N* for a family), but below 5
+//     e-folds the pivot would leave the horizon while the slow-roll
+//     parameters are of order one, and above 200 it lies beyond the range
+//     the built-in families search (at least 200 e-folds, DEVELOPERS.md).
+//   - N_reh: at most MaxNReh. With w_reh > -1/3 the density falls at least
+//     as fast as a^-2, so after N_reh e-folds it has fallen by e^(-2 N_reh)
+//     or more. From the highest energy scale the tensor bound allows
+//     (V*^(1/4) < 1.4e16 GeV for r < 0.036, BICEP/Keck 2021,
+//     arXiv:2110.00483) to today's photon temperature (2.35e-13 GeV) the
+//     density falls by e^(-265): no reheating era lasts more than 133
+//     e-folds. 150 is the round number above that.
+//   - T_reh_GeV and T_min_GeV: above the photon temperature today (T_0_K):
+//     the plasma has never been colder than it is now.
+//   - g_reh, g_s_reh, g_s0: at least MinDegrees. The smallest bath, one
+//     real scalar, has g = 1 (a Weyl fermion counts 7/4).
+//   - every value finite (TOML allows nan and inf; they are refused).
+const (
+	MinNStar   = 5.0
+	MaxNStar   = 200.0
+	MaxNReh    = 150.0
+	MinDegrees = 1.0
+)
+
 func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 	if len(tables) == 0 {
 		return nil, c.errAt("", "no [[reheating]] table: give at least one history (%s)", strings.Join(nodes.Histories, ", "))
@@ -437,6 +472,9 @@ func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 				if err != nil {
 					return nil, err
 				}
+				if ok && strings.HasPrefix(f.key, "g_") && x < MinDegrees {
+					return nil, c.errAt(path+"."+f.key, "%s = %g: want at least %g (relativistic degrees of freedom; one real scalar counts 1)", f.key, x, MinDegrees)
+				}
 				if ok {
 					*f.dst = x
 				}
@@ -446,6 +484,9 @@ func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 			}
 			base.Thermal = h
 		}
+		// Today's photon temperature [GeV]: no reheating temperature lies
+		// below it.
+		t0GeV := reheat.KelvinInGeV(base.Thermal.T0K)
 		// Each list-valued key fans out (cartesian product).
 		combos := []HistorySpec{base}
 		listed := func(key string, required bool, check func(float64) error, set func(*HistorySpec, float64)) error {
@@ -475,8 +516,8 @@ func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 			return nil
 		}
 		nstar := func(x float64) error {
-			if !(x > 0 && x < 1000) {
-				return fmt.Errorf("N* = %g, want 0 < N* < 1000", x)
+			if !(x >= MinNStar && x <= MaxNStar) {
+				return fmt.Errorf("N* = %g, want %g <= N* <= %g e-folds", x, MinNStar, MaxNStar)
 			}
 			return nil
 		}
@@ -486,15 +527,15 @@ func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 			}
 			return nil
 		}
-		posCheck := func(x float64) error {
-			if !(x > 0) || math.IsInf(x, 0) {
-				return fmt.Errorf("%g, want a positive finite value", x)
+		tCheck := func(x float64) error {
+			if !(x > t0GeV) || math.IsInf(x, 0) {
+				return fmt.Errorf("T_reh = %g GeV: want a finite temperature above today's photon temperature (%.4g GeV)", x, t0GeV)
 			}
 			return nil
 		}
-		nonNeg := func(x float64) error {
-			if !(x >= 0) || math.IsInf(x, 0) {
-				return fmt.Errorf("%g, want a finite value >= 0", x)
+		nReh := func(x float64) error {
+			if !(x >= 0 && x <= MaxNReh) {
+				return fmt.Errorf("N_reh = %g: want 0 <= N_reh <= %g e-folds", x, MaxNReh)
 			}
 			return nil
 		}
@@ -504,14 +545,14 @@ func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 			err = listed("N_star", true, nstar, func(h *HistorySpec, x float64) { h.N = x })
 		case nodes.HistoryTemperature:
 			if err = listed("w_reh", true, wCheck, func(h *HistorySpec, x float64) { h.W = x }); err == nil {
-				err = listed("T_reh_GeV", true, posCheck, func(h *HistorySpec, x float64) { h.TRehGeV = x })
+				err = listed("T_reh_GeV", true, tCheck, func(h *HistorySpec, x float64) { h.TRehGeV = x })
 			}
 		case nodes.HistoryDuration:
 			if err = listed("w_reh", true, wCheck, func(h *HistorySpec, x float64) { h.W = x }); err == nil {
-				err = listed("N_reh", true, nonNeg, func(h *HistorySpec, x float64) { h.NReh = x })
+				err = listed("N_reh", true, nReh, func(h *HistorySpec, x float64) { h.NReh = x })
 			}
 		case nodes.HistoryKination:
-			err = listed("T_reh_GeV", true, posCheck, func(h *HistorySpec, x float64) { h.TRehGeV = x })
+			err = listed("T_reh_GeV", true, tCheck, func(h *HistorySpec, x float64) { h.TRehGeV = x })
 		case nodes.HistoryBand:
 			b := &combos[0]
 			b.Band = reheat.BandSettings{WMin: 0, WMax: 1.0 / 3, NW: 100, NT: 100}
@@ -524,6 +565,9 @@ func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 					x, _, e := number(v)
 					if e != nil {
 						return nil, c.errAt(path+"."+f.key, "%v", e)
+					}
+					if math.IsNaN(x) || math.IsInf(x, 0) {
+						return nil, c.errAt(path+"."+f.key, "%s = %g: want a finite value", f.key, x)
 					}
 					*f.dst = x
 				}
@@ -543,8 +587,8 @@ func (c *parser) histories(tables []map[string]any) ([]HistorySpec, error) {
 			switch {
 			case !(b.Band.WMin > -1.0/3) || b.Band.WMax > 1 || b.Band.WMin > b.Band.WMax:
 				return nil, c.errAt(path, "band: want -1/3 < w_reh_min <= w_reh_max <= 1, got [%g, %g]", b.Band.WMin, b.Band.WMax)
-			case !(b.BandTGeV > 0):
-				return nil, c.errAt(path+".T_min_GeV", "want a positive temperature")
+			case !(b.BandTGeV > t0GeV):
+				return nil, c.errAt(path+".T_min_GeV", "T_min_GeV = %g: want a temperature above today's photon temperature (%.4g GeV)", b.BandTGeV, t0GeV)
 			}
 		}
 		if err != nil {
