@@ -87,8 +87,17 @@ func NewNative(s NativeSpec) (*Model, error) {
 	ext := mp.Resolved()
 	lo, hi := s.SearchLo, s.SearchHi
 	if s.SearchInField {
-		if !(lo >= ext.XLo && hi <= ext.XHi) {
-			return nil, fmt.Errorf("%s: search range %g < %s < %g leaves the resolved native range [%g, %g]", s.Family, lo, field, hi, ext.XLo, ext.XHi)
+		// A search range reaching beyond what the map resolves (it stops
+		// at |phi| = PhiMax, far onto any plateau, or where K's pole is
+		// closer than rounding) is clipped to the resolved range: the
+		// model is the same there, and a pivot that would need the rest
+		// is reported by the e-fold count as lying beyond the range.
+		if !(lo >= s.Lo && hi <= s.Hi) {
+			return nil, fmt.Errorf("%s: search range %g < %s < %g leaves the resolved native range [%g, %g]: it is not inside the domain (%g, %g)", s.Family, lo, field, hi, ext.XLo, ext.XHi, s.Lo, s.Hi)
+		}
+		lo, hi = math.Max(lo, ext.XLo), math.Min(hi, ext.XHi)
+		if !(lo < hi) {
+			return nil, fmt.Errorf("%s: search range %g < %s < %g lies outside the resolved native range [%g, %g]", s.Family, s.SearchLo, field, s.SearchHi, ext.XLo, ext.XHi)
 		}
 		lo, hi = mp.Phi(lo), mp.Phi(hi)
 	} else if !(lo >= ext.PhiLo && hi <= ext.PhiHi) {

@@ -197,3 +197,74 @@ func TestSweepEveryFamily(t *testing.T) {
 		t.Errorf("the sweep has %d points", len(pts))
 	}
 }
+
+// TestSweepUserModels is the sweep for user-written models: the
+// alpha-attractor T-model written on the Poincaré disk with its kinetic
+// function (the canonical field computed numerically), and a canonical
+// exponential plateau, each with the whole domain as its search range,
+// over eight decades of the parameter. Every point must give a result
+// (both inflate for 70 e-folds for every parameter: Kallosh & Linde 2013,
+// arXiv:1306.5220, for the disk, where N = (3 alpha/4) cosh(2 phi/s) grows
+// without bound towards the pole) whose n_s agrees with the built-in
+// family's to 1e-6 (the numerical map's tolerance), or fail for a stated
+// physical reason.
+func TestSweepUserModels(t *testing.T) {
+	if testing.Short() {
+		t.Skip("the sweep runs eight decades")
+	}
+	ctx := context.Background()
+	for i := 0; i <= 8; i++ {
+		alpha := math.Pow(10, -4+float64(i))
+		s := math.Sqrt(6 * alpha)
+		users := []struct {
+			c      Custom
+			family string
+			params map[string]float64
+		}{
+			{Custom{Potential: "(chi^2/(6*alpha))", Kinetic: "1/(1 - chi^2/(6*alpha))^2", Field: "chi",
+				Params: map[string]float64{"alpha": alpha}, DomainLo: -s, DomainHi: s, Origin: 0,
+				SearchLo: 1e-6 * s, SearchHi: s * (1 - 1e-12)}, "t-model", map[string]float64{"alpha": alpha, "n": 1}},
+			{Custom{Potential: "(1 - exp(-sqrt(2/(3*alpha))*phi))^2", Field: "phi",
+				Params: map[string]float64{"alpha": alpha}, DomainLo: math.Inf(-1), DomainHi: math.Inf(1), Origin: 0,
+				SearchLo: 0, SearchHi: 40 * math.Sqrt(1.5*alpha) * math.Max(1, math.Log(1/alpha))}, "e-model", map[string]float64{"alpha": alpha, "n": 1}},
+		}
+		for _, u := range users {
+			for _, h := range []string{"55", HistoryInstant} {
+				mp, err := CustomParams(u.c)
+				if err != nil {
+					t.Fatalf("%s: %v", u.c.Potential, err)
+				}
+				sr := SlowRollParams{Method: MethodFirst, End: EndEpsilonVOne}.Values()
+				rh := ReheatParams(HistoryParams{Kind: HistoryFixed, N: 55}, 2.1e-9)
+				if h == HistoryInstant {
+					rh = ReheatParams(HistoryParams{Kind: HistoryInstant, Thermal: reheat.DefaultHistory(), TBBNGeV: reheat.DefaultBBNBoundGeV}, 2.1e-9)
+				}
+				out, err := (Model{}).Run(ctx, mp, nil)
+				if err == nil {
+					out, err = (Canonical{}).Run(ctx, pipeline.Values{}, []pipeline.Values{out})
+				}
+				if err == nil {
+					out, err = (SlowRoll{}).Run(ctx, sr, []pipeline.Values{out})
+				}
+				if err == nil {
+					out, err = (Reheat{}).Run(ctx, rh, []pipeline.Values{out})
+				}
+				desc := fmt.Sprintf("user %s, alpha = %g, %s", u.family, alpha, h)
+				if err != nil {
+					t.Errorf("%s: %v", desc, err)
+					continue
+				}
+				ref := sweepPoint{family: u.family, params: u.params, history: h, method: MethodFirst}
+				runSweepPoint(&ref)
+				if ref.err != nil {
+					t.Errorf("%s: built-in: %v", desc, ref.err)
+					continue
+				}
+				ns, _ := out.Num("n_s")
+				if math.Abs(ns-ref.ns) > 1e-6 {
+					t.Errorf("%s: n_s = %.10g, built-in %.10g", desc, ns, ref.ns)
+				}
+			}
+		}
+	}
+}

@@ -167,6 +167,23 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 		} else {
 			hi = N
 		}
+		if math.Abs(hi-lo) < 1e-10*math.Max(1, N) {
+			// The bracket has closed to the resolution of the evaluator's
+			// e-fold count (1e-9 relative at worst, slowroll.quadFloor):
+			// no step can do better.
+			F = 0
+		}
+		if F == 0 {
+			fm, err := h.Efolds(pr.Scale, e)
+			if err != nil {
+				return Prediction{}, err
+			}
+			pr.TReh, pr.TMax, pr.NReh, pr.W = fm.T, fm.TMax, fm.NReh, e.W
+			if e.Kind == EraInstant {
+				pr.W = 1.0 / 3
+			}
+			return pr, nil
+		}
 		next := m.N
 		if iter > 0 && N != prevN {
 			if s := (m.N - prevG) / (N - prevN); s != 1 && finite(s) {

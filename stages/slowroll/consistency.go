@@ -82,7 +82,7 @@ func (sol *Solution) CheckPivot(phi float64, c PivotCheck) error {
 	}
 	// An independent count: one adaptive quadrature over the whole
 	// stretch, tighter than the bracket's, with its own partition.
-	q, err := num.Integrate(sol.dNdphi, end, phi, &num.QuadSettings{RelTol: 1e-13, AbsTol: 1e-14, MaxIntervals: 20000})
+	q, err := settleQuad(num.Integrate(sol.dNdphi, end, phi, &num.QuadSettings{RelTol: 1e-13, AbsTol: 1e-14, MaxIntervals: 4000}))
 	if err != nil {
 		return fail("the e-fold integral from the end to phi* = %.10g: %v", phi, err)
 	}

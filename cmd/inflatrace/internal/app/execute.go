@@ -164,7 +164,7 @@ func RecordedResults(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) (
 		var so []study.StageOutputs
 		firstErr := ""
 		for _, n := range lin {
-			so = append(so, study.StageOutputs{Stage: n.Stage, Outputs: n.Outputs})
+			so = append(so, study.StageOutputs{Stage: n.Stage, Outputs: n.Outputs, Params: n.Params})
 			if n.Status == pipeline.NodeFailed && firstErr == "" {
 				firstErr = n.Stage + ": " + n.Error
 			}
