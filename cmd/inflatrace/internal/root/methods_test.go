@@ -2,6 +2,7 @@ package root
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"strings"
 	"testing"
@@ -75,6 +76,12 @@ func TestMethodsInOneRun(t *testing.T) {
 	}
 	if fH["end"] != "epsilon_H=1" || fH["N_star_definition"] == "" || fH["phi_end_slow_roll"] == nil {
 		t.Errorf("first order at epsilon_H=1: end %v, N_star_definition %v, phi_end_slow_roll %v", fH["end"], fH["N_star_definition"], fH["phi_end_slow_roll"])
+	}
+	// show says which end a result counted from and what N* means.
+	shown := h.mustRun("show", "latest")
+	if !strings.Contains(shown, "# end of inflation and N*") || !strings.Contains(shown, "exact / epsilon_H=1: e-folds of the exact background") ||
+		!strings.Contains(shown, fmt.Sprintf("%.10g", num(xH, "phi_end"))) {
+		t.Errorf("show does not state the end and N* definition:\n%s", shown)
 	}
 	if dH, dV := math.Abs(num(fH, "phi_star")-num(xH, "phi_star")), math.Abs(num(fV, "phi_star")-num(xH, "phi_star")); !(dH < dV/2) {
 		t.Errorf("pivot from the exact end is %.3g from the exact pivot, from epsilon_V = 1 %.3g", dH, dV)

@@ -172,7 +172,43 @@ func Run(ctx context.Context, o *Options) error {
 	if err := o.Env.Table(w, app.ResultHeader, app.ResultRows(results)); err != nil {
 		return err
 	}
+	if err := endsAndEfolds(o.Env, results); err != nil {
+		return err
+	}
 	return significance(o.Env, results)
+}
+
+// endsAndEfolds prints, for each result, the end of inflation its N* is
+// counted from (the condition, the field there, and the potential's own
+// end point where that differs) and what N* counts, in words.
+func endsAndEfolds(env *app.Env, results []study.Result) error {
+	var rows [][]string
+	defs := map[string]bool{}
+	var order []string
+	for _, r := range results {
+		if r.End == "" || r.Error != "" {
+			continue
+		}
+		sr := "-"
+		if r.PhiEndSlowRoll != nil {
+			sr = fmt.Sprintf("%.10g", *r.PhiEndSlowRoll)
+		}
+		rows = append(rows, []string{r.Label, r.Method, r.End, fmt.Sprintf("%.10g", r.PhiEnd), sr})
+		key := r.Method + " / " + r.End + ": " + r.NStarDef
+		if !defs[key] {
+			defs[key] = true
+			order = append(order, key)
+		}
+	}
+	if len(rows) == 0 {
+		return nil
+	}
+	w := env.Stdout
+	fmt.Fprintf(w, "\n# end of inflation and N* (phi_end is the end N* is counted from; phi_end_slow_roll the potential's end condition where it differs)\n")
+	for _, d := range order {
+		fmt.Fprintf(w, "#   %s\n", d)
+	}
+	return env.Table(w, []string{"result", "method", "end", "phi_end [M_p]", "phi_end_slow_roll [M_p]"}, rows)
 }
 
 // addBounds fills in the one-dimensional reading (r95, exceeds_r95) of
