@@ -62,7 +62,7 @@ func reachAt(efolds func(phi float64) float64, from, w float64) float64 {
 	if d := hi - from; d > w {
 		lo = from + d/2
 	}
-	for i := 0; i < 200 && hi-lo > 1e-15*math.Abs(hi); i++ {
+	for i := 0; i < 200 && hi-lo > 1e-9*math.Abs(hi); i++ { // the range need not be exact
 		mid := lo + (hi-lo)/2
 		if n := efolds(mid); n >= rangeEfolds || math.IsInf(n, 1) || math.IsNaN(n) {
 			hi = mid
