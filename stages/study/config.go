@@ -229,6 +229,9 @@ func (c *parser) slowRoll(sc *slowRollConfig, sp *nodes.SlowRollParams) error {
 			if sp.End != nodes.EndField {
 				return c.errAt("slow_roll.end_phi", "end_phi is only used with end = %q", nodes.EndField)
 			}
+			if math.IsNaN(*sc.EndPhi) || math.IsInf(*sc.EndPhi, 0) {
+				return c.errAt("slow_roll.end_phi", "end_phi = %g, want a finite field value [M_p]", *sc.EndPhi)
+			}
 			sp.EndPhi = *sc.EndPhi
 		} else if sp.End == nodes.EndField {
 			return c.errAt("slow_roll.end", "end = %q needs end_phi (the field value [M_p] where inflation ends)", nodes.EndField)
@@ -240,11 +243,11 @@ func (c *parser) slowRoll(sc *slowRollConfig, sp *nodes.SlowRollParams) error {
 			if f.v == nil {
 				continue
 			}
-			if sp.Method == nodes.MethodFirst {
-				continue // a setting of the second and exact methods only
+			if sp.Method == nodes.MethodFirst && sp.End != nodes.EndEpsilonHOne {
+				continue // a setting of the exact background, which first order integrates only to end at epsilon_H = 1
 			}
-			if !(*f.v > 0) {
-				return c.errAt("slow_roll."+f.key, "%s = %g, want > 0", f.key, *f.v)
+			if !(*f.v > 0) || math.IsInf(*f.v, 0) {
+				return c.errAt("slow_roll."+f.key, "%s = %g, want a positive finite number", f.key, *f.v)
 			}
 			sp.Exact[f.key] = *f.v
 		}

@@ -101,3 +101,25 @@ func TestReheatingBoundsInclusive(t *testing.T) {
 		t.Error("T_reh = 1e-13 GeV below T_0 = 2.7255 K was accepted")
 	}
 }
+
+// TestSlowRollValuesRefused: non-finite slow-roll settings are refused at
+// their key, and first order ending at epsilon_H = 1 takes the exact
+// background's settings (it integrates that background to find the end).
+func TestSlowRollValuesRefused(t *testing.T) {
+	tail := "[[reheating]]\nhistory = \"fixed-efolds\"\nN_star = 55\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n"
+	for _, c := range []struct{ name, slowRoll, path string }{
+		{"end_phi nan", "method = \"first\"\nend = \"field\"\nend_phi = nan", "slow_roll.end_phi"},
+		{"end_phi inf", "method = \"exact\"\nend = \"field\"\nend_phi = inf", "slow_roll.end_phi"},
+		{"rtol inf", "method = \"exact\"\nrtol = inf", "slow_roll.rtol"},
+		{"rtol of first order at epsilon_H", "method = \"first\"\nend = \"epsilon_H=1\"\nrtol = -1", "slow_roll.rtol"},
+	} {
+		_, err := Parse("s.toml", []byte("[slow_roll]\n"+c.slowRoll+"\n"+tail), ".")
+		var ce *ConfigError
+		if !errors.As(err, &ce) || !strings.Contains(err.Error(), c.path) {
+			t.Errorf("%s: %v", c.name, err)
+		}
+	}
+	if _, err := Parse("s.toml", []byte("[slow_roll]\nmethod = \"first\"\nend = \"epsilon_H=1\"\nrtol = 1e-9\n"+tail), "."); err != nil {
+		t.Errorf("first order at epsilon_H = 1 with rtol: %v", err)
+	}
+}
