@@ -57,19 +57,26 @@ func sweepValues(p model.Param) []float64 {
 // runSweepPoint runs the model, canonical, slow-roll and reheat stages of
 // one point as the pipeline does.
 func runSweepPoint(pt *sweepPoint) {
-	ctx := context.Background()
 	mp, err := ModelParams(pt.family, pt.params, nil)
 	if err != nil {
 		pt.err = err
 		return
 	}
-	sr := SlowRollParams{Method: pt.method, End: DefaultEnd(pt.method)}.Values()
+	pt.ns, pt.r, pt.err = runStages(mp, pt.method, pt.history)
+}
+
+// runStages runs a model point's first four stages for a method and a
+// history ("instantaneous", or a fixed N* written as a number) and returns
+// its n_s and r.
+func runStages(mp pipeline.Values, method, history string) (ns, r float64, err error) {
+	ctx := context.Background()
+	sr := SlowRollParams{Method: method, End: DefaultEnd(method)}.Values()
 	var rh pipeline.Values
-	if pt.history == HistoryInstant {
+	if history == HistoryInstant {
 		rh = ReheatParams(HistoryParams{Kind: HistoryInstant, Thermal: reheat.DefaultHistory(), TBBNGeV: reheat.DefaultBBNBoundGeV}, 2.1e-9)
 	} else {
 		var N float64
-		fmt.Sscan(pt.history, &N)
+		fmt.Sscan(history, &N)
 		rh = ReheatParams(HistoryParams{Kind: HistoryFixed, N: N}, 2.1e-9)
 	}
 	out, err := (Model{}).Run(ctx, mp, nil)
@@ -83,11 +90,11 @@ func runSweepPoint(pt *sweepPoint) {
 		out, err = (Reheat{}).Run(ctx, rh, []pipeline.Values{out})
 	}
 	if err != nil {
-		pt.err = err
-		return
+		return 0, 0, err
 	}
-	pt.ns, _ = out.Num("n_s")
-	pt.r, _ = out.Num("r")
+	ns, _ = out.Num("n_s")
+	r, _ = out.Num("r")
+	return ns, r, nil
 }
 
 // sweep returns every point of the sweep: each family's parameters swept
@@ -212,7 +219,6 @@ func TestSweepUserModels(t *testing.T) {
 	if testing.Short() {
 		t.Skip("the sweep runs eight decades")
 	}
-	ctx := context.Background()
 	for i := 0; i <= 8; i++ {
 		alpha := math.Pow(10, -4+float64(i))
 		s := math.Sqrt(6 * alpha)
@@ -234,21 +240,7 @@ func TestSweepUserModels(t *testing.T) {
 				if err != nil {
 					t.Fatalf("%s: %v", u.c.Potential, err)
 				}
-				sr := SlowRollParams{Method: MethodFirst, End: EndEpsilonVOne}.Values()
-				rh := ReheatParams(HistoryParams{Kind: HistoryFixed, N: 55}, 2.1e-9)
-				if h == HistoryInstant {
-					rh = ReheatParams(HistoryParams{Kind: HistoryInstant, Thermal: reheat.DefaultHistory(), TBBNGeV: reheat.DefaultBBNBoundGeV}, 2.1e-9)
-				}
-				out, err := (Model{}).Run(ctx, mp, nil)
-				if err == nil {
-					out, err = (Canonical{}).Run(ctx, pipeline.Values{}, []pipeline.Values{out})
-				}
-				if err == nil {
-					out, err = (SlowRoll{}).Run(ctx, sr, []pipeline.Values{out})
-				}
-				if err == nil {
-					out, err = (Reheat{}).Run(ctx, rh, []pipeline.Values{out})
-				}
+				ns, _, err := runStages(mp, MethodFirst, h)
 				desc := fmt.Sprintf("user %s, alpha = %g, %s", u.family, alpha, h)
 				if err != nil {
 					t.Errorf("%s: %v", desc, err)
@@ -260,7 +252,6 @@ func TestSweepUserModels(t *testing.T) {
 					t.Errorf("%s: built-in: %v", desc, ref.err)
 					continue
 				}
-				ns, _ := out.Num("n_s")
 				if math.Abs(ns-ref.ns) > 1e-6 {
 					t.Errorf("%s: n_s = %.10g, built-in %.10g", desc, ns, ref.ns)
 				}

@@ -151,29 +151,15 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 			return Prediction{}, fmt.Errorf("reheating matching gives N* = %g (from N = %g)", m.N, N)
 		}
 		F := m.N - N
-		if math.Abs(F) < 1e-11 {
-			fm, err := h.Efolds(pr.Scale, e)
-			if err != nil {
-				return Prediction{}, err
-			}
-			pr.TReh, pr.TMax, pr.NReh, pr.W = fm.T, fm.TMax, fm.NReh, e.W
-			if e.Kind == EraInstant {
-				pr.W = 1.0 / 3
-			}
-			return pr, nil
-		}
 		if F > 0 {
 			lo = N
 		} else {
 			hi = N
 		}
-		if math.Abs(hi-lo) < 1e-10*math.Max(1, N) {
-			// The bracket has closed to the resolution of the evaluator's
-			// e-fold count (1e-9 relative at worst, slowroll.quadFloor):
-			// no step can do better.
-			F = 0
-		}
-		if F == 0 {
+		// Converged, or the bracket has closed to the resolution of the
+		// evaluator's e-fold count (1e-9 relative at worst,
+		// slowroll.quadFloor), where no step can do better.
+		if math.Abs(F) < 1e-11 || math.Abs(hi-lo) < 1e-10*math.Max(1, N) {
 			fm, err := h.Efolds(pr.Scale, e)
 			if err != nil {
 				return Prediction{}, err
