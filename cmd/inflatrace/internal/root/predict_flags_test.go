@@ -1,58 +1,16 @@
-package predictcmd_test
+package root
 
 import (
-	"bytes"
-	"context"
 	"encoding/json"
 	"math"
-	"math/rand"
 	"os"
 	"path/filepath"
 	"reflect"
 	"strings"
-	"sync/atomic"
 	"testing"
-	"time"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
-	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/root"
 )
-
-// harness runs the command line in-process against a ledger in a
-// temporary directory, with a steadily advancing clock.
-type harness struct {
-	t      *testing.T
-	dir    string
-	ledger string
-	tick   atomic.Int64
-	rng    *rand.Rand
-}
-
-func newHarness(t *testing.T) *harness {
-	dir := t.TempDir()
-	return &harness{t: t, dir: dir, ledger: filepath.Join(dir, "ledger.db"), rng: rand.New(rand.NewSource(7))}
-}
-
-func (h *harness) run(args ...string) (stdout, stderr string, code int) {
-	h.t.Helper()
-	var out, errb bytes.Buffer
-	env := &app.Env{
-		Stdout: &out, Stderr: &errb,
-		Getenv: func(k string) string {
-			if k == app.LedgerEnv {
-				return h.ledger
-			}
-			return os.Getenv(k)
-		},
-		Now: func() time.Time {
-			return time.Date(2026, 12, 3, 9, 0, 0, 0, time.UTC).Add(time.Duration(h.tick.Add(1)) * time.Millisecond)
-		},
-		Random: h.rng,
-		CPUs:   2,
-	}
-	code = root.Execute(context.Background(), env, args)
-	return out.String(), errb.String(), code
-}
 
 func (h *harness) runs() int {
 	h.t.Helper()
