@@ -9,8 +9,11 @@ import (
 )
 
 // Instantaneous reheating for the Starobinsky model with A_s = 2.099e-9
-// and the default history: published-values B6's worked example gives
-// N* = 55.56, n_s = 0.96532, r = 0.00343.
+// and the default history gives N* = 55.56, n_s = 0.96532, r = 0.00343
+// (computed at first order in slow roll from the matching k* = a* H* with
+// entropy conservation, N* = ln(a_0 T_0/k*) + (1/3) ln(g_s0/g_s,reh) +
+// ln(H*/T_reh), T_reh = (30 rho_end/(pi^2 g))^(1/4): Liddle & Leach 2003,
+// PRD 68, 103503, astro-ph/0305263, equation number from memory).
 func ExampleInstant() {
 	f, _ := model.Lookup("starobinsky")
 	m, _ := f.New(nil)

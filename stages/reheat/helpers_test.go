@@ -32,8 +32,10 @@ func mustSolve(t testing.TB, family string, p map[string]float64) *slowroll.Solu
 	return sol
 }
 
-// refMp is the reduced Planck mass used throughout published-values.md,
-// 2.435e18 GeV; the package's own value, 1.220890e19/sqrt(8 pi) =
-// 2.43532e18 GeV, differs by 1.3e-4. GeV figures from the reference file
-// are compared after converting with refMp.
+// refMp is the reduced Planck mass rounded to 4 digits, 2.435e18 GeV
+// (common practice; the Particle Data Group prints 2.435323e18 GeV, from
+// memory), with which the hand-computed GeV figures of these tests were
+// worked; the package's own value, 1.220890e19/sqrt(8 pi) = 2.43532e18
+// GeV, differs by 1.3e-4. Those GeV figures are compared after converting
+// with refMp.
 const refMp = 2.435e18
