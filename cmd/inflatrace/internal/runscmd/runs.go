@@ -1,15 +1,27 @@
 // Package runscmd implements "inflatrace runs": the recorded runs, newest
-// first.
+// first, with their tags, optionally only the study runs or only the
+// one-off predict runs.
 package runscmd
 
 import (
 	"context"
+	"fmt"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/predictcmd"
+	"github.com/inflatrace/inflatrace/ledger"
+)
+
+// The kinds of run --kind selects.
+const (
+	KindAll     = "all"     // every run
+	KindStudy   = "study"   // runs of a study configuration file (inflatrace run)
+	KindPredict = "predict" // one-off runs of inflatrace predict
 )
 
 // Options are the parsed flags of runs.
@@ -17,6 +29,7 @@ type Options struct {
 	Env     *app.Env
 	Globals *app.Globals
 	JSON    bool
+	Kind    string // KindAll, KindStudy or KindPredict
 }
 
 // NewCmd returns the runs command.
@@ -32,26 +45,45 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 		RunE:  func(c *cobra.Command, _ []string) error { return run(c.Context(), opts) },
 	}
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print the list as JSON")
+	cmd.Flags().StringVar(&opts.Kind, "kind", KindAll, "which runs to list: study (inflatrace run), predict (inflatrace predict) or all")
 	return cmd
 }
 
 // Row is the JSON shape of one run.
 type Row struct {
-	Run         string `json:"run"`
-	Started     string `json:"started"`
-	Finished    string `json:"finished,omitempty"`
-	Status      string `json:"status"`
-	ToolVersion string `json:"tool_version"`
-	Config      string `json:"config"`
-	ConfigHash  string `json:"config_hash"`
-	Computed    int    `json:"computed"`
-	Reused      int    `json:"reused"`
-	Failed      int    `json:"failed"`
-	Results     int    `json:"results"`
+	Run         string   `json:"run"`
+	Kind        string   `json:"kind"`
+	Tags        []string `json:"tags"`
+	Started     string   `json:"started"`
+	Finished    string   `json:"finished,omitempty"`
+	Status      string   `json:"status"`
+	ToolVersion string   `json:"tool_version"`
+	Config      string   `json:"config"`
+	ConfigHash  string   `json:"config_hash"`
+	Computed    int      `json:"computed"`
+	Reused      int      `json:"reused"`
+	Failed      int      `json:"failed"`
+	Results     int      `json:"results"`
+}
+
+// KindOf tells a predict run from a study run by the configuration path
+// the run recorded: predict records the configuration it writes under the
+// name predictcmd.ConfigName ("predict flags"), which no file path given to
+// inflatrace run takes unless a study file is named exactly that.
+func KindOf(r ledger.RunSummary) string {
+	if r.ConfigPath == predictcmd.ConfigName {
+		return KindPredict
+	}
+	return KindStudy
 }
 
 // Run lists the runs.
 func Run(ctx context.Context, o *Options) error {
+	switch o.Kind {
+	case KindAll, KindStudy, KindPredict:
+	default:
+		return app.Usage(fmt.Errorf("--kind %q: want %s, %s or %s", o.Kind, KindStudy, KindPredict, KindAll))
+	}
 	l, err := o.Env.OpenLedger(o.Globals)
 	if err != nil {
 		return err
@@ -61,21 +93,34 @@ func Run(ctx context.Context, o *Options) error {
 	if err != nil {
 		return err
 	}
-	rows := make([]Row, len(runs))
-	table := make([][]string, len(runs))
-	for i, r := range runs {
+	tags, err := l.AllTags(ctx)
+	if err != nil {
+		return err
+	}
+	rows := []Row{}
+	table := [][]string{}
+	for _, r := range runs {
+		kind := KindOf(r)
+		if o.Kind != KindAll && o.Kind != kind {
+			continue
+		}
 		fin := ""
 		if !r.Finished.IsZero() {
 			fin = r.Finished.UTC().Format(time.RFC3339)
 		}
-		rows[i] = Row{Run: string(r.ID), Started: r.Started.UTC().Format(time.RFC3339), Finished: fin,
+		t := tags[r.ID]
+		if t == nil {
+			t = []string{}
+		}
+		row := Row{Run: string(r.ID), Kind: kind, Tags: t, Started: r.Started.UTC().Format(time.RFC3339), Finished: fin,
 			Status: string(r.Status), ToolVersion: r.ToolVersion, Config: r.ConfigPath, ConfigHash: r.ConfigHash,
 			Computed: r.Computed, Reused: r.Reused, Failed: r.Failed, Results: r.Results}
-		table[i] = []string{string(r.ID), rows[i].Started, string(r.Status), strconv.Itoa(r.Computed),
-			strconv.Itoa(r.Reused), strconv.Itoa(r.Failed), strconv.Itoa(r.Results), r.ConfigPath}
+		rows = append(rows, row)
+		table = append(table, []string{row.Run, row.Started, row.Status, strconv.Itoa(r.Computed),
+			strconv.Itoa(r.Reused), strconv.Itoa(r.Failed), strconv.Itoa(r.Results), strings.Join(t, ","), r.ConfigPath})
 	}
 	if o.JSON {
 		return app.JSON(o.Env.Stdout, rows)
 	}
-	return o.Env.Table(o.Env.Stdout, []string{"run", "started", "status", "computed", "reused", "failed", "results", "config"}, table)
+	return o.Env.Table(o.Env.Stdout, []string{"run", "started", "status", "computed", "reused", "failed", "results", "tags", "config"}, table)
 }

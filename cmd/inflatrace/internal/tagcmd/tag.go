@@ -4,11 +4,13 @@ package tagcmd
 
 import (
 	"context"
+	"errors"
 	"fmt"
 
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/ledger"
 )
 
 // Options are the parsed flags and arguments of tag.
@@ -39,7 +41,9 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 	return cmd
 }
 
-// Run tags the run.
+// Run tags the run. A name that already names another run is refused (exit
+// 2, naming the run that holds it) unless --move is given; tagging a run
+// again with a name it already has succeeds and changes nothing.
 func Run(ctx context.Context, o *Options) error {
 	l, err := o.Env.OpenLedger(o.Globals)
 	if err != nil {
@@ -51,7 +55,15 @@ func Run(ctx context.Context, o *Options) error {
 		return err
 	}
 	if err := l.Tag(ctx, id, o.Name, o.Move); err != nil {
-		return app.Usage(err)
+		var taken *ledger.TagTakenError
+		switch {
+		case errors.As(err, &taken):
+			return app.Usage(fmt.Errorf("tag %q already names run %s; to give it to run %s instead, run: inflatrace tag %s %s --move",
+				taken.Name, taken.Holder, id, o.Run, o.Name))
+		case errors.Is(err, ledger.ErrBadTagName):
+			return app.Usage(err)
+		}
+		return err
 	}
 	fmt.Fprintf(o.Env.Stderr, "tagged run %s as %s\n", id, o.Name)
 	return nil
