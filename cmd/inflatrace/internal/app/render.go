@@ -6,9 +6,11 @@ import (
 	"fmt"
 	"io"
 	"sort"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tables"
 	"github.com/inflatrace/inflatrace/stages/study"
 )
 
@@ -60,18 +62,41 @@ func JSON(w io.Writer, v any) error {
 }
 
 // ResultHeader is the header of the results table; units are labelled.
-var ResultHeader = []string{"model", "params", "reheating", "N*", "n_s", "r", "alpha_s", "n_t",
+// The first column, #, is the N of "trace RUN#N" (a failed result has
+// none: "-"); label is the study's [[model]] label (the family when the
+// study gives none).
+var ResultHeader = []string{"#", "label", "model", "params", "reheating", "N*", "n_s", "r", "alpha_s", "n_t",
 	"V*^1/4 [GeV]", "H* [GeV]", "constraint", "dchi2", "sigma"}
 
-// ResultRows formats results for ResultHeader.
+// ResultRows formats the results of one run, all of them, for
+// ResultHeader.
 func ResultRows(rs []study.Result) [][]string {
+	var n ResultNumbering
+	return n.Rows(rs)
+}
+
+// ResultNumbering numbers a run's results as RUN#N counts them while they
+// arrive chunk by chunk: every result but a failed one (a failed node is
+// never recorded as a result) takes the next number, from 1. The zero
+// value starts at the run's first result.
+type ResultNumbering struct {
+	last int // the number of the last numbered result
+}
+
+// Rows formats the next results of the run for ResultHeader.
+func (n *ResultNumbering) Rows(rs []study.Result) [][]string {
 	rows := make([][]string, 0, len(rs))
 	for _, r := range rs {
 		history := r.Reheating
 		if parts := strings.Split(r.Label, " | "); len(parts) >= 2 {
 			history = parts[1] // the history as described, e.g. "w=0 T_reh=1e+09 GeV"
 		}
-		row := []string{r.Model, FormatParams(r.Params), history}
+		no := "-"
+		if r.Error == "" {
+			n.last++
+			no = strconv.Itoa(n.last)
+		}
+		row := []string{no, tables.ModelLabel(r), r.Model, FormatParams(r.Params), history}
 		if r.Error != "" {
 			row = append(row, "failed: "+r.Error)
 			rows = append(rows, row)

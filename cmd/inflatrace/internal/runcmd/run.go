@@ -81,6 +81,7 @@ func Run(ctx context.Context, o *Options) error {
 	}
 	w := o.Env.Stdout
 	wrote := 0
+	var numbering app.ResultNumbering
 	emit := func(run pipeline.RunID, rs []study.Result) error {
 		if o.JSON {
 			// One JSON object, written as the results arrive: run first,
@@ -102,13 +103,14 @@ func Run(ctx context.Context, o *Options) error {
 			}
 			return nil
 		}
+		// RUN#N numbers continue from chunk to chunk.
+		rows := numbering.Rows(rs)
 		if wrote == 0 {
-			rows := append([][]string{}, app.ResultRows(rs)...)
 			wrote += len(rs)
 			return o.Env.Table(w, app.ResultHeader, rows)
 		}
 		wrote += len(rs)
-		return o.Env.TableRows(w, app.ResultRows(rs))
+		return o.Env.TableRows(w, rows)
 	}
 	out, err := o.Env.ExecuteStudyTo(ctx, o.Globals, s, o.Jobs, emit)
 	if out == nil {

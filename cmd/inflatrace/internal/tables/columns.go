@@ -12,11 +12,12 @@ import (
 type kind int
 
 const (
-	text   kind = iota // left-aligned text
-	number             // right-aligned number, digits per Options
-	input              // right-aligned number given as input: always exact
-	flag               // centred yes/no
-	params             // the parameter list: text, or an object in JSON
+	text    kind = iota // left-aligned text
+	number              // right-aligned number, digits per Options
+	input               // right-aligned number given as input: always exact
+	flag                // centred yes/no
+	params              // the parameter list: text, or an object in JSON
+	ordinal             // the row's number, from 1: exact, right-aligned
 )
 
 // column is one selectable column.
@@ -25,7 +26,15 @@ type column struct {
 	plain string // Markdown header, units in brackets
 	latex string // LaTeX header
 	kind  kind
-	get   func(r study.Result) cell
+	get   func(r study.Result) cell // nil for the ordinal column
+}
+
+// value is the cell of row k (from 0), result r, in this column.
+func (c column) value(k int, r study.Result) cell {
+	if c.kind == ordinal {
+		return num(float64(k + 1))
+	}
+	return c.get(r)
 }
 
 // cell is one value; ok is false for a missing value.
@@ -92,10 +101,37 @@ func history(r study.Result) string {
 	return r.Reheating
 }
 
+// ModelLabel is the model part of a result label "label(params) |
+// history | constraint" without its parameter list: the user's [[model]]
+// label, or the family name when the study gives none.
+func ModelLabel(r study.Result) string {
+	s, _, _ := strings.Cut(r.Label, " | ")
+	if len(r.Params) == 0 || !strings.HasSuffix(s, ")") {
+		return s
+	}
+	// Cut the parameter list at the parenthesis matching the last one: a
+	// label may itself hold parentheses.
+	depth := 0
+	for i := len(s) - 1; i >= 0; i-- {
+		switch s[i] {
+		case ')':
+			depth++
+		case '(':
+			depth--
+			if depth == 0 {
+				return s[:i]
+			}
+		}
+	}
+	return s
+}
+
 // columns are the selectable columns in their documented order (see the
 // package documentation); param.NAME columns are made on demand.
 var columns = []column{
+	{"row", "#", "\\#", ordinal, nil},
 	{"label", "Label", "Label", text, func(r study.Result) cell { return txt(r.Label) }},
+	{"model_label", "Model label", "Model", text, func(r study.Result) cell { return txt(ModelLabel(r)) }},
 	{"model", "Model", "Model", text, func(r study.Result) cell { return txt(r.Model) }},
 	{"params", "Parameters", "Parameters", params, func(r study.Result) cell { return cell{ok: true, params: r.Params} }},
 	{"method", "Method", "Method", text, func(r study.Result) cell { return txt(r.Method) }},
@@ -134,8 +170,15 @@ var columns = []column{
 // "param.alpha" is the parameter alpha.
 const ParamPrefix = "param."
 
-// DefaultColumns are used when Options.Columns is empty.
-var DefaultColumns = []string{"model", "params", "history", "N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV"}
+// DefaultColumns are used when Options.Columns is empty, except in LaTeX.
+// The row column is the N of RUN#N when the rows are a run's recorded
+// results in order (as the table command writes them).
+var DefaultColumns = []string{"row", "model_label", "model", "params", "history", "N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV"}
+
+// DefaultLaTeXColumns are used for LaTeX when Options.Columns is empty:
+// DefaultColumns without the row number, which a paper's table does not
+// carry (ask for it with the column "row").
+var DefaultLaTeXColumns = DefaultColumns[1:]
 
 // ColumnNames returns the names of the fixed columns in documented order
 // (a param.NAME column may be added for any parameter).

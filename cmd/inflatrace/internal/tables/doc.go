@@ -5,7 +5,11 @@
 // Columns, by name (CSV header and JSON key; Markdown and LaTeX headers
 // in brackets where they differ):
 //
+//	row                the row's number from 1 [#, \#]: for a run's recorded
+//	                   results in order, the N of "trace RUN#N"
 //	label              the result label "model(params) | history | constraint"
+//	model_label        the [[model]] label, or the family when none is given
+//	                   [Model label, Model]
 //	model              model family
 //	params             all model parameters, "alpha=1, n=2" (JSON: an object)
 //	param.NAME         one model parameter [NAME; Greek names as $\alpha$ in LaTeX]
@@ -22,6 +26,10 @@
 //	constraint         constraint set name
 //	delta_chi2, n_sigma, inside_68, inside_95
 //	key, error
+//
+// Default columns (DefaultColumns) start with row and model_label; LaTeX
+// leaves the row number out (DefaultLaTeXColumns), as a paper's table does
+// not carry it: name the column row to have it.
 //
 // Numbers. Computed numbers are written to Options.Digits significant
 // digits (default 4): in Markdown and LaTeX with trailing zeros kept,

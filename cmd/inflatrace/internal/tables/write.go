@@ -58,7 +58,11 @@ type Options struct {
 // and at the end, headers in math mode with units, numbers in math mode
 // ($2.481\times10^{13}$), text escaped, a missing value ---.
 func Write(w io.Writer, rows []study.Result, opts Options) error {
-	cols, err := lookup(opts.Columns)
+	names := opts.Columns
+	if len(names) == 0 && opts.Format == LaTeX {
+		names = DefaultLaTeXColumns
+	}
+	cols, err := lookup(names)
 	if err != nil {
 		return err
 	}
@@ -112,7 +116,7 @@ func paramText(ps map[string]float64) string {
 }
 
 func (c column) format(nf numberFormat) numberFormat {
-	if c.kind == input {
+	if c.kind == input || c.kind == ordinal {
 		return exactFormat
 	}
 	return nf
@@ -128,8 +132,8 @@ func writeCSV(w io.Writer, rows []study.Result, cols []column, nf numberFormat) 
 	if err := cw.Write(rec); err != nil {
 		return err
 	}
-	for _, r := range rows {
-		csvCells.fill(rec, r, cols, nf)
+	for k, r := range rows {
+		csvCells.fill(rec, k, r, cols, nf)
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
@@ -167,11 +171,11 @@ func writeJSON(w io.Writer, rows []study.Result, cols []column, nf numberFormat)
 				b.WriteString(", ")
 			}
 			b.WriteString(jsonString(c.name) + ": ")
-			v := c.get(r)
+			v := c.value(k, r)
 			switch {
 			case !v.ok:
 				b.WriteString("null")
-			case c.kind == number || c.kind == input:
+			case c.kind == number || c.kind == input || c.kind == ordinal:
 				b.WriteString(jsonNumber(c.format(nf), v.num))
 			case c.kind == flag:
 				b.WriteString(strconv.FormatBool(v.flag))
@@ -219,7 +223,7 @@ func writeMarkdown(w io.Writer, rows []study.Result, cols []column, nf numberFor
 	line(cells)
 	for i, c := range cols {
 		switch c.kind {
-		case number, input:
+		case number, input, ordinal:
 			cells[i] = "---:"
 		case flag:
 			cells[i] = ":---:"
@@ -228,8 +232,8 @@ func writeMarkdown(w io.Writer, rows []study.Result, cols []column, nf numberFor
 		}
 	}
 	line(cells)
-	for _, r := range rows {
-		markdownCells.fill(cells, r, cols, nf)
+	for k, r := range rows {
+		markdownCells.fill(cells, k, r, cols, nf)
 		line(cells)
 	}
 	_, err := io.WriteString(w, b.String())
@@ -251,13 +255,16 @@ var (
 	latexCells    = cellStyle{"---", numberFormat.latex, yesNo, escapeLaTeX}
 )
 
-// fill writes row r's cells for cols in this style.
-func (st cellStyle) fill(cells []string, r study.Result, cols []column, nf numberFormat) {
+// fill writes the cells of row k (from 0), result r, for cols in this
+// style.
+func (st cellStyle) fill(cells []string, k int, r study.Result, cols []column, nf numberFormat) {
 	for i, c := range cols {
-		v := c.get(r)
+		v := c.value(k, r)
 		switch {
 		case !v.ok:
 			cells[i] = st.missing
+		case c.kind == ordinal:
+			cells[i] = strconv.Itoa(k + 1)
 		case c.kind == number || c.kind == input:
 			cells[i] = st.number(c.format(nf), v.num)
 		case c.kind == flag:
@@ -282,7 +289,7 @@ func latexSpec(cols []column) string {
 	var b strings.Builder
 	for _, c := range cols {
 		switch c.kind {
-		case number, input:
+		case number, input, ordinal:
 			b.WriteByte('r')
 		case flag:
 			b.WriteByte('c')
@@ -301,8 +308,8 @@ func writeLaTeX(w io.Writer, rows []study.Result, cols []column, nf numberFormat
 		cells[i] = c.latex
 	}
 	b.WriteString(strings.Join(cells, " & ") + " \\\\\n\\hline\n")
-	for _, r := range rows {
-		latexCells.fill(cells, r, cols, nf)
+	for k, r := range rows {
+		latexCells.fill(cells, k, r, cols, nf)
 		b.WriteString(strings.Join(cells, " & ") + " \\\\\n")
 	}
 	b.WriteString("\\hline\n\\end{tabular}\n")

@@ -283,7 +283,7 @@ func TestOptionErrors(t *testing.T) {
 // TestColumnNames: the documented list, in order, and every column
 // writes in every format.
 func TestColumnNames(t *testing.T) {
-	want := "label model params method reheating history N_star phi_star phi_end n_s r alpha_s n_t energy_scale_GeV H_star_GeV T_reh_GeV T_max_GeV w_reh N_reh below_bbn N_star_min N_star_max n_s_min n_s_max r_min r_max constraint delta_chi2 n_sigma inside_68 inside_95 key error"
+	want := "row label model_label model params method reheating history N_star phi_star phi_end n_s r alpha_s n_t energy_scale_GeV H_star_GeV T_reh_GeV T_max_GeV w_reh N_reh below_bbn N_star_min N_star_max n_s_min n_s_max r_min r_max constraint delta_chi2 n_sigma inside_68 inside_95 key error"
 	if got := strings.Join(ColumnNames(), " "); got != want {
 		t.Errorf("ColumnNames:\n got  %s\n want %s", got, want)
 	}
