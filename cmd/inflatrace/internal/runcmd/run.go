@@ -14,6 +14,7 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/study"
+	"github.com/inflatrace/inflatrace/stages/study/edit"
 )
 
 // Options are the parsed flags and arguments of run.
@@ -24,6 +25,15 @@ type Options struct {
 	Jobs    int
 	JSON    bool
 	Shard   string // "I/N": evaluate the I-th of N deterministic shares
+	// From is the recorded run (id, prefix, tag or "latest") whose
+	// configuration text is re-run, instead of Config.
+	From string
+	// Edits are the --set, --add and --drop changes, in command-line order.
+	Edits []edit.Edit
+	// WriteConfig names a file the edited configuration is written to.
+	WriteConfig string
+	// DryRun checks the edited configuration (and writes it) without running.
+	DryRun bool
 }
 
 // NewCmd returns the run command; run is called with the parsed options
@@ -34,20 +44,37 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 		run = Run
 	}
 	cmd := &cobra.Command{
-		Use:   "run CONFIG",
+		Use:   "run CONFIG | run --from RUN [--set PATH=VALUE]... [--add ARRAY={...}]... [--drop PATH]...",
 		Short: "Evaluate a study configuration and record it in the ledger",
 		Long: `Evaluate every model, reheating history and constraint of a study
 configuration (TOML) as a DAG of stage nodes. A node whose key is already in
-the ledger is reused, not recomputed. Results go to stdout, progress to stderr.`,
-		Args: cobra.ExactArgs(1),
+the ledger is reused, not recomputed. Results go to stdout, progress to stderr.
+
+--from RUN re-runs the configuration text recorded with RUN (a run id, a
+unique prefix, a tag or "latest"); --set PATH=VALUE (PATH as in
+configuration errors: slow_roll.method, reheating[1].w_reh, model[2].alpha;
+VALUE is TOML, a bare word is a string), --add ARRAY={inline table} (model,
+reheating, constraint or forecast) and --drop PATH (a key or an entry such
+as model[3]) edit it first, in the order given, keeping the rest of the text
+and its comments. They also edit a CONFIG file's text (the file itself is
+not changed). The new run records the run it was derived from.`,
+		Args: cobra.MaximumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
-			opts.Config = args[0]
+			if len(args) == 1 {
+				opts.Config = args[0]
+			}
 			return run(c.Context(), opts)
 		},
 	}
 	cmd.Flags().IntVarP(&opts.Jobs, "jobs", "j", 0, "nodes evaluated at once (default: the number of CPUs)")
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print one JSON object: run, computed, reused, failed, results")
 	cmd.Flags().StringVar(&opts.Shard, "shard", "", "evaluate only share I of N (I/N, 1 <= I <= N): model points i with i mod N = I-1")
+	cmd.Flags().StringVar(&opts.From, "from", "", "re-run the configuration recorded with this run (id, prefix, tag or latest)")
+	cmd.Flags().Var(&editFlag{kind: edit.Set, edits: &opts.Edits}, "set", "PATH=VALUE: set a key (slow_roll.method=exact, model[0].alpha='[1, 7]'); repeatable")
+	cmd.Flags().Var(&editFlag{kind: edit.Add, edits: &opts.Edits}, "add", "ARRAY={...}: append a [[model]], [[reheating]], [[constraint]] or [[forecast]] entry; repeatable")
+	cmd.Flags().Var(&editFlag{kind: edit.Drop, edits: &opts.Edits}, "drop", "PATH: remove a key or an entry (model[3]); repeatable")
+	cmd.Flags().StringVar(&opts.WriteConfig, "write-config", "", "write the edited configuration to this file")
+	cmd.Flags().BoolVar(&opts.DryRun, "dry-run", false, "check the edited configuration (print it, or write it with --write-config) without running it")
 	return cmd
 }
 
@@ -67,9 +94,16 @@ func Run(ctx context.Context, o *Options) error {
 	if o.Jobs < 0 {
 		return app.Usage(errors.New("--jobs must be at least 1"))
 	}
-	s, err := study.Load(o.Config)
+	s, from, err := load(ctx, o)
 	if err != nil {
-		return app.Usage(err)
+		return err
+	}
+	if o.DryRun {
+		if o.WriteConfig == "" {
+			_, err := o.Env.Stdout.Write(s.Text)
+			return err
+		}
+		return nil
 	}
 	if o.Shard != "" {
 		var i, n int
@@ -113,6 +147,11 @@ func Run(ctx context.Context, o *Options) error {
 		return o.Env.TableRows(w, rows)
 	}
 	out, err := o.Env.ExecuteStudyTo(ctx, o.Globals, s, o.Jobs, emit)
+	if out != nil && from != "" {
+		if derr := recordDerived(ctx, o, out.Report.Run, from); derr != nil && err == nil {
+			err = derr
+		}
+	}
 	if out == nil {
 		if o.JSON && wrote > 0 {
 			fmt.Fprintln(w, "\n  ]\n}")

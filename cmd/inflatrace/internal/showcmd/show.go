@@ -71,6 +71,7 @@ type Output struct {
 	ConfigHash  string         `json:"config_hash"`
 	Config      string         `json:"config"`
 	Error       string         `json:"error,omitempty"`
+	DerivedFrom string         `json:"derived_from,omitempty"` // the run this one was re-run from (run --from)
 	Nodes       []Node         `json:"nodes"`
 	Results     []study.Result `json:"results"`
 }
@@ -129,6 +130,11 @@ func Run(ctx context.Context, o *Options) error {
 	out := Output{Run: string(id), Status: string(run.Status), Started: run.Started.UTC().Format(time.RFC3339Nano),
 		ToolVersion: run.ToolVersion, ConfigPath: run.ConfigPath, ConfigHash: run.ConfigHash, Config: run.ConfigText,
 		Error: run.Error, Results: results}
+	if from, err := l.DerivedFrom(ctx, id); err != nil {
+		return err
+	} else {
+		out.DerivedFrom = string(from)
+	}
 	if !run.Finished.IsZero() {
 		out.Finished = run.Finished.UTC().Format(time.RFC3339Nano)
 	}
@@ -151,6 +157,9 @@ func Run(ctx context.Context, o *Options) error {
 		out.Run, out.Status, out.Started, out.Finished, out.ToolVersion, out.ConfigPath, out.ConfigHash)
 	if out.Error != "" {
 		fmt.Fprintf(w, "error     %s\n", out.Error)
+	}
+	if out.DerivedFrom != "" {
+		fmt.Fprintf(w, "derived from %s\n", out.DerivedFrom)
 	}
 	fmt.Fprintf(w, "\n# configuration\n")
 	for _, line := range strings.Split(strings.TrimRight(out.Config, "\n"), "\n") {

@@ -1,0 +1,51 @@
+package ledger
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// SetDerivedFrom records that run was derived from the recorded run from
+// (its configuration is from's, edited). Both runs must exist; an unknown
+// one wraps ErrNotFound.
+func (l *Ledger) SetDerivedFrom(ctx context.Context, run, from pipeline.RunID) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
+		if _, err := readRun(ctx, tx, from); err != nil {
+			return err
+		}
+		res, err := tx.ExecContext(ctx, "UPDATE runs SET derived_from = ? WHERE id = ?", string(from), string(run))
+		if err != nil {
+			return err
+		}
+		if n, err := res.RowsAffected(); err != nil {
+			return err
+		} else if n == 0 {
+			return fmt.Errorf("run %s: %w", run, ErrNotFound)
+		}
+		return nil
+	})
+	if err != nil {
+		return fmt.Errorf("ledger: record run %s as derived from %s: %w", run, from, err)
+	}
+	return nil
+}
+
+// DerivedFrom returns the run that run was derived from, or "" for a run
+// of a configuration given directly. An unknown run wraps ErrNotFound.
+func (l *Ledger) DerivedFrom(ctx context.Context, run pipeline.RunID) (pipeline.RunID, error) {
+	var from sql.NullString
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		return tx.QueryRowContext(ctx, "SELECT derived_from FROM runs WHERE id = ?", string(run)).Scan(&from)
+	})
+	if errors.Is(err, sql.ErrNoRows) {
+		err = fmt.Errorf("run %s: %w", run, ErrNotFound)
+	}
+	if err != nil {
+		return "", fmt.Errorf("ledger: read run %s: %w", run, err)
+	}
+	return pipeline.RunID(from.String), nil
+}
