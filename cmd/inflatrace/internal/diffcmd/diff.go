@@ -106,6 +106,9 @@ func Run(ctx context.Context, o *Options) error {
 		} else {
 			fmt.Fprintf(w, "\n%s\n  -> %s\n", p.LabelA, p.LabelB)
 		}
+		if len(p.Unseparated) > 0 {
+			fmt.Fprintf(w, "  (not separated: configurations %s failed or lack this result; total change only)\n", strings.Join(p.Unseparated, ", "))
+		}
 		for _, q := range provenance.Quantities {
 			c, ok := p.Changes[q]
 			if !ok || c.Total == 0 && allZero(c.Contributions) {
@@ -156,6 +159,9 @@ type JSONPair struct {
 	A       string                       `json:"label_a"`
 	B       string                       `json:"label_b"`
 	Changes map[string]provenance.Change `json:"changes"`
+	// NotSeparated lists the intermediate configurations that failed or
+	// lack this result (the changes are then totals only).
+	NotSeparated []string `json:"not_separated,omitempty"`
 }
 
 func jsonReport(r *provenance.Report) JSONReport {
@@ -164,7 +170,7 @@ func jsonReport(r *provenance.Report) JSONReport {
 		out.Assumptions = append(out.Assumptions, JSONAssumption{a.Kind, a.What, a.Attributed})
 	}
 	for _, p := range r.Pairs {
-		out.Pairs = append(out.Pairs, JSONPair{p.LabelA, p.LabelB, p.Changes})
+		out.Pairs = append(out.Pairs, JSONPair{p.LabelA, p.LabelB, p.Changes, p.Unseparated})
 	}
 	return out
 }

@@ -37,7 +37,7 @@ type Assumption struct {
 }
 
 // Quantities compared for each paired result.
-var Quantities = []string{"N_star", "n_s", "r", "alpha_s", "delta_chi2", "n_sigma"}
+var Quantities = []string{"N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV", "T_reh_GeV", "delta_chi2", "n_sigma", "detection_sigma"}
 
 // Change is the change of one quantity of one paired result.
 type Change struct {
@@ -54,6 +54,10 @@ type Change struct {
 type Pair struct {
 	LabelA, LabelB string
 	Changes        map[string]Change
+	// Unseparated names the intermediate configurations that failed for
+	// this pair or do not contain it; when set, Changes carry the total
+	// only (Contributions zero, Remainder the total).
+	Unseparated []string
 }
 
 // Report is the comparison of two runs.
@@ -63,19 +67,6 @@ type Report struct {
 	Pairs       []Pair
 	Unpaired    []string // results present in one run only
 	Evaluated   int      // intermediate configurations evaluated
-}
-
-// pairKey identifies a result across runs: its model (label up to the
-// first " | ") and its position among that model's results.
-func pairKeys(rs []study.Result) []string {
-	seen := map[string]int{}
-	keys := make([]string, len(rs))
-	for i, r := range rs {
-		model, _, _ := strings.Cut(r.Label, " | ")
-		keys[i] = fmt.Sprintf("%s#%d", model, seen[model])
-		seen[model]++
-	}
-	return keys
 }
 
 func quantity(r study.Result, q string) (float64, bool) {
@@ -91,6 +82,24 @@ func quantity(r study.Result, q string) (float64, bool) {
 		return r.R, true
 	case "alpha_s":
 		return r.AlphaS, true
+	case "n_t":
+		return r.Nt, true
+	case "energy_scale_GeV":
+		if r.EnergyScaleGeV != nil {
+			return *r.EnergyScaleGeV, true
+		}
+	case "H_star_GeV":
+		if r.HStarGeV != nil {
+			return *r.HStarGeV, true
+		}
+	case "T_reh_GeV":
+		if r.TRehGeV != nil {
+			return *r.TRehGeV, true
+		}
+	case "detection_sigma":
+		if r.DetectionSigma != nil {
+			return *r.DetectionSigma, true
+		}
 	case "delta_chi2":
 		if r.DeltaChi2 != nil {
 			return *r.DeltaChi2, true
@@ -205,42 +214,25 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 	if len(attributed) > MaxAttributed {
 		return nil, fmt.Errorf("%d configuration fields differ; attribution evaluates 2^n configurations and is limited to %d", len(attributed), MaxAttributed)
 	}
-	// Results pair by position when both runs have as many (the same
-	// study shape), else by model and position within the model.
-	type pairIdx struct{ i, j int }
-	var pairs []pairIdx
-	if len(a.Results) == len(b.Results) {
-		for i := range a.Results {
-			pairs = append(pairs, pairIdx{i, i})
-		}
-	} else {
-		ka, kb := pairKeys(a.Results), pairKeys(b.Results)
-		idxB := map[string]int{}
-		for i, k := range kb {
-			idxB[k] = i
-		}
-		pairedB := map[int]bool{}
-		for i, k := range ka {
-			if j, ok := idxB[k]; ok {
-				pairs = append(pairs, pairIdx{i, j})
-				pairedB[j] = true
-			} else {
-				rep.Unpaired = append(rep.Unpaired, "A: "+a.Results[i].Label)
-			}
-		}
-		for j := range b.Results {
-			if !pairedB[j] {
-				rep.Unpaired = append(rep.Unpaired, "B: "+b.Results[j].Label)
-			}
-		}
+	// Results pair by identity (model, parameters, reheating, method,
+	// end, constraint), never by position; see pairResults.
+	sections := diffSections(attributed)
+	pairs, onlyA, onlyB := pairResults(a.Results, b.Results, sections)
+	for _, i := range onlyA {
+		rep.Unpaired = append(rep.Unpaired, "removed (A only): "+a.Results[i].Label)
 	}
-	// v[S][pair][quantity] for every subset S of the attributed differences.
+	for _, j := range onlyB {
+		rep.Unpaired = append(rep.Unpaired, "added (B only): "+b.Results[j].Label)
+	}
+	// v[S][pair][quantity] for every subset S of the attributed
+	// differences; a nil map where configuration S failed or lacks the pair.
 	n := len(attributed)
 	ta, err := parseTree(a.Detail.ConfigText)
 	if err != nil {
 		return nil, err
 	}
 	values := make([][]map[string]float64, 1<<n)
+	missing := make([][]string, len(pairs)) // per pair: the subsets that could not be evaluated for it
 	for mask := 0; mask < 1<<n; mask++ {
 		var sub []Difference
 		for i := 0; i < n; i++ {
@@ -248,26 +240,31 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 				sub = append(sub, attributed[i])
 			}
 		}
-		tree, err := apply(ta, sub)
-		if err != nil {
-			return nil, err
-		}
-		text, err := render(tree)
-		if err != nil {
-			return nil, err
-		}
-		res, err := eval(ctx, text)
-		if err != nil {
-			return nil, fmt.Errorf("intermediate configuration %s: %w", describeSubset(sub), err)
-		}
 		values[mask] = make([]map[string]float64, len(pairs))
-		for p, pr := range pairs {
-			ri := pr.i
-			if mask == (1<<n)-1 {
-				ri = pr.j
+		var idx map[int]int // A result index -> index in res
+		tree, err := apply(ta, sub)
+		var res []study.Result
+		if err == nil {
+			var text string
+			if text, err = render(tree); err == nil {
+				res, err = eval(ctx, text)
 			}
-			if (mask == (1<<n)-1 && len(res) != len(b.Results)) || (mask != (1<<n)-1 && len(res) != len(a.Results)) {
-				return nil, fmt.Errorf("intermediate configuration %s gives %d results: attribution needs every configuration to give the same results (%d)", describeSubset(sub), len(res), len(a.Results))
+		}
+		if err == nil {
+			// Configuration S is paired with A as B is, over the
+			// sections S changes.
+			sp, _, _ := pairResults(a.Results, res, diffSections(sub))
+			idx = map[int]int{}
+			for _, pr := range sp {
+				idx[pr.i] = pr.j
+			}
+		}
+		rep.Evaluated++
+		for p, pr := range pairs {
+			ri, ok := idx[pr.i]
+			if !ok || ri >= len(res) || res[ri].Error != "" {
+				missing[p] = append(missing[p], describeSubset(sub))
+				continue
 			}
 			m := map[string]float64{}
 			for _, q := range Quantities {
@@ -277,12 +274,11 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 			}
 			values[mask][p] = m
 		}
-		rep.Evaluated++
 	}
 	weights := shapleyWeights(n)
 	for p, pr := range pairs {
 		ra, rb := a.Results[pr.i], b.Results[pr.j]
-		pair := Pair{LabelA: ra.Label, LabelB: rb.Label, Changes: map[string]Change{}}
+		pair := Pair{LabelA: ra.Label, LabelB: rb.Label, Changes: map[string]Change{}, Unseparated: missing[p]}
 		for _, q := range Quantities {
 			xa, okA := quantity(ra, q)
 			xb, okB := quantity(rb, q)
@@ -290,7 +286,7 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 				continue
 			}
 			c := Change{A: xa, B: xb, Total: xb - xa, Contributions: make([]float64, n)}
-			complete := true
+			complete := len(missing[p]) == 0
 			for mask := range values {
 				if _, ok := values[mask][p][q]; !ok {
 					complete = false
@@ -416,4 +412,124 @@ func Evaluator(rec pipeline.Recorder, dir, tool string, jobs int, now func() tim
 		}
 		return study.Results(g, rep), nil
 	}
+}
+
+// identity is what a result is, across runs: its model (family, or the
+// written potential and kinetic term), parameter values, reheating history
+// (as its label writes it), method, end condition and constraint. Each part
+// is keyed by the configuration section it comes from.
+func identity(r study.Result) map[string]string {
+	names := make([]string, 0, len(r.Params))
+	for k := range r.Params {
+		names = append(names, k)
+	}
+	sort.Strings(names)
+	var ps []string
+	for _, k := range names {
+		ps = append(ps, fmt.Sprintf("%s=%v", k, r.Params[k]))
+	}
+	parts := strings.Split(r.Label, " | ")
+	reh := r.Reheating
+	if len(parts) >= 2 {
+		reh += " " + parts[1]
+	}
+	return map[string]string{
+		"model":      r.Model + "|" + r.Potential + "|" + r.Kinetic + "|" + strings.Join(ps, ","),
+		"reheating":  reh,
+		"slow_roll":  r.Method + "|" + r.End,
+		"constraint": r.Constraint,
+	}
+}
+
+// identitySections are the parts of identity, in a fixed order.
+var identitySections = []string{"model", "reheating", "slow_roll", "constraint"}
+
+// diffSections returns the configuration sections in which a value is
+// replaced by another single value ("model" for model[2].alpha = 1 -> 2,
+// "slow_roll" for slow_roll.method): there a result of A has one successor
+// in B. A list that grows or shrinks, or an entry added or removed, adds
+// and removes results instead, and pairs nothing across.
+func diffSections(ds []Difference) map[string]bool {
+	single := func(v any) bool {
+		switch v.(type) {
+		case nil, []any, map[string]any:
+			return false
+		}
+		return true
+	}
+	out := map[string]bool{}
+	for _, d := range ds {
+		if !single(d.A) || !single(d.B) {
+			continue
+		}
+		sec := d.Path
+		if i := strings.IndexAny(sec, ".["); i >= 0 {
+			sec = sec[:i]
+		}
+		if sec == "forecast" {
+			sec = "constraint" // forecasts are compared like constraint sets
+		}
+		out[sec] = true
+	}
+	return out
+}
+
+// idx2 is a pair of result indices, in run A and run B.
+type idx2 struct{ i, j int }
+
+// pairResults pairs the results of two runs by identity, never by
+// position: first those whose whole identity agrees; then, among the rest,
+// those that agree on every part the differing sections cannot change
+// (changed is the set of sections whose fields differ), in order of
+// appearance (a w_reh changed from 0 to 1/3 pairs each history with its
+// successor). What is left is only in A (removed) or only in B (added).
+func pairResults(a, b []study.Result, changed map[string]bool) (pairs []idx2, onlyA, onlyB []int) {
+	key := func(r study.Result, reduced bool) string {
+		id := identity(r)
+		var k []string
+		for _, sec := range identitySections {
+			v := id[sec]
+			if reduced && changed[sec] {
+				if sec != "model" {
+					continue
+				}
+				v, _, _ = strings.Cut(v, "|") // the family stays: models never pair across families
+			}
+			k = append(k, v)
+		}
+		return strings.Join(k, "\x00")
+	}
+	usedA, usedB := make([]bool, len(a)), make([]bool, len(b))
+	for _, reduced := range []bool{false, true} {
+		queue := map[string][]int{}
+		for j := range b {
+			if !usedB[j] {
+				k := key(b[j], reduced)
+				queue[k] = append(queue[k], j)
+			}
+		}
+		for i := range a {
+			if usedA[i] {
+				continue
+			}
+			k := key(a[i], reduced)
+			if q := queue[k]; len(q) > 0 {
+				pairs = append(pairs, idx2{i, q[0]})
+				queue[k] = q[1:]
+				usedA[i], usedB[q[0]] = true, true
+			}
+		}
+	}
+	sort.Slice(pairs, func(x, y int) bool { return pairs[x].i < pairs[y].i })
+	for i := range a {
+		if !usedA[i] {
+			onlyA = append(onlyA, i)
+		}
+	}
+	for j := range b {
+		if !usedB[j] {
+			onlyB = append(onlyB, j)
+		}
+	}
+	return pairs, onlyA, onlyB
 }

@@ -66,9 +66,28 @@ func Differences(a, b map[string]any) []Difference {
 	for p := range fb {
 		paths[p] = true
 	}
+	// An entry of an array of tables that only one run has ([[model]]
+	// number 4 added, say) is one difference, the whole table: its fields
+	// switched one at a time would give intermediate configurations with
+	// half a model.
+	lonely := map[string]Difference{}
+	for k, va := range a {
+		ta, _ := va.([]any)
+		tb, _ := b[k].([]any)
+		addLonely(k, ta, tb, lonely)
+	}
+	for k, vb := range b {
+		if _, ok := a[k]; !ok {
+			tb, _ := vb.([]any)
+			addLonely(k, nil, tb, lonely)
+		}
+	}
 	var out []Difference
+	for _, d := range lonely {
+		out = append(out, d)
+	}
 	for p := range paths {
-		if presentational(p) {
+		if presentational(p) || inLonely(p, lonely) {
 			continue
 		}
 		va, okA := fa[p]
@@ -87,6 +106,40 @@ func Differences(a, b map[string]any) []Difference {
 	}
 	sort.Slice(out, func(i, j int) bool { return out[i].Path < out[j].Path })
 	return out
+}
+
+// addLonely records the entries of the array of tables named k that only
+// one side has (ta from run A, tb from run B).
+func addLonely(k string, ta, tb []any, out map[string]Difference) {
+	isTables := func(x []any) bool {
+		if len(x) == 0 {
+			return false
+		}
+		_, ok := x[0].(map[string]any)
+		return ok
+	}
+	if !isTables(ta) && !isTables(tb) {
+		return
+	}
+	for i := len(tb); i < len(ta); i++ {
+		p := k + "[" + strconv.Itoa(i) + "]"
+		out[p] = Difference{Path: p, A: ta[i]}
+	}
+	for i := len(ta); i < len(tb); i++ {
+		p := k + "[" + strconv.Itoa(i) + "]"
+		out[p] = Difference{Path: p, B: tb[i]}
+	}
+}
+
+// inLonely reports whether a leaf path lies inside an entry recorded as
+// a whole-table difference.
+func inLonely(path string, lonely map[string]Difference) bool {
+	for p := range lonely {
+		if strings.HasPrefix(path, p+".") {
+			return true
+		}
+	}
+	return false
 }
 
 func presentational(path string) bool {
@@ -218,7 +271,18 @@ func set(root map[string]any, path string, value any) error {
 			return fmt.Errorf("path %s: %s[%d] is not a table", path, name, idx)
 		}
 		if last {
-			return fmt.Errorf("path %s: cannot set a whole table", path)
+			// A whole entry: replaced, or emptied (prune drops it) so
+			// that the indices of the others stay as they are.
+			if value == nil {
+				arr[idx] = map[string]any{}
+				return nil
+			}
+			m, ok := value.(map[string]any)
+			if !ok {
+				return fmt.Errorf("path %s: a table entry needs a table", path)
+			}
+			arr[idx] = deepCopy(m)
+			return nil
 		}
 		cur = t
 	}
