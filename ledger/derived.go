@@ -49,3 +49,29 @@ func (l *Ledger) DerivedFrom(ctx context.Context, run pipeline.RunID) (pipeline.
 	}
 	return pipeline.RunID(from.String), nil
 }
+
+// AllDerivedFrom returns, in one query, the run each derived run was
+// derived from, keyed by the derived run. Runs of a configuration given
+// directly are absent from the map.
+func (l *Ledger) AllDerivedFrom(ctx context.Context) (map[pipeline.RunID]pipeline.RunID, error) {
+	out := map[pipeline.RunID]pipeline.RunID{}
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT id, derived_from FROM runs WHERE derived_from IS NOT NULL")
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var id, from string
+			if err := rows.Scan(&id, &from); err != nil {
+				return err
+			}
+			out[pipeline.RunID(id)] = pipeline.RunID(from)
+		}
+		return rows.Err()
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: list derived runs: %w", err)
+	}
+	return out, nil
+}

@@ -47,3 +47,41 @@ func TestDerivedFrom(t *testing.T) {
 		t.Errorf("DerivedFrom of an unknown run: %v, want ErrNotFound", err)
 	}
 }
+
+// AllDerivedFrom agrees with DerivedFrom for every run, including a chain
+// (c from b from a) and a run derived from nothing, which is absent.
+func TestAllDerivedFrom(t *testing.T) {
+	l, _ := openTest(t)
+	ctx := context.Background()
+	a := beginRun(t, l, "20261202T050000Z-aaaaaa", testClock)
+	b := beginRun(t, l, "20261202T050001Z-bbbbbb", testClock.Add(time.Second))
+	c := beginRun(t, l, "20261202T050002Z-cccccc", testClock.Add(2*time.Second))
+	if err := l.SetDerivedFrom(ctx, b, a); err != nil {
+		t.Fatal(err)
+	}
+	if err := l.SetDerivedFrom(ctx, c, b); err != nil {
+		t.Fatal(err)
+	}
+	all, err := l.AllDerivedFrom(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(all) != 2 {
+		t.Errorf("AllDerivedFrom has %d entries, want 2: %v", len(all), all)
+	}
+	if _, ok := all[a]; ok {
+		t.Errorf("run %s, derived from nothing, is in the map as derived from %q", a, all[a])
+	}
+	for _, run := range []pipeline.RunID{a, b, c} {
+		want, err := l.DerivedFrom(ctx, run)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if all[run] != want {
+			t.Errorf("AllDerivedFrom[%s] = %q, DerivedFrom says %q", run, all[run], want)
+		}
+	}
+	if all[c] != b || all[b] != a {
+		t.Errorf("AllDerivedFrom = %v, want %s→%s and %s→%s", all, c, b, b, a)
+	}
+}

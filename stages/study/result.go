@@ -45,6 +45,11 @@ type Result struct {
 	Detected5Sigma *bool              `json:"detected_5sigma,omitempty"`
 	Key            string             `json:"key"`
 	Error          string             `json:"error,omitempty"`
+	// Row is the N of "trace RUN#N" for this result: its position, from 1,
+	// among the run's recorded results. It is set only where a command
+	// writes results as JSON (run --json, predict --json) and is 0, so
+	// omitted, for a failed result, which is never recorded as a result.
+	Row int `json:"row,omitempty"`
 }
 
 // Band is the span of a reheating band's predictions, with the histories

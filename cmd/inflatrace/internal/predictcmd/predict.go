@@ -601,6 +601,15 @@ func Run(ctx context.Context, o *Options) error {
 		return fmt.Errorf("predict: the run gave no result")
 	}
 	if o.JSON {
+		// Each result carries its N of RUN#N, as the text table's # column
+		// numbers it; a failed result has none.
+		row := 0
+		for i := range out.Results {
+			if out.Results[i].Error == "" {
+				row++
+				out.Results[i].Row = row
+			}
+		}
 		var v any = out.Results
 		if len(out.Results) == 1 {
 			v = out.Results[0]

@@ -116,6 +116,7 @@ func Run(ctx context.Context, o *Options) error {
 	w := o.Env.Stdout
 	wrote := 0
 	var numbering app.ResultNumbering
+	jsonRow := 0 // the row of the last recorded result written as JSON
 	emit := func(run pipeline.RunID, rs []study.Result) error {
 		if o.JSON {
 			// One JSON object, written as the results arrive: run first,
@@ -124,6 +125,12 @@ func Run(ctx context.Context, o *Options) error {
 				fmt.Fprintf(w, "{\n  \"run\": %q,\n  \"results\": [", run)
 			}
 			for _, r := range rs {
+				// The N of RUN#N, counted as the text table counts it:
+				// every result but a failed one takes the next number.
+				if r.Error == "" {
+					jsonRow++
+					r.Row = jsonRow
+				}
 				b, err := json.MarshalIndent(r, "    ", "  ")
 				if err != nil {
 					return err

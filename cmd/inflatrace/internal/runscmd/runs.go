@@ -1,5 +1,5 @@
 // Package runscmd implements "inflatrace runs": the recorded runs, newest
-// first, with their tags, optionally only the study runs or only the
+// first, with their tags and the run each was derived from, optionally only the study runs or only the
 // one-off predict runs.
 package runscmd
 
@@ -64,6 +64,9 @@ type Row struct {
 	Reused      int      `json:"reused"`
 	Failed      int      `json:"failed"`
 	Results     int      `json:"results"`
+	// DerivedFrom is the run this one was re-run from (run --from RUN);
+	// omitted for a run of a configuration given directly.
+	DerivedFrom string `json:"derived_from,omitempty"`
 }
 
 // KindOf tells a predict run from a study run by the configuration path
@@ -97,6 +100,10 @@ func Run(ctx context.Context, o *Options) error {
 	if err != nil {
 		return err
 	}
+	derived, err := l.AllDerivedFrom(ctx)
+	if err != nil {
+		return err
+	}
 	rows := []Row{}
 	table := [][]string{}
 	for _, r := range runs {
@@ -114,13 +121,14 @@ func Run(ctx context.Context, o *Options) error {
 		}
 		row := Row{Run: string(r.ID), Kind: kind, Tags: t, Started: r.Started.UTC().Format(time.RFC3339), Finished: fin,
 			Status: string(r.Status), ToolVersion: r.ToolVersion, Config: r.ConfigPath, ConfigHash: r.ConfigHash,
-			Computed: r.Computed, Reused: r.Reused, Failed: r.Failed, Results: r.Results}
+			Computed: r.Computed, Reused: r.Reused, Failed: r.Failed, Results: r.Results,
+			DerivedFrom: string(derived[r.ID])}
 		rows = append(rows, row)
 		table = append(table, []string{row.Run, row.Started, row.Status, strconv.Itoa(r.Computed),
-			strconv.Itoa(r.Reused), strconv.Itoa(r.Failed), strconv.Itoa(r.Results), strings.Join(t, ","), r.ConfigPath})
+			strconv.Itoa(r.Reused), strconv.Itoa(r.Failed), strconv.Itoa(r.Results), row.DerivedFrom, strings.Join(t, ","), r.ConfigPath})
 	}
 	if o.JSON {
 		return app.JSON(o.Env.Stdout, rows)
 	}
-	return o.Env.Table(o.Env.Stdout, []string{"run", "started", "status", "computed", "reused", "failed", "results", "tags", "config"}, table)
+	return o.Env.Table(o.Env.Stdout, []string{"run", "started", "status", "computed", "reused", "failed", "results", "derived_from", "tags", "config"}, table)
 }
