@@ -406,39 +406,15 @@ func (o *Options) Config() (string, source, error) {
 	}
 	b.WriteString("\n")
 
-	n := 0
 	constraints := o.Constrain
 	if len(o.Constrain) == 0 && len(o.ConFiles) == 0 {
 		constraints = []string{DefaultConstraint}
 	}
-	for _, c := range constraints {
-		fmt.Fprintf(&b, "[[constraint]]\nuse = %s\n\n", strconv.Quote(c))
-		src.table(fmt.Sprintf("constraint[%d]", n), "--constraint "+c)
-		n++
+	if err := writeSets(&b, src, "constraint", constraints, o.ConFiles); err != nil {
+		return "", nil, err
 	}
-	for _, f := range o.ConFiles {
-		abs, err := filepath.Abs(f)
-		if err != nil {
-			return "", nil, fmt.Errorf("--constraint-file %s: %w", f, err)
-		}
-		fmt.Fprintf(&b, "[[constraint]]\nfile = %s\n\n", strconv.Quote(abs))
-		src.table(fmt.Sprintf("constraint[%d]", n), "--constraint-file "+f)
-		n++
-	}
-	n = 0
-	for _, c := range o.Forecasts {
-		fmt.Fprintf(&b, "[[forecast]]\nuse = %s\n\n", strconv.Quote(c))
-		src.table(fmt.Sprintf("forecast[%d]", n), "--forecast "+c)
-		n++
-	}
-	for _, f := range o.ForeFiles {
-		abs, err := filepath.Abs(f)
-		if err != nil {
-			return "", nil, fmt.Errorf("--forecast-file %s: %w", f, err)
-		}
-		fmt.Fprintf(&b, "[[forecast]]\nfile = %s\n\n", strconv.Quote(abs))
-		src.table(fmt.Sprintf("forecast[%d]", n), "--forecast-file "+f)
-		n++
+	if err := writeSets(&b, src, "forecast", o.Forecasts, o.ForeFiles); err != nil {
+		return "", nil, err
 	}
 
 	m := "model[0]"
@@ -537,6 +513,28 @@ func (s source) flagError(err error) error {
 		return fmt.Errorf("predict: %s: %s", ce.Path, ce.Msg)
 	}
 	return fmt.Errorf("predict: %s", ce.Msg)
+}
+
+// writeSets writes one [[table]] entry per shipped name (flag --table) and
+// per file (flag --table-file, by absolute path), and records which flag
+// gave each entry so that errors name it.
+func writeSets(b *strings.Builder, src source, table string, uses, files []string) error {
+	n := 0
+	for _, c := range uses {
+		fmt.Fprintf(b, "[[%s]]\nuse = %s\n\n", table, strconv.Quote(c))
+		src.table(fmt.Sprintf("%s[%d]", table, n), "--"+table+" "+c)
+		n++
+	}
+	for _, f := range files {
+		abs, err := filepath.Abs(f)
+		if err != nil {
+			return fmt.Errorf("--%s-file %s: %w", table, f, err)
+		}
+		fmt.Fprintf(b, "[[%s]]\nfile = %s\n\n", table, strconv.Quote(abs))
+		src.table(fmt.Sprintf("%s[%d]", table, n), "--"+table+"-file "+f)
+		n++
+	}
+	return nil
 }
 
 // tomlFloat writes x as a TOML float (nan and inf spelt as TOML spells
