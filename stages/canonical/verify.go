@@ -171,16 +171,14 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 // quadrature then fails to converge (two-plateau, alpha = 1), where the
 // one in x, whose neighbourhood of the edge is short, converges.
 func quadratureOfSqrtK(nf *model.NativeField, quad *num.QuadSettings, floor float64) func(x float64) (float64, error) {
-	// settle accepts a quadrature that stopped short of its own tolerance
+	// settle accepts (num.AcceptAtFloor) a quadrature that stopped short of its own tolerance
 	// only when its error estimate is still far (floor, a thousandth of
 	// the check's tolerance, relative) below what the check resolves: near a
 	// pole of K the integrand is known only to the rounding of x relative
 	// to the pole, so no partition reaches 1e-13 there, while the
 	// comparison with the analytic map is still decisive.
 	settle := func(q num.QuadResult, err error) (float64, error) {
-		if err != nil && q.ErrEst <= floor*math.Max(1, math.Abs(q.Value)) && !math.IsNaN(q.Value) && !math.IsInf(q.Value, 0) {
-			return q.Value, nil
-		}
+		q, err = num.AcceptAtFloor(q, err, floor)
 		return q.Value, err
 	}
 

@@ -143,3 +143,16 @@ func Integrate(f func(float64) float64, a, b float64, s *QuadSettings) (QuadResu
 	res.Value, res.ErrEst, res.Intervals = sign*total, totalErr, len(pieces)
 	return res, nil
 }
+
+// AcceptAtFloor passes a converged quadrature, and one that stopped short
+// of its own tolerance whose finite value has an error estimate at most
+// floor relative to it (max(1, |value|)): for an integrand known only to
+// its rounding (near a pole, say), where no partition reaches the
+// requested tolerance but the caller needs far less. Other failures stay
+// errors.
+func AcceptAtFloor(r QuadResult, err error, floor float64) (QuadResult, error) {
+	if err != nil && !math.IsNaN(r.Value) && !math.IsInf(r.Value, 0) && r.ErrEst <= floor*math.Max(1, math.Abs(r.Value)) {
+		return r, nil
+	}
+	return r, err
+}

@@ -275,11 +275,7 @@ func (sol *Solution) Evaluate(N float64) (Point, Observables, error) {
 // count good to 1e-9 moves n_s by less than 1e-11.
 const quadFloor = 1e-9
 
-// settleQuad passes a converged quadrature, and one whose error estimate
-// is below quadFloor relative to its value; other failures stay errors.
+// settleQuad is num.AcceptAtFloor at quadFloor.
 func settleQuad(r num.QuadResult, err error) (num.QuadResult, error) {
-	if err != nil && finite(r.Value) && r.ErrEst <= quadFloor*math.Max(1, math.Abs(r.Value)) {
-		return r, nil
-	}
-	return r, err
+	return num.AcceptAtFloor(r, err, quadFloor)
 }
