@@ -22,6 +22,7 @@ func TestDependencyDirections(t *testing.T) {
 		{"stages/compare", []string{mod + "pipeline", mod + "ledger", mod + "cmd", "github.com/mattn/go-sqlite3", "github.com/pelletier/go-toml", "github.com/spf13/cobra"}},
 		{"stages/nodes", []string{mod + "ledger", mod + "cmd", "github.com/mattn/go-sqlite3", "github.com/spf13/cobra"}},
 		{"stages/study", []string{mod + "ledger", mod + "cmd", "github.com/mattn/go-sqlite3", "github.com/spf13/cobra"}},
+		{"stages/study/revision", []string{mod + "ledger", mod + "cmd", "github.com/mattn/go-sqlite3", "github.com/spf13/cobra"}},
 		{"pipeline", []string{mod + "stages", mod + "ledger", mod + "cmd", "github.com/mattn/go-sqlite3", "github.com/spf13/cobra", "github.com/pelletier/go-toml", "github.com/goccy/go-graphviz"}},
 		{"ledger", []string{mod + "stages", mod + "cmd", "github.com/spf13/cobra"}},
 	}

@@ -57,7 +57,8 @@ func TestDiffAcrossStudyShapes(t *testing.T) {
 				Remainder     float64
 			} `json:"changes"`
 		} `json:"pairs"`
-		Unpaired []string `json:"unpaired"`
+		Removed []struct{ Label string } `json:"removed"`
+		Added   []struct{ Label string } `json:"added"`
 	}
 	if err := json.Unmarshal([]byte(out), &rep); err != nil {
 		t.Fatalf("%v\n%s", err, out)
@@ -65,17 +66,9 @@ func TestDiffAcrossStudyShapes(t *testing.T) {
 	if len(rep.Pairs) != 2 {
 		t.Errorf("%d pairs, want 2 (alpha = 1, 2)", len(rep.Pairs))
 	}
-	var removed, added int
-	for _, u := range rep.Unpaired {
-		switch {
-		case strings.HasPrefix(u, "removed") && strings.Contains(u, "alpha=3"):
-			removed++
-		case strings.HasPrefix(u, "added") && strings.Contains(u, "starobinsky"):
-			added++
-		}
-	}
-	if removed != 1 || added != 1 {
-		t.Errorf("unpaired %q: want alpha=3 removed and starobinsky added", rep.Unpaired)
+	if len(rep.Removed) != 1 || !strings.Contains(rep.Removed[0].Label, "alpha=3") ||
+		len(rep.Added) != 1 || !strings.Contains(rep.Added[0].Label, "starobinsky") {
+		t.Errorf("removed %+v, added %+v: want alpha=3 removed and starobinsky added", rep.Removed, rep.Added)
 	}
 	for _, p := range rep.Pairs {
 		ns, ok := p.Changes["n_s"]

@@ -1,4 +1,4 @@
-package provenance
+package revision
 
 import (
 	"context"
@@ -11,29 +11,56 @@ import (
 	"sync"
 	"time"
 
-	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/nodes"
 	"github.com/inflatrace/inflatrace/stages/study"
 )
 
-// MaxAttributed bounds the number of configuration differences attributed
-// (the Shapley decomposition evaluates 2^n configurations).
-const MaxAttributed = 10
+// MaxAttributed bounds the number of assumptions attributed one by one:
+// the Shapley decomposition evaluates 2^k intermediate configurations for
+// k assumptions. Beyond it the differing fields are grouped, first by
+// table entry (the fields of model[2] or of reheating[0] switch
+// together), then by section (model, reheating, slow_roll, ...), and each
+// group is attributed as one assumption; Report.Grouping says which.
+const MaxAttributed = 8
+
+// Kinds of assumption.
+const (
+	KindConfig         = "config"
+	KindStageVersion   = "stage-version"
+	KindToolVersion    = "tool-version"
+	KindConstraintData = "constraint-data"
+)
+
+// Groupings of configuration fields into attributed assumptions.
+const (
+	ByField   = "field"
+	ByEntry   = "entry"
+	BySection = "section"
+)
 
 // Run is what the comparison needs of one recorded run.
 type Run struct {
-	Detail  ledger.RunDetail
-	Nodes   []ledger.RunNode
+	ID          pipeline.RunID
+	ConfigText  string
+	ToolVersion string
+	// Nodes are the nodes the run linked; their stages, versions and
+	// parameters give the stage versions and constraint data it used.
+	Nodes []pipeline.NodeRecord
+	// Results are in recorded order: Results[i] is RUN#(i+1).
 	Results []study.Result
 }
 
 // Assumption is one thing that differs between the runs.
 type Assumption struct {
-	Kind       string // "config", "stage-version", "tool-version", "constraint-data"
-	What       string // human description
-	Attributed bool   // whether the attribution evaluates it
-	config     *Difference
+	Kind string `json:"kind"`
+	// Name is short: the field's path, the group's entry or section, or
+	// the stage; it is what a main cause names.
+	Name       string   `json:"name"`
+	What       string   `json:"what"`
+	Attributed bool     `json:"attributed"`
+	Fields     []string `json:"fields,omitempty"` // the configuration paths it switches
+	diffs      []Difference
 }
 
 // Quantities compared for each paired result.
@@ -41,32 +68,78 @@ var Quantities = []string{"N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_
 
 // Change is the change of one quantity of one paired result.
 type Change struct {
-	A, B, Total float64
+	A     float64 `json:"a"`
+	B     float64 `json:"b"`
+	Total float64 `json:"total"`
 	// Contributions holds one entry per attributed assumption, in the
-	// order of Report.Assumptions' attributed entries.
-	Contributions []float64
+	// order of Report.Attributed.
+	Contributions []float64 `json:"contributions"`
 	// Remainder is Total minus the contributions: the effect of what could
 	// not be re-evaluated, plus rounding.
-	Remainder float64
+	Remainder float64 `json:"remainder"`
+	// MainCause names the assumption with the largest share of Total (the
+	// non-re-evaluable ones together when the remainder is largest); it
+	// is empty when nothing changed, and "not separated: ..." when the
+	// pair could not be attributed.
+	MainCause string `json:"main_cause,omitempty"`
+	// Share is the main cause's part of Total (1 = all of it); 0 when
+	// MainCause is empty or not separated.
+	Share float64 `json:"share,omitempty"`
 }
 
 // Pair is a result of run A and its counterpart in run B.
 type Pair struct {
-	LabelA, LabelB string
-	Changes        map[string]Change
+	RowA    int               `json:"row_a"` // the N of A#N
+	RowB    int               `json:"row_b"`
+	LabelA  string            `json:"label_a"`
+	LabelB  string            `json:"label_b"`
+	Changes map[string]Change `json:"changes"`
 	// Unseparated names the intermediate configurations that failed for
 	// this pair or do not contain it; when set, Changes carry the total
 	// only (Contributions zero, Remainder the total).
-	Unseparated []string
+	Unseparated []string `json:"not_separated,omitempty"`
+}
+
+// Changed reports whether any quantity of the pair differs.
+func (p Pair) Changed() bool {
+	for _, c := range p.Changes {
+		if c.Total != 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// Unpaired is a result present in one run only.
+type Unpaired struct {
+	Row   int    `json:"row"`
+	Label string `json:"label"`
 }
 
 // Report is the comparison of two runs.
 type Report struct {
-	A, B        pipeline.RunID
-	Assumptions []Assumption
-	Pairs       []Pair
-	Unpaired    []string // results present in one run only
-	Evaluated   int      // intermediate configurations evaluated
+	A           pipeline.RunID `json:"run_a"`
+	B           pipeline.RunID `json:"run_b"`
+	Assumptions []Assumption   `json:"assumptions"`
+	// Grouping is how configuration fields became attributed assumptions:
+	// ByField, or ByEntry or BySection beyond MaxAttributed fields.
+	Grouping  string     `json:"grouping"`
+	Pairs     []Pair     `json:"pairs"`
+	Removed   []Unpaired `json:"removed"` // in A only
+	Added     []Unpaired `json:"added"`   // in B only
+	Evaluated int        `json:"configurations_evaluated"`
+}
+
+// Attributed returns the attributed assumptions, in the order of each
+// Change's Contributions.
+func (r *Report) Attributed() []Assumption {
+	var out []Assumption
+	for _, a := range r.Assumptions {
+		if a.Attributed {
+			out = append(out, a)
+		}
+	}
+	return out
 }
 
 func quantity(r study.Result, q string) (float64, bool) {
@@ -85,64 +158,105 @@ func quantity(r study.Result, q string) (float64, bool) {
 	case "n_t":
 		return r.Nt, true
 	case "energy_scale_GeV":
-		if r.EnergyScaleGeV != nil {
-			return *r.EnergyScaleGeV, true
-		}
+		return opt(r.EnergyScaleGeV)
 	case "H_star_GeV":
-		if r.HStarGeV != nil {
-			return *r.HStarGeV, true
-		}
+		return opt(r.HStarGeV)
 	case "T_reh_GeV":
-		if r.TRehGeV != nil {
-			return *r.TRehGeV, true
-		}
+		return opt(r.TRehGeV)
 	case "detection_sigma":
-		if r.DetectionSigma != nil {
-			return *r.DetectionSigma, true
-		}
+		return opt(r.DetectionSigma)
 	case "delta_chi2":
-		if r.DeltaChi2 != nil {
-			return *r.DeltaChi2, true
-		}
+		return opt(r.DeltaChi2)
 	case "n_sigma":
-		if r.NSigma != nil {
-			return *r.NSigma, true
-		}
+		return opt(r.NSigma)
 	}
 	return 0, false
 }
 
-// Assumptions lists what differs between the runs.
-func Assumptions(a, b Run) ([]Assumption, error) {
-	ta, err := parseTree(a.Detail.ConfigText)
+func opt(p *float64) (float64, bool) {
+	if p == nil {
+		return 0, false
+	}
+	return *p, true
+}
+
+// Differing lists what differs between the runs, the configuration fields
+// grouped as the attribution will take them (see MaxAttributed).
+func Differing(a, b Run) ([]Assumption, string, error) {
+	ta, err := parseTree(a.ConfigText)
 	if err != nil {
-		return nil, fmt.Errorf("run %s configuration: %w", a.Detail.ID, err)
+		return nil, "", fmt.Errorf("run %s configuration: %w", a.ID, err)
 	}
-	tb, err := parseTree(b.Detail.ConfigText)
+	tb, err := parseTree(b.ConfigText)
 	if err != nil {
-		return nil, fmt.Errorf("run %s configuration: %w", b.Detail.ID, err)
+		return nil, "", fmt.Errorf("run %s configuration: %w", b.ID, err)
 	}
-	var out []Assumption
-	for _, d := range Differences(ta, tb) {
-		d := d
-		out = append(out, Assumption{Kind: "config", What: d.String(), Attributed: true, config: &d})
+	out, grouping, err := group(Differences(ta, tb))
+	if err != nil {
+		return nil, "", err
 	}
-	if a.Detail.ToolVersion != b.Detail.ToolVersion {
-		out = append(out, Assumption{Kind: "tool-version", What: fmt.Sprintf("inflatrace %s -> %s", a.Detail.ToolVersion, b.Detail.ToolVersion)})
+	if a.ToolVersion != b.ToolVersion {
+		out = append(out, Assumption{Kind: KindToolVersion, Name: "tool version", What: fmt.Sprintf("inflatrace %s -> %s", a.ToolVersion, b.ToolVersion)})
 	}
 	va, vb := stageVersions(a), stageVersions(b)
 	for _, st := range sortedKeys(va, vb) {
-		if va[st] != vb[st] {
-			out = append(out, Assumption{Kind: "stage-version", What: fmt.Sprintf("stage %s v%s -> v%s", st, va[st], vb[st])})
+		if va[st] != "" && vb[st] != "" && va[st] != vb[st] {
+			out = append(out, Assumption{Kind: KindStageVersion, Name: "stage " + st + " version", What: fmt.Sprintf("stage %s v%s -> v%s", st, va[st], vb[st])})
 		}
 	}
 	ca, cb := constraintData(a), constraintData(b)
 	for _, name := range sortedKeys(ca, cb) {
 		if ca[name] != "" && cb[name] != "" && ca[name] != cb[name] {
-			out = append(out, Assumption{Kind: "constraint-data", What: fmt.Sprintf("constraint set %s: %s -> %s", name, ca[name], cb[name])})
+			out = append(out, Assumption{Kind: KindConstraintData, Name: "constraint data " + name, What: fmt.Sprintf("constraint set %s: %s -> %s", name, ca[name], cb[name])})
 		}
 	}
-	return out, nil
+	return out, grouping, nil
+}
+
+// group makes the attributed assumptions of the differing fields: one per
+// field, or, beyond MaxAttributed, one per table entry, then one per
+// section.
+func group(ds []Difference) ([]Assumption, string, error) {
+	levels := []struct {
+		name string
+		key  func(path string) string
+	}{
+		{ByField, func(p string) string { return p }},
+		{ByEntry, func(p string) string { s, _, _ := strings.Cut(p, "."); return s }},
+		{BySection, func(p string) string {
+			if i := strings.IndexAny(p, ".["); i >= 0 {
+				return p[:i]
+			}
+			return p
+		}},
+	}
+	for _, lv := range levels {
+		var out []Assumption
+		at := map[string]int{}
+		for _, d := range ds {
+			k := lv.key(d.Path)
+			i, ok := at[k]
+			if !ok {
+				i = len(out)
+				at[k] = i
+				out = append(out, Assumption{Kind: KindConfig, Name: k, Attributed: true})
+			}
+			out[i].diffs = append(out[i].diffs, d)
+			out[i].Fields = append(out[i].Fields, d.Path)
+		}
+		if len(out) > MaxAttributed {
+			continue
+		}
+		for i := range out {
+			var ws []string
+			for _, d := range out[i].diffs {
+				ws = append(ws, d.String())
+			}
+			out[i].What = strings.Join(ws, "; ")
+		}
+		return out, lv.name, nil
+	}
+	return nil, "", fmt.Errorf("%d configuration fields differ, in more than %d sections; attribution evaluates 2^k configurations and is limited to %d assumptions: compare through an intermediate run (run --from)", len(ds), MaxAttributed, MaxAttributed)
 }
 
 func stageVersions(r Run) map[string]string {
@@ -196,48 +310,52 @@ func sortedKeys(a, b map[string]string) []string {
 type Evaluate func(ctx context.Context, configText string) ([]study.Result, error)
 
 // Compare builds the report. eval evaluates an intermediate configuration
-// (through the cached DAG); it is called for each of the 2^n subsets of
-// the n attributed assumptions, including run A's and run B's own
+// (through the cached DAG); it is called for each of the 2^k subsets of
+// the k attributed assumptions, including run A's and run B's own
 // configurations.
 func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
-	as, err := Assumptions(a, b)
+	as, grouping, err := Differing(a, b)
 	if err != nil {
 		return nil, err
 	}
-	rep := &Report{A: a.Detail.ID, B: b.Detail.ID, Assumptions: as}
-	var attributed []Difference
+	rep := &Report{A: a.ID, B: b.ID, Assumptions: as, Grouping: grouping}
+	attributed := rep.Attributed()
+	var others []Assumption
+	var all []Difference
 	for _, x := range as {
-		if x.Attributed {
-			attributed = append(attributed, *x.config)
+		if !x.Attributed {
+			others = append(others, x)
 		}
-	}
-	if len(attributed) > MaxAttributed {
-		return nil, fmt.Errorf("%d configuration fields differ; attribution evaluates 2^n configurations and is limited to %d", len(attributed), MaxAttributed)
+		all = append(all, x.diffs...)
 	}
 	// Results pair by identity (model, parameters, reheating, method,
 	// end, constraint), never by position; see pairResults.
-	sections := diffSections(attributed)
-	pairs, onlyA, onlyB := pairResults(a.Results, b.Results, sections)
+	pairs, onlyA, onlyB := pairResults(a.Results, b.Results, diffSections(all))
 	for _, i := range onlyA {
-		rep.Unpaired = append(rep.Unpaired, "removed (A only): "+a.Results[i].Label)
+		rep.Removed = append(rep.Removed, Unpaired{i + 1, a.Results[i].Label})
 	}
 	for _, j := range onlyB {
-		rep.Unpaired = append(rep.Unpaired, "added (B only): "+b.Results[j].Label)
+		rep.Added = append(rep.Added, Unpaired{j + 1, b.Results[j].Label})
 	}
-	// v[S][pair][quantity] for every subset S of the attributed
-	// differences; a nil map where configuration S failed or lacks the pair.
-	n := len(attributed)
-	ta, err := parseTree(a.Detail.ConfigText)
+	ta, err := parseTree(a.ConfigText)
 	if err != nil {
 		return nil, err
 	}
+	// values[S][pair][quantity] for every subset S of the attributed
+	// assumptions; a nil map where configuration S failed or lacks the pair.
+	n := len(attributed)
 	values := make([][]map[string]float64, 1<<n)
 	missing := make([][]string, len(pairs)) // per pair: the subsets that could not be evaluated for it
 	for mask := 0; mask < 1<<n; mask++ {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		var sub []Difference
+		var names []string
 		for i := 0; i < n; i++ {
 			if mask&(1<<i) != 0 {
-				sub = append(sub, attributed[i])
+				sub = append(sub, attributed[i].diffs...)
+				names = append(names, attributed[i].Name)
 			}
 		}
 		values[mask] = make([]map[string]float64, len(pairs))
@@ -249,6 +367,9 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 			if text, err = render(tree); err == nil {
 				res, err = eval(ctx, text)
 			}
+		}
+		if ctx.Err() != nil {
+			return nil, ctx.Err()
 		}
 		if err == nil {
 			// Configuration S is paired with A as B is, over the
@@ -263,7 +384,7 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 		for p, pr := range pairs {
 			ri, ok := idx[pr.i]
 			if !ok || ri >= len(res) || res[ri].Error != "" {
-				missing[p] = append(missing[p], describeSubset(sub))
+				missing[p] = append(missing[p], describeSubset(names))
 				continue
 			}
 			m := map[string]float64{}
@@ -278,7 +399,7 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 	weights := shapleyWeights(n)
 	for p, pr := range pairs {
 		ra, rb := a.Results[pr.i], b.Results[pr.j]
-		pair := Pair{LabelA: ra.Label, LabelB: rb.Label, Changes: map[string]Change{}, Unseparated: missing[p]}
+		pair := Pair{RowA: pr.i + 1, RowB: pr.j + 1, LabelA: ra.Label, LabelB: rb.Label, Changes: map[string]Change{}, Unseparated: missing[p]}
 		for _, q := range Quantities {
 			xa, okA := quantity(ra, q)
 			xb, okB := quantity(rb, q)
@@ -299,18 +420,52 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 						if mask&(1<<i) != 0 {
 							continue
 						}
-						size := popcount(mask)
-						c.Contributions[i] += weights[size] * (values[mask|1<<i][p][q] - values[mask][p][q])
+						c.Contributions[i] += weights[popcount(mask)] * (values[mask|1<<i][p][q] - values[mask][p][q])
 					}
 					sum += c.Contributions[i]
 				}
 			}
 			c.Remainder = c.Total - sum
+			c.MainCause, c.Share = mainCause(c, attributed, others, complete)
 			pair.Changes[q] = c
 		}
 		rep.Pairs = append(rep.Pairs, pair)
 	}
 	return rep, nil
+}
+
+// mainCause names the assumption that moved c the most, with its share
+// of the total.
+func mainCause(c Change, attributed, others []Assumption, separated bool) (string, float64) {
+	if c.Total == 0 {
+		return "", 0
+	}
+	names := func(as []Assumption) string {
+		var ns []string
+		for _, a := range as {
+			ns = append(ns, a.Name)
+		}
+		return strings.Join(ns, " + ")
+	}
+	if !separated {
+		if len(attributed) == 1 && len(others) == 0 {
+			return attributed[0].Name, 1
+		}
+		return "not separated: " + names(append(append([]Assumption(nil), attributed...), others...)), 0
+	}
+	best := -1
+	for i, x := range c.Contributions {
+		if best < 0 || math.Abs(x) > math.Abs(c.Contributions[best]) {
+			best = i
+		}
+	}
+	if best < 0 || math.Abs(c.Remainder) > math.Abs(c.Contributions[best]) {
+		if len(others) == 0 {
+			return "remainder (rounding)", c.Remainder / c.Total
+		}
+		return names(others), c.Remainder / c.Total
+	}
+	return attributed[best].Name, c.Contributions[best] / c.Total
 }
 
 // shapleyWeights returns w[s] = s! (n - s - 1)! / n! for coalition size s.
@@ -332,23 +487,27 @@ func popcount(x int) int {
 	return n
 }
 
-func describeSubset(sub []Difference) string {
-	if len(sub) == 0 {
+// describeSubset names an intermediate configuration by the assumptions
+// switched to run B's value.
+func describeSubset(names []string) string {
+	if len(names) == 0 {
 		return "(run A's)"
 	}
-	var ps []string
-	for _, d := range sub {
-		ps = append(ps, d.Path)
-	}
-	return "{" + strings.Join(ps, ", ") + "}"
+	return "{" + strings.Join(names, ", ") + "}"
 }
 
-// ReadThrough is a Recorder that finds nodes in a ledger (and in what it
-// computed itself) but writes nothing to the ledger: intermediate
+// Finder finds recorded nodes by key: the read half of a
+// pipeline.Recorder (a ledger).
+type Finder interface {
+	Lookup(ctx context.Context, k pipeline.KeyID) (pipeline.NodeRecord, bool, error)
+}
+
+// ReadThrough is a Recorder that finds nodes in a store (and in what it
+// computed itself) but writes nothing to the store: intermediate
 // configurations are evaluated through the cached DAG without being
 // recorded as runs.
 type ReadThrough struct {
-	L     *ledger.Ledger
+	L     Finder
 	mu    sync.Mutex
 	extra map[pipeline.KeyID]pipeline.NodeRecord
 }
@@ -445,21 +604,26 @@ func identity(r study.Result) map[string]string {
 var identitySections = []string{"model", "reheating", "slow_roll", "constraint"}
 
 // diffSections returns the configuration sections in which a value is
-// replaced by another single value ("model" for model[2].alpha = 1 -> 2,
-// "slow_roll" for slow_roll.method): there a result of A has one successor
+// replaced by another single value ("model" for model[2].alpha = 1 -> 2 or
+// for n = 2 written where the default was used, "slow_roll" for
+// slow_roll.method): there a result of A has one successor
 // in B. A list that grows or shrinks, or an entry added or removed, adds
 // and removes results instead, and pairs nothing across.
 func diffSections(ds []Difference) map[string]bool {
-	single := func(v any) bool {
+	// An absent field is its default: one value too, unless the whole
+	// entry is absent (a path ending in an index).
+	single := func(path string, v any) bool {
 		switch v.(type) {
-		case nil, []any, map[string]any:
+		case nil:
+			return !strings.HasSuffix(path, "]")
+		case []any, map[string]any:
 			return false
 		}
 		return true
 	}
 	out := map[string]bool{}
 	for _, d := range ds {
-		if !single(d.A) || !single(d.B) {
+		if !single(d.Path, d.A) || !single(d.Path, d.B) {
 			continue
 		}
 		sec := d.Path

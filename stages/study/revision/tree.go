@@ -1,4 +1,4 @@
-package provenance
+package revision
 
 import (
 	"fmt"
@@ -161,9 +161,28 @@ func (d Difference) String() string {
 	return fmt.Sprintf("%s: %s -> %s", d.Path, show(d.A), show(d.B))
 }
 
+// show writes a value as TOML on one line (tables inline).
 func show(v any) string {
-	if v == nil {
+	switch x := v.(type) {
+	case nil:
 		return "(absent)"
+	case map[string]any:
+		keys := make([]string, 0, len(x))
+		for k := range x {
+			keys = append(keys, k)
+		}
+		sort.Strings(keys)
+		parts := make([]string, len(keys))
+		for i, k := range keys {
+			parts[i] = k + " = " + show(x[k])
+		}
+		return "{" + strings.Join(parts, ", ") + "}"
+	case []any:
+		parts := make([]string, len(x))
+		for i, e := range x {
+			parts[i] = show(e)
+		}
+		return "[" + strings.Join(parts, ", ") + "]"
 	}
 	b, err := toml.Marshal(map[string]any{"v": v})
 	if err != nil {
