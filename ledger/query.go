@@ -387,3 +387,45 @@ func (l *Ledger) ResolveKey(ctx context.Context, ref string) (pipeline.KeyID, er
 	}
 	return pipeline.KeyID(keys[0]), nil
 }
+
+// NodeHead is a node's stage, stage version and parameters: what a
+// comparison of two runs' assumptions reads of each node.
+type NodeHead struct {
+	Stage   string
+	Version int
+	Params  pipeline.Values
+}
+
+// RunNodeHeads lists the stage, version and parameters of every node run
+// id linked, in the order it touched them, in one query: none of the
+// outputs, inputs or description checks of RunNodes (verify does those).
+func (l *Ledger) RunNodeHeads(ctx context.Context, id pipeline.RunID) ([]NodeHead, error) {
+	var out []NodeHead
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		if _, err := readRun(ctx, tx, id); err != nil {
+			return err
+		}
+		rows, err := tx.QueryContext(ctx, `SELECT n.stage, n.stage_version, n.params
+			FROM run_nodes rn JOIN nodes n ON n.id = rn.node WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var h NodeHead
+			var params string
+			if err := rows.Scan(&h.Stage, &h.Version, &params); err != nil {
+				return err
+			}
+			if h.Params, err = pipeline.DecodeValues([]byte(params)); err != nil {
+				return fmt.Errorf("%w: a node of run %s: stored parameters: %v", ErrIntegrity, id, err)
+			}
+			out = append(out, h)
+		}
+		return rows.Err()
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: nodes of run %s: %w", id, err)
+	}
+	return out, nil
+}

@@ -46,9 +46,16 @@ type Run struct {
 	ToolVersion string
 	// Nodes are the nodes the run linked; their stages, versions and
 	// parameters give the stage versions and constraint data it used.
-	Nodes []pipeline.NodeRecord
+	Nodes []Node
 	// Results are in recorded order: Results[i] is RUN#(i+1).
 	Results []study.Result
+}
+
+// Node is what the comparison reads of a node a run linked.
+type Node struct {
+	Stage   string
+	Version int
+	Params  pipeline.Values
 }
 
 // Assumption is one thing that differs between the runs.
@@ -515,7 +522,9 @@ type ReadThrough struct {
 // BeginRun implements pipeline.Recorder; nothing is written.
 func (r *ReadThrough) BeginRun(context.Context, pipeline.RunInfo) error { return nil }
 
-// Lookup implements pipeline.Recorder.
+// Lookup implements pipeline.Recorder. A node found in the store is kept
+// in memory too: the 2^k intermediate configurations share most of their
+// nodes, and each is read from the store once.
 func (r *ReadThrough) Lookup(ctx context.Context, k pipeline.KeyID) (pipeline.NodeRecord, bool, error) {
 	r.mu.Lock()
 	n, ok := r.extra[k]
@@ -523,18 +532,26 @@ func (r *ReadThrough) Lookup(ctx context.Context, k pipeline.KeyID) (pipeline.No
 	if ok {
 		return n, true, nil
 	}
-	return r.L.Lookup(ctx, k)
+	n, ok, err := r.L.Lookup(ctx, k)
+	if err == nil && ok {
+		r.keep(n)
+	}
+	return n, ok, err
+}
+
+func (r *ReadThrough) keep(n pipeline.NodeRecord) {
+	r.mu.Lock()
+	if r.extra == nil {
+		r.extra = map[pipeline.KeyID]pipeline.NodeRecord{}
+	}
+	r.extra[n.Key] = n
+	r.mu.Unlock()
 }
 
 // RecordNode implements pipeline.Recorder; computed nodes are kept in memory.
 func (r *ReadThrough) RecordNode(_ context.Context, _ pipeline.RunID, n pipeline.NodeRecord, a pipeline.Action) error {
 	if a == pipeline.Computed {
-		r.mu.Lock()
-		if r.extra == nil {
-			r.extra = map[pipeline.KeyID]pipeline.NodeRecord{}
-		}
-		r.extra[n.Key] = n
-		r.mu.Unlock()
+		r.keep(n)
 	}
 	return nil
 }

@@ -17,7 +17,6 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tables"
 	"github.com/inflatrace/inflatrace/ledger"
-	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/study/revision"
 )
 
@@ -114,13 +113,13 @@ func load(ctx context.Context, l *ledger.Ledger, ref string) (revision.Run, stri
 	if err != nil {
 		return revision.Run{}, "", err
 	}
-	ns, err := l.RunNodes(ctx, d.ID)
+	ns, err := l.RunNodeHeads(ctx, d.ID)
 	if err != nil {
 		return revision.Run{}, "", err
 	}
-	recs := make([]pipeline.NodeRecord, len(ns))
+	recs := make([]revision.Node, len(ns))
 	for i, n := range ns {
-		recs[i] = n.NodeRecord
+		recs[i] = revision.Node{Stage: n.Stage, Version: n.Version, Params: n.Params}
 	}
 	return revision.Run{ID: d.ID, ConfigText: d.ConfigText, ToolVersion: d.ToolVersion, Nodes: recs, Results: rs}, d.ConfigPath, nil
 }
