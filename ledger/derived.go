@@ -75,3 +75,64 @@ func (l *Ledger) AllDerivedFrom(ctx context.Context) (map[pipeline.RunID]pipelin
 	}
 	return out, nil
 }
+
+// nullRun is a run reference as a column value: NULL for none.
+func nullRun(id pipeline.RunID) any {
+	if id == "" {
+		return nil
+	}
+	return string(id)
+}
+
+// insertParts records the runs run assembles, in order.
+func insertParts(ctx context.Context, tx *qtx, run pipeline.RunID, parts []pipeline.RunID) error {
+	for i, p := range parts {
+		if _, err := tx.ExecContext(ctx, "INSERT INTO run_parts (run_id, position, part) VALUES (?, ?, ?)", string(run), i, string(p)); err != nil {
+			return fmt.Errorf("run %s part %d (%s): %w", run, i, p, err)
+		}
+	}
+	return nil
+}
+
+// readParts returns the runs run assembles, in order (nil for none).
+func readParts(ctx context.Context, tx *qtx, run pipeline.RunID) ([]pipeline.RunID, error) {
+	rows, err := tx.QueryContext(ctx, "SELECT part FROM run_parts WHERE run_id = ? ORDER BY position", string(run))
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	var out []pipeline.RunID
+	for rows.Next() {
+		var p string
+		if err := rows.Scan(&p); err != nil {
+			return nil, err
+		}
+		out = append(out, pipeline.RunID(p))
+	}
+	return out, rows.Err()
+}
+
+// AllParts returns, in one query, the parts of every run that assembles
+// others, keyed by the assembling run.
+func (l *Ledger) AllParts(ctx context.Context) (map[pipeline.RunID][]pipeline.RunID, error) {
+	out := map[pipeline.RunID][]pipeline.RunID{}
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT run_id, part FROM run_parts ORDER BY run_id, position")
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var id, p string
+			if err := rows.Scan(&id, &p); err != nil {
+				return err
+			}
+			out[pipeline.RunID(id)] = append(out[pipeline.RunID(id)], pipeline.RunID(p))
+		}
+		return rows.Err()
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: list assembled runs: %w", err)
+	}
+	return out, nil
+}

@@ -85,3 +85,50 @@ func TestAllDerivedFrom(t *testing.T) {
 		t.Errorf("AllDerivedFrom = %v, want %s→%s and %s→%s", all, c, b, b, a)
 	}
 }
+
+// A run begun with DerivedFrom and Parts reads them back; a reference to
+// an unknown run refuses the run with ErrNotFound and writes nothing; a
+// merge into another ledger carries both where that ledger holds the
+// runs referred to.
+func TestBeginRunLinks(t *testing.T) {
+	l, _ := openTest(t)
+	ctx := context.Background()
+	a := beginRun(t, l, "20261202T050000Z-aaaaaa", testClock)
+	b := beginRun(t, l, "20261202T050001Z-bbbbbb", testClock.Add(time.Second))
+	for _, id := range []pipeline.RunID{a, b} {
+		if err := l.FinishRun(ctx, id, pipeline.RunSucceeded, testClock.Add(3*time.Second), ""); err != nil {
+			t.Fatal(err)
+		}
+	}
+	info := runInfo("20261202T050002Z-cccccc", testClock.Add(2*time.Second))
+	info.DerivedFrom, info.Parts = a, []pipeline.RunID{b, a}
+	if err := l.BeginRun(ctx, info); err != nil {
+		t.Fatal(err)
+	}
+	l.FinishRun(ctx, info.ID, pipeline.RunSucceeded, testClock.Add(4*time.Second), "")
+	d, err := l.Run(ctx, info.ID)
+	if err != nil || d.DerivedFrom != a || len(d.Parts) != 2 || d.Parts[0] != b || d.Parts[1] != a {
+		t.Fatalf("read back: derived %q parts %v (%v)", d.DerivedFrom, d.Parts, err)
+	}
+	if all, _ := l.AllParts(ctx); len(all) != 1 || len(all[info.ID]) != 2 {
+		t.Errorf("AllParts = %v", all)
+	}
+	for _, bad := range []pipeline.RunInfo{
+		func() pipeline.RunInfo { i := runInfo("20261202T050003Z-dddddd", testClock); i.DerivedFrom = "nosuch"; return i }(),
+		func() pipeline.RunInfo { i := runInfo("20261202T050004Z-eeeeee", testClock); i.Parts = []pipeline.RunID{a, "nosuch"}; return i }(),
+	} {
+		if err := l.BeginRun(ctx, bad); !errors.Is(err, ErrNotFound) {
+			t.Errorf("BeginRun with an unknown link: %v, want ErrNotFound", err)
+		}
+		if _, err := l.Run(ctx, bad.ID); !errors.Is(err, ErrNotFound) {
+			t.Errorf("refused run %s was written", bad.ID)
+		}
+	}
+	other, _ := openTest(t)
+	if _, err := other.Merge(ctx, l.Path()); err != nil {
+		t.Fatal(err)
+	}
+	if d, err := other.Run(ctx, info.ID); err != nil || d.DerivedFrom != a || len(d.Parts) != 2 {
+		t.Errorf("merged: derived %q parts %v (%v)", d.DerivedFrom, d.Parts, err)
+	}
+}

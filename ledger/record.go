@@ -38,12 +38,23 @@ func (l *Ledger) beginRun(ctx context.Context, info pipeline.RunInfo) error {
 		if n > 0 {
 			return fmt.Errorf("run %s already exists", info.ID)
 		}
+		for _, ref := range append([]pipeline.RunID{info.DerivedFrom}, info.Parts...) {
+			if ref == "" {
+				continue
+			}
+			if _, err := readRun(ctx, tx, ref); err != nil {
+				return err
+			}
+		}
 		_, err := tx.ExecContext(ctx, `INSERT INTO runs
-			(id, started_at, tool_version, config_path, config_text, config_hash, status, owner)
-			VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
+			(id, started_at, tool_version, config_path, config_text, config_hash, status, owner, derived_from)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
 			string(info.ID), formatTime(info.Started), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash,
-			string(pipeline.RunRunning), info.Owner)
-		return err
+			string(pipeline.RunRunning), info.Owner, nullRun(info.DerivedFrom))
+		if err != nil {
+			return err
+		}
+		return insertParts(ctx, tx, info.ID, info.Parts)
 	})
 }
 

@@ -23,6 +23,10 @@ type Options struct {
 	// NoReuse bypasses the cache: every node is computed even when its key
 	// is recorded (the ledger then checks the outputs agree).
 	NoReuse bool
+	// ReuseOnly forbids computing: every node must be found recorded, and
+	// a node that is not stops the run with an error wrapping
+	// ErrNotRecorded (assembling a run from recorded shards, say).
+	ReuseOnly bool
 	// OnNode, if set, is called after each node settles (from the
 	// scheduling goroutine, never concurrently).
 	OnNode func(NodeOutcome)
@@ -38,6 +42,10 @@ type Options struct {
 	Batch      int
 	FlushEvery time.Duration
 }
+
+// ErrNotRecorded is the error of a ReuseOnly run that meets a node its
+// recorder does not hold.
+var ErrNotRecorded = errors.New("not recorded, and this run only reuses recorded nodes")
 
 // NodeOutcome is what happened to one node in a run.
 type NodeOutcome struct {
@@ -712,6 +720,9 @@ func (c *chunk) compute(i int) done {
 			}
 			return done{i: i, out: out}
 		}
+	}
+	if s.opts.ReuseOnly {
+		return done{i: i, err: fmt.Errorf("%s (%s): %w", p.key, nd.Label, ErrNotRecorded)}
 	}
 	nr := NodeRecord{Key: p.key, Stage: p.name, Version: p.version, Params: nd.Params, Inputs: p.refs, Description: p.desc}
 	start := s.opts.Now()

@@ -464,3 +464,23 @@ func TestBatchedLookups(t *testing.T) {
 		}
 	}
 }
+
+// A ReuseOnly run reuses every recorded node and stops at the first node
+// it would have to compute, with ErrNotRecorded, computing nothing.
+func TestReuseOnly(t *testing.T) {
+	rec := newMem()
+	execute(t, rec, diamond(t, 5, ""), 2)
+	opts := Options{Jobs: 2, Tool: "test/1", Now: time.Now, ReuseOnly: true}
+	warm, err := Execute(context.Background(), rec, RunInfo{ID: "reuse-only-1"}, diamond(t, 5, ""), opts)
+	if err != nil || warm.Reused != 4 || warm.Computed != 0 {
+		t.Fatalf("recorded graph: %v, reused %d, computed %d; want 4 and 0", err, warm.Reused, warm.Computed)
+	}
+	before := len(rec.nodes)
+	_, err = Execute(context.Background(), rec, RunInfo{ID: "reuse-only-2"}, diamond(t, 7, ""), opts)
+	if !errors.Is(err, ErrNotRecorded) {
+		t.Fatalf("changed graph: %v, want ErrNotRecorded", err)
+	}
+	if len(rec.nodes) != before {
+		t.Errorf("%d nodes recorded by a reuse-only run that failed", len(rec.nodes)-before)
+	}
+}

@@ -49,6 +49,12 @@ type RunInfo struct {
 	// Owner identifies the process running the run ("host:pid"), so that a
 	// run left running by a killed process can be told from a live one.
 	Owner string
+	// DerivedFrom is the recorded run whose configuration this run's is,
+	// edited ("run --from"); empty for a configuration given directly.
+	DerivedFrom RunID
+	// Parts are the recorded runs this run assembles, in order: the shard
+	// runs of a study assembled into one run of the whole study.
+	Parts []RunID
 }
 
 // NodeRecord is everything stored about one node.

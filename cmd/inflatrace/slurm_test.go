@@ -70,40 +70,69 @@ func TestSlurmShardedScan(t *testing.T) {
 		}
 		t.Fatalf("no merged ledger: %v\n%s", err, text)
 	}
-	var runs []struct{ Run, Status string }
-	if err := json.Unmarshal(run("--ledger", merged, "runs", "--json"), &runs); err != nil || len(runs) != 4 {
-		t.Fatalf("merged ledger holds %d runs (%v)", len(runs), err)
+	var runs []struct {
+		Run, Status, Kind string
+		AssembledFrom     []string `json:"assembled_from"`
 	}
-	keys := func(ledger string, ids []string) []string {
+	if err := json.Unmarshal(run("--ledger", merged, "runs", "--json"), &runs); err != nil || len(runs) != 5 {
+		t.Fatalf("merged ledger holds %d runs (%v), want 4 shards and the assembled run", len(runs), err)
+	}
+	keys := func(ledger string, id string) []string {
 		var out []string
-		for _, id := range ids {
-			var shown struct {
-				Results []struct{ Key string } `json:"results"`
-			}
-			if err := json.Unmarshal(run("--ledger", ledger, "show", id, "--json"), &shown); err != nil {
-				t.Fatal(err)
-			}
-			for _, r := range shown.Results {
-				out = append(out, r.Key)
-			}
+		var shown struct {
+			Results []struct{ Key string } `json:"results"`
 		}
-		sort.Strings(out)
+		if err := json.Unmarshal(run("--ledger", ledger, "show", id, "--json"), &shown); err != nil {
+			t.Fatal(err)
+		}
+		for _, r := range shown.Results {
+			out = append(out, r.Key)
+		}
 		return out
 	}
-	var ids []string
+	var shards []string
+	whole := ""
 	for _, r := range runs {
 		if r.Status != "succeeded" {
-			t.Errorf("shard run %s: %s", r.Run, r.Status)
+			t.Errorf("run %s: %s", r.Run, r.Status)
 		}
-		ids = append(ids, r.Run)
+		switch r.Kind {
+		case "shard":
+			shards = append(shards, r.Run)
+		case "study":
+			whole = r.Run
+			if len(r.AssembledFrom) != 4 {
+				t.Errorf("assembled run %s lists %d shard runs, want 4", r.Run, len(r.AssembledFrom))
+			}
+		}
+	}
+	if len(shards) != 4 || whole == "" {
+		t.Fatalf("merged ledger: %d shard runs and assembled run %q", len(shards), whole)
 	}
 	local := filepath.Join(dir, "local.db")
 	var lr struct{ Run string }
 	if err := json.Unmarshal(run("--ledger", local, "run", cfg, "--json"), &lr); err != nil {
 		t.Fatal(err)
 	}
-	got, want := keys(merged, ids), keys(local, []string{lr.Run})
-	if strings.Join(got, ",") != strings.Join(want, ",") || len(want) != 64 {
+	want := keys(local, lr.Run)
+	// The shards together hold the local run's results...
+	var got []string
+	for _, id := range shards {
+		got = append(got, keys(merged, id)...)
+	}
+	sorted := append([]string(nil), want...)
+	sort.Strings(got)
+	sort.Strings(sorted)
+	if strings.Join(got, ",") != strings.Join(sorted, ",") || len(want) != 64 {
 		t.Fatalf("merged shards hold %d results, the local run %d; they differ", len(got), len(want))
 	}
+	// ...and the assembled run holds them in the local run's order, and
+	// table and verify work on it.
+	if strings.Join(keys(merged, whole), ",") != strings.Join(want, ",") {
+		t.Fatalf("the assembled run's results are not the local run's, in order")
+	}
+	if n := strings.Count(string(run("--ledger", merged, "table", whole, "--format", "csv")), "\n") - 1; n != 64 {
+		t.Errorf("table of the assembled run: %d rows, want 64", n)
+	}
+	run("--ledger", merged, "verify", whole)
 }

@@ -43,6 +43,24 @@ type Emit func(run pipeline.RunID, results []study.Result) error
 // nil) instead of keeping them in the Outcome, so that a large scan's
 // memory does not grow with it.
 func (e *Env) ExecuteStudyTo(ctx context.Context, g *Globals, s *study.Study, jobs int, emit Emit) (*Outcome, error) {
+	return e.ExecuteWith(ctx, g, s, ExecOptions{Jobs: jobs, Emit: emit})
+}
+
+// ExecOptions are the choices of ExecuteWith.
+type ExecOptions struct {
+	Jobs int  // parallelism; below 1: one per CPU
+	Emit Emit // when not nil, receives the results instead of the Outcome
+	// DerivedFrom and Parts are recorded with the run (pipeline.RunInfo).
+	DerivedFrom pipeline.RunID
+	Parts       []pipeline.RunID
+	// ReuseOnly computes nothing: every node must be in the ledger
+	// (pipeline.Options.ReuseOnly).
+	ReuseOnly bool
+}
+
+// ExecuteWith records and runs a checked study in the ledger.
+func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o ExecOptions) (*Outcome, error) {
+	jobs, emit := o.Jobs, o.Emit
 	chunks := s.Chunks(ChunkPoints)
 	graphs := make([]*pipeline.Graph, 0, 1)
 	// Build the first chunk's graph before touching the ledger: a bad
@@ -65,6 +83,7 @@ func (e *Env) ExecuteStudyTo(ctx context.Context, g *Globals, s *study.Study, jo
 	info := pipeline.RunInfo{
 		ID: id, Started: start, ToolVersion: Version,
 		ConfigPath: s.File, ConfigText: string(s.Text), ConfigHash: s.Hash(), Owner: e.Owner(),
+		DerivedFrom: o.DerivedFrom, Parts: o.Parts,
 	}
 	if closed, err := l.CloseAbandoned(ctx, e.Alive); err != nil {
 		return nil, err
@@ -77,7 +96,7 @@ func (e *Env) ExecuteStudyTo(ctx context.Context, g *Globals, s *study.Study, jo
 		jobs = e.CPUs
 	}
 	onNode, endProgress := e.progress(s.NodeEstimate())
-	sess, err := pipeline.Begin(ctx, l, info, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now, Batch: Batch, OnNode: onNode})
+	sess, err := pipeline.Begin(ctx, l, info, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now, Batch: Batch, OnNode: onNode, ReuseOnly: o.ReuseOnly})
 	if err != nil {
 		endProgress()
 		return nil, err

@@ -78,12 +78,12 @@ func TestRunsListDerivedFrom(t *testing.T) {
 	header, cells := derivedTableCells(t, out)
 	col := -1
 	for i, c := range header {
-		if c == "derived_from" {
+		if c == "from" {
 			col = i
 		}
 	}
 	if col < 0 {
-		t.Fatalf("runs header %v has no derived_from column", header)
+		t.Fatalf("runs header %v has no from column", header)
 	}
 	want := map[string]string{first: "", second: first}
 	for _, c := range cells {

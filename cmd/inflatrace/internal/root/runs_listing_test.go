@@ -140,7 +140,7 @@ func TestRunsKind(t *testing.T) {
 		t.Error("runs without --kind does not list every run")
 	}
 	_, errs, code := h.run("runs", "--kind", "studies")
-	if code != 2 || !strings.Contains(errs, "--kind") || !strings.Contains(errs, "study, predict or all") {
+	if code != 2 || !strings.Contains(errs, "--kind") || !strings.Contains(errs, "study, shard, predict or all") {
 		t.Errorf("runs --kind studies: exit %d, %q; want 2 naming --kind and its values", code, errs)
 	}
 }

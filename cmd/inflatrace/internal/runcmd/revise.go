@@ -128,13 +128,3 @@ func blame(edits []edit.Edit, err error) error {
 	}
 	return err
 }
-
-// recordDerived records in the ledger that run was derived from from.
-func recordDerived(ctx context.Context, o *Options, run, from pipeline.RunID) error {
-	l, err := o.Env.OpenLedger(o.Globals)
-	if err != nil {
-		return err
-	}
-	defer l.Close()
-	return l.SetDerivedFrom(ctx, run, from)
-}

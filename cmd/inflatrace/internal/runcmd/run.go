@@ -153,12 +153,7 @@ func Run(ctx context.Context, o *Options) error {
 		wrote += len(rs)
 		return o.Env.TableRows(w, rows)
 	}
-	out, err := o.Env.ExecuteStudyTo(ctx, o.Globals, s, o.Jobs, emit)
-	if out != nil && from != "" {
-		if derr := recordDerived(ctx, o, out.Report.Run, from); derr != nil && err == nil {
-			err = derr
-		}
-	}
+	out, err := o.Env.ExecuteWith(ctx, o.Globals, s, app.ExecOptions{Jobs: o.Jobs, Emit: emit, DerivedFrom: from})
 	if out == nil {
 		if o.JSON && wrote > 0 {
 			fmt.Fprintln(w, "\n  ]\n}")

@@ -6,6 +6,7 @@ package runscmd
 import (
 	"context"
 	"fmt"
+	"regexp"
 	"strconv"
 	"strings"
 	"time"
@@ -22,6 +23,7 @@ const (
 	KindAll     = "all"     // every run
 	KindStudy   = "study"   // runs of a study configuration file (inflatrace run)
 	KindPredict = "predict" // one-off runs of inflatrace predict
+	KindShard   = "shard"   // runs of one shard of a study (run --shard I/N)
 )
 
 // Options are the parsed flags of runs.
@@ -29,7 +31,7 @@ type Options struct {
 	Env     *app.Env
 	Globals *app.Globals
 	JSON    bool
-	Kind    string // KindAll, KindStudy or KindPredict
+	Kind    string // KindAll, KindStudy, KindShard or KindPredict
 }
 
 // NewCmd returns the runs command.
@@ -45,7 +47,7 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 		RunE:  func(c *cobra.Command, _ []string) error { return run(c.Context(), opts) },
 	}
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print the list as JSON")
-	cmd.Flags().StringVar(&opts.Kind, "kind", KindAll, "which runs to list: study (inflatrace run), predict (inflatrace predict) or all")
+	cmd.Flags().StringVar(&opts.Kind, "kind", KindAll, "which runs to list: study (inflatrace run, and runs merge assembled from shards), shard (run --shard), predict (inflatrace predict) or all")
 	return cmd
 }
 
@@ -67,7 +69,13 @@ type Row struct {
 	// DerivedFrom is the run this one was re-run from (run --from RUN);
 	// omitted for a run of a configuration given directly.
 	DerivedFrom string `json:"derived_from,omitempty"`
+	// AssembledFrom are the shard runs merge assembled into this run of
+	// the whole study; omitted for other runs.
+	AssembledFrom []string `json:"assembled_from,omitempty"`
 }
+
+// shardSuffix ends the configuration path a shard run records.
+var shardSuffix = regexp.MustCompile(` \[shard [0-9]+/[0-9]+\]$`)
 
 // KindOf tells a predict run from a study run by the configuration path
 // the run recorded: predict records the configuration it writes under the
@@ -77,15 +85,18 @@ func KindOf(r ledger.RunSummary) string {
 	if r.ConfigPath == predictcmd.ConfigName {
 		return KindPredict
 	}
+	if shardSuffix.MatchString(r.ConfigPath) {
+		return KindShard
+	}
 	return KindStudy
 }
 
 // Run lists the runs.
 func Run(ctx context.Context, o *Options) error {
 	switch o.Kind {
-	case KindAll, KindStudy, KindPredict:
+	case KindAll, KindStudy, KindShard, KindPredict:
 	default:
-		return app.Usage(fmt.Errorf("--kind %q: want %s, %s or %s", o.Kind, KindStudy, KindPredict, KindAll))
+		return app.Usage(fmt.Errorf("--kind %q: want %s, %s, %s or %s", o.Kind, KindStudy, KindShard, KindPredict, KindAll))
 	}
 	l, err := o.Env.OpenLedger(o.Globals)
 	if err != nil {
@@ -101,6 +112,10 @@ func Run(ctx context.Context, o *Options) error {
 		return err
 	}
 	derived, err := l.AllDerivedFrom(ctx)
+	if err != nil {
+		return err
+	}
+	parts, err := l.AllParts(ctx)
 	if err != nil {
 		return err
 	}
@@ -123,12 +138,19 @@ func Run(ctx context.Context, o *Options) error {
 			Status: string(r.Status), ToolVersion: r.ToolVersion, Config: r.ConfigPath, ConfigHash: r.ConfigHash,
 			Computed: r.Computed, Reused: r.Reused, Failed: r.Failed, Results: r.Results,
 			DerivedFrom: string(derived[r.ID])}
+		from := row.DerivedFrom
+		for _, p := range parts[r.ID] {
+			row.AssembledFrom = append(row.AssembledFrom, string(p))
+		}
+		if n := len(row.AssembledFrom); n > 0 {
+			from = fmt.Sprintf("%d shards", n)
+		}
 		rows = append(rows, row)
 		table = append(table, []string{row.Run, row.Started, row.Status, strconv.Itoa(r.Computed),
-			strconv.Itoa(r.Reused), strconv.Itoa(r.Failed), strconv.Itoa(r.Results), row.DerivedFrom, strings.Join(t, ","), r.ConfigPath})
+			strconv.Itoa(r.Reused), strconv.Itoa(r.Failed), strconv.Itoa(r.Results), from, strings.Join(t, ","), r.ConfigPath})
 	}
 	if o.JSON {
 		return app.JSON(o.Env.Stdout, rows)
 	}
-	return o.Env.Table(o.Env.Stdout, []string{"run", "started", "status", "computed", "reused", "failed", "results", "derived_from", "tags", "config"}, table)
+	return o.Env.Table(o.Env.Stdout, []string{"run", "started", "status", "computed", "reused", "failed", "results", "from", "tags", "config"}, table)
 }

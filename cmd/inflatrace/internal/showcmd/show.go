@@ -62,18 +62,21 @@ type Node struct {
 
 // Output is the JSON shape of show --json.
 type Output struct {
-	Run         string         `json:"run"`
-	Status      string         `json:"status"`
-	Started     string         `json:"started"`
-	Finished    string         `json:"finished,omitempty"`
-	ToolVersion string         `json:"tool_version"`
-	ConfigPath  string         `json:"config_path"`
-	ConfigHash  string         `json:"config_hash"`
-	Config      string         `json:"config"`
-	Error       string         `json:"error,omitempty"`
-	DerivedFrom string         `json:"derived_from,omitempty"` // the run this one was re-run from (run --from)
-	Nodes       []Node         `json:"nodes"`
-	Results     []study.Result `json:"results"`
+	Run         string `json:"run"`
+	Status      string `json:"status"`
+	Started     string `json:"started"`
+	Finished    string `json:"finished,omitempty"`
+	ToolVersion string `json:"tool_version"`
+	ConfigPath  string `json:"config_path"`
+	ConfigHash  string `json:"config_hash"`
+	Config      string `json:"config"`
+	Error       string `json:"error,omitempty"`
+	DerivedFrom string `json:"derived_from,omitempty"` // the run this one was re-run from (run --from)
+	// AssembledFrom are the shard runs that merge assembled into this run
+	// of the whole study, in shard order.
+	AssembledFrom []string       `json:"assembled_from,omitempty"`
+	Nodes         []Node         `json:"nodes"`
+	Results       []study.Result `json:"results"`
 }
 
 // valuesJSON renders values as name -> number or string; units are kept in
@@ -130,10 +133,9 @@ func Run(ctx context.Context, o *Options) error {
 	out := Output{Run: string(id), Status: string(run.Status), Started: run.Started.UTC().Format(time.RFC3339Nano),
 		ToolVersion: run.ToolVersion, ConfigPath: run.ConfigPath, ConfigHash: run.ConfigHash, Config: run.ConfigText,
 		Error: run.Error, Results: results}
-	if from, err := l.DerivedFrom(ctx, id); err != nil {
-		return err
-	} else {
-		out.DerivedFrom = string(from)
+	out.DerivedFrom = string(run.DerivedFrom)
+	for _, p := range run.Parts {
+		out.AssembledFrom = append(out.AssembledFrom, string(p))
 	}
 	if !run.Finished.IsZero() {
 		out.Finished = run.Finished.UTC().Format(time.RFC3339Nano)
@@ -160,6 +162,9 @@ func Run(ctx context.Context, o *Options) error {
 	}
 	if out.DerivedFrom != "" {
 		fmt.Fprintf(w, "derived from %s\n", out.DerivedFrom)
+	}
+	if len(out.AssembledFrom) > 0 {
+		fmt.Fprintf(w, "assembled from %d shard runs: %s\n", len(out.AssembledFrom), strings.Join(out.AssembledFrom, ", "))
 	}
 	fmt.Fprintf(w, "\n# configuration\n")
 	for _, line := range strings.Split(strings.TrimRight(out.Config, "\n"), "\n") {
