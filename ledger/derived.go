@@ -2,31 +2,32 @@ package ledger
 
 import (
 	"context"
-	"database/sql"
-	"errors"
 	"fmt"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 )
 
+// Kinds of run link (table run_links).
+const (
+	linkDerivedFrom = "derived_from"
+	linkPart        = "part"
+)
+
 // SetDerivedFrom records that run was derived from the recorded run from
 // (its configuration is from's, edited). Both runs must exist; an unknown
-// one wraps ErrNotFound.
+// one wraps ErrNotFound. A new run records it with its row instead
+// (pipeline.RunInfo.DerivedFrom).
 func (l *Ledger) SetDerivedFrom(ctx context.Context, run, from pipeline.RunID) error {
 	err := l.inTx(ctx, func(tx *qtx) error {
-		if _, err := readRun(ctx, tx, from); err != nil {
+		for _, id := range []pipeline.RunID{run, from} {
+			if _, err := readRun(ctx, tx, id); err != nil {
+				return err
+			}
+		}
+		if _, err := tx.ExecContext(ctx, "DELETE FROM run_links WHERE run_id = ? AND kind = ?", string(run), linkDerivedFrom); err != nil {
 			return err
 		}
-		res, err := tx.ExecContext(ctx, "UPDATE runs SET derived_from = ? WHERE id = ?", string(from), string(run))
-		if err != nil {
-			return err
-		}
-		if n, err := res.RowsAffected(); err != nil {
-			return err
-		} else if n == 0 {
-			return fmt.Errorf("run %s: %w", run, ErrNotFound)
-		}
-		return nil
+		return insertLinks(ctx, tx, run, from, nil)
 	})
 	if err != nil {
 		return fmt.Errorf("ledger: record run %s as derived from %s: %w", run, from, err)
@@ -36,103 +37,95 @@ func (l *Ledger) SetDerivedFrom(ctx context.Context, run, from pipeline.RunID) e
 
 // DerivedFrom returns the run that run was derived from, or "" for a run
 // of a configuration given directly. An unknown run wraps ErrNotFound.
+// The run named need not be in this ledger (an imported run names the
+// run it was derived from wherever that is).
 func (l *Ledger) DerivedFrom(ctx context.Context, run pipeline.RunID) (pipeline.RunID, error) {
-	var from sql.NullString
+	var d RunDetail
 	err := l.inReadTx(ctx, func(tx *qtx) error {
-		return tx.QueryRowContext(ctx, "SELECT derived_from FROM runs WHERE id = ?", string(run)).Scan(&from)
+		var err error
+		d, err = readRun(ctx, tx, run)
+		return err
 	})
-	if errors.Is(err, sql.ErrNoRows) {
-		err = fmt.Errorf("run %s: %w", run, ErrNotFound)
-	}
 	if err != nil {
 		return "", fmt.Errorf("ledger: read run %s: %w", run, err)
 	}
-	return pipeline.RunID(from.String), nil
+	return d.DerivedFrom, nil
 }
 
 // AllDerivedFrom returns, in one query, the run each derived run was
 // derived from, keyed by the derived run. Runs of a configuration given
 // directly are absent from the map.
 func (l *Ledger) AllDerivedFrom(ctx context.Context) (map[pipeline.RunID]pipeline.RunID, error) {
+	all, err := l.allLinks(ctx, linkDerivedFrom)
 	out := map[pipeline.RunID]pipeline.RunID{}
+	for id, ls := range all {
+		out[id] = ls[0]
+	}
+	return out, err
+}
+
+// AllParts returns, in one query, the parts of every run that assembles
+// others, keyed by the assembling run.
+func (l *Ledger) AllParts(ctx context.Context) (map[pipeline.RunID][]pipeline.RunID, error) {
+	return l.allLinks(ctx, linkPart)
+}
+
+func (l *Ledger) allLinks(ctx context.Context, kind string) (map[pipeline.RunID][]pipeline.RunID, error) {
+	out := map[pipeline.RunID][]pipeline.RunID{}
 	err := l.inReadTx(ctx, func(tx *qtx) error {
-		rows, err := tx.QueryContext(ctx, "SELECT id, derived_from FROM runs WHERE derived_from IS NOT NULL")
+		rows, err := tx.QueryContext(ctx, "SELECT run_id, other FROM run_links WHERE kind = ? ORDER BY run_id, position", kind)
 		if err != nil {
 			return err
 		}
 		defer rows.Close()
 		for rows.Next() {
-			var id, from string
-			if err := rows.Scan(&id, &from); err != nil {
+			var id, other string
+			if err := rows.Scan(&id, &other); err != nil {
 				return err
 			}
-			out[pipeline.RunID(id)] = pipeline.RunID(from)
+			out[pipeline.RunID(id)] = append(out[pipeline.RunID(id)], pipeline.RunID(other))
 		}
 		return rows.Err()
 	})
 	if err != nil {
-		return nil, fmt.Errorf("ledger: list derived runs: %w", err)
+		return nil, fmt.Errorf("ledger: list run links: %w", err)
 	}
 	return out, nil
 }
 
-// nullRun is a run reference as a column value: NULL for none.
-func nullRun(id pipeline.RunID) any {
-	if id == "" {
-		return nil
+// insertLinks records where run came from: the run it was derived from
+// (none when empty) and the runs it assembles, in order.
+func insertLinks(ctx context.Context, tx *qtx, run, from pipeline.RunID, parts []pipeline.RunID) error {
+	if from != "" {
+		if _, err := tx.ExecContext(ctx, "INSERT INTO run_links (run_id, kind, position, other) VALUES (?, ?, 0, ?)", string(run), linkDerivedFrom, string(from)); err != nil {
+			return fmt.Errorf("run %s derived from %s: %w", run, from, err)
+		}
 	}
-	return string(id)
-}
-
-// insertParts records the runs run assembles, in order.
-func insertParts(ctx context.Context, tx *qtx, run pipeline.RunID, parts []pipeline.RunID) error {
 	for i, p := range parts {
-		if _, err := tx.ExecContext(ctx, "INSERT INTO run_parts (run_id, position, part) VALUES (?, ?, ?)", string(run), i, string(p)); err != nil {
+		if _, err := tx.ExecContext(ctx, "INSERT INTO run_links (run_id, kind, position, other) VALUES (?, ?, ?, ?)", string(run), linkPart, i, string(p)); err != nil {
 			return fmt.Errorf("run %s part %d (%s): %w", run, i, p, err)
 		}
 	}
 	return nil
 }
 
-// readParts returns the runs run assembles, in order (nil for none).
-func readParts(ctx context.Context, tx *qtx, run pipeline.RunID) ([]pipeline.RunID, error) {
-	rows, err := tx.QueryContext(ctx, "SELECT part FROM run_parts WHERE run_id = ? ORDER BY position", string(run))
+// readLinks fills d.DerivedFrom and d.Parts.
+func readLinks(ctx context.Context, tx *qtx, d *RunDetail) error {
+	rows, err := tx.QueryContext(ctx, "SELECT kind, other FROM run_links WHERE run_id = ? ORDER BY kind, position", string(d.ID))
 	if err != nil {
-		return nil, err
+		return err
 	}
 	defer rows.Close()
-	var out []pipeline.RunID
 	for rows.Next() {
-		var p string
-		if err := rows.Scan(&p); err != nil {
-			return nil, err
-		}
-		out = append(out, pipeline.RunID(p))
-	}
-	return out, rows.Err()
-}
-
-// AllParts returns, in one query, the parts of every run that assembles
-// others, keyed by the assembling run.
-func (l *Ledger) AllParts(ctx context.Context) (map[pipeline.RunID][]pipeline.RunID, error) {
-	out := map[pipeline.RunID][]pipeline.RunID{}
-	err := l.inReadTx(ctx, func(tx *qtx) error {
-		rows, err := tx.QueryContext(ctx, "SELECT run_id, part FROM run_parts ORDER BY run_id, position")
-		if err != nil {
+		var kind, other string
+		if err := rows.Scan(&kind, &other); err != nil {
 			return err
 		}
-		defer rows.Close()
-		for rows.Next() {
-			var id, p string
-			if err := rows.Scan(&id, &p); err != nil {
-				return err
-			}
-			out[pipeline.RunID(id)] = append(out[pipeline.RunID(id)], pipeline.RunID(p))
+		if kind == linkDerivedFrom {
+			d.DerivedFrom = pipeline.RunID(other)
+		} else {
+			d.Parts = append(d.Parts, pipeline.RunID(other))
 		}
-		return rows.Err()
-	})
-	if err != nil {
-		return nil, fmt.Errorf("ledger: list assembled runs: %w", err)
 	}
-	return out, nil
+	return rows.Err()
 }

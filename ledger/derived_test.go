@@ -2,7 +2,9 @@ package ledger
 
 import (
 	"context"
+	"database/sql"
 	"errors"
+	"path/filepath"
 	"testing"
 	"time"
 
@@ -114,8 +116,16 @@ func TestBeginRunLinks(t *testing.T) {
 		t.Errorf("AllParts = %v", all)
 	}
 	for _, bad := range []pipeline.RunInfo{
-		func() pipeline.RunInfo { i := runInfo("20261202T050003Z-dddddd", testClock); i.DerivedFrom = "nosuch"; return i }(),
-		func() pipeline.RunInfo { i := runInfo("20261202T050004Z-eeeeee", testClock); i.Parts = []pipeline.RunID{a, "nosuch"}; return i }(),
+		func() pipeline.RunInfo {
+			i := runInfo("20261202T050003Z-dddddd", testClock)
+			i.DerivedFrom = "nosuch"
+			return i
+		}(),
+		func() pipeline.RunInfo {
+			i := runInfo("20261202T050004Z-eeeeee", testClock)
+			i.Parts = []pipeline.RunID{a, "nosuch"}
+			return i
+		}(),
 	} {
 		if err := l.BeginRun(ctx, bad); !errors.Is(err, ErrNotFound) {
 			t.Errorf("BeginRun with an unknown link: %v, want ErrNotFound", err)
@@ -130,5 +140,53 @@ func TestBeginRunLinks(t *testing.T) {
 	}
 	if d, err := other.Run(ctx, info.ID); err != nil || d.DerivedFrom != a || len(d.Parts) != 2 {
 		t.Errorf("merged: derived %q parts %v (%v)", d.DerivedFrom, d.Parts, err)
+	}
+}
+
+// A ledger written before run_links (migrations up to 0007, derived_from a
+// column of runs) reads its derived runs back after the migration.
+func TestDerivedFromMigratesToRunLinks(t *testing.T) {
+	ms, err := loadMigrations(migrationFiles)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	for i, m := range ms {
+		if m.version == 7 {
+			n = i + 1
+		}
+	}
+	if n == 0 {
+		t.Fatal("no migration 0007")
+	}
+	path := filepath.Join(t.TempDir(), "old.db")
+	db, err := sql.Open("sqlite3", dsn(path))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := migrate(ctx, db, ms[:n], fixedClock); err != nil {
+		t.Fatal(err)
+	}
+	for _, id := range []string{"ra", "rb"} {
+		info := runInfo(id, testClock)
+		if _, err := db.Exec(`INSERT INTO runs (id, started_at, finished_at, tool_version, config_path, config_text, config_hash, status, error)
+			VALUES (?, ?, ?, ?, ?, ?, ?, 'succeeded', '')`, id, formatTime(testClock), formatTime(testClock), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if _, err := db.Exec("UPDATE runs SET derived_from = 'ra' WHERE id = 'rb'"); err != nil {
+		t.Fatal(err)
+	}
+	db.Close()
+	l, err := Open(path, WithClock(fixedClock))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Close()
+	if got, err := l.DerivedFrom(ctx, "rb"); err != nil || got != "ra" {
+		t.Errorf("after migration rb is derived from %q (%v), want ra", got, err)
+	}
+	if all, _ := l.AllDerivedFrom(ctx); len(all) != 1 {
+		t.Errorf("AllDerivedFrom after migration: %v", all)
 	}
 }

@@ -166,22 +166,21 @@ func readRun(ctx context.Context, tx *qtx, id pipeline.RunID) (RunDetail, error)
 		status   string
 		started  string
 		finished sql.NullString
-		from     sql.NullString
 	)
-	err := tx.QueryRowContext(ctx, `SELECT id, started_at, finished_at, status, error, tool_version, config_path, config_text, config_hash, derived_from
+	err := tx.QueryRowContext(ctx, `SELECT id, started_at, finished_at, status, error, tool_version, config_path, config_text, config_hash
 		FROM runs WHERE id = ?`, string(id)).
-		Scan(&rid, &started, &finished, &status, &d.Error, &d.ToolVersion, &d.ConfigPath, &d.ConfigText, &d.ConfigHash, &from)
+		Scan(&rid, &started, &finished, &status, &d.Error, &d.ToolVersion, &d.ConfigPath, &d.ConfigText, &d.ConfigHash)
 	if errors.Is(err, sql.ErrNoRows) {
 		return RunDetail{}, fmt.Errorf("run %s: %w", id, ErrNotFound)
 	}
 	if err != nil {
 		return RunDetail{}, err
 	}
-	d.ID, d.Status, d.DerivedFrom = pipeline.RunID(rid), pipeline.RunStatus(status), pipeline.RunID(from.String)
+	d.ID, d.Status = pipeline.RunID(rid), pipeline.RunStatus(status)
 	if d.Started, d.Finished, err = runTimes(started, finished); err != nil {
 		return RunDetail{}, err
 	}
-	if d.Parts, err = readParts(ctx, tx, d.ID); err != nil {
+	if err := readLinks(ctx, tx, &d); err != nil {
 		return RunDetail{}, err
 	}
 	return d, nil

@@ -47,14 +47,14 @@ func (l *Ledger) beginRun(ctx context.Context, info pipeline.RunInfo) error {
 			}
 		}
 		_, err := tx.ExecContext(ctx, `INSERT INTO runs
-			(id, started_at, tool_version, config_path, config_text, config_hash, status, owner, derived_from)
-			VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+			(id, started_at, tool_version, config_path, config_text, config_hash, status, owner)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
 			string(info.ID), formatTime(info.Started), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash,
-			string(pipeline.RunRunning), info.Owner, nullRun(info.DerivedFrom))
+			string(pipeline.RunRunning), info.Owner)
 		if err != nil {
 			return err
 		}
-		return insertParts(ctx, tx, info.ID, info.Parts)
+		return insertLinks(ctx, tx, info.ID, info.DerivedFrom, info.Parts)
 	})
 }
 

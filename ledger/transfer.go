@@ -225,28 +225,17 @@ func insertFinishedRun(ctx context.Context, tx *qtx, d RunDetail) error {
 	if want := pipeline.Sum([]byte(d.ConfigText)); d.ConfigHash != want {
 		return fmt.Errorf("%w: run %s: configuration hashes to %s, record says %s", ErrIntegrity, d.ID, want, d.ConfigHash)
 	}
-	// The runs it was derived from or assembles are linked where this
-	// ledger holds them (an export of one run carries no other run).
-	from, parts := pipeline.RunID(""), []pipeline.RunID(nil)
-	if d.DerivedFrom != "" {
-		if _, err := readRun(ctx, tx, d.DerivedFrom); err == nil {
-			from = d.DerivedFrom
-		}
-	}
-	for _, p := range d.Parts {
-		if _, err := readRun(ctx, tx, p); err == nil {
-			parts = append(parts, p)
-		}
-	}
 	_, err := tx.ExecContext(ctx, `INSERT INTO runs
-		(id, started_at, finished_at, tool_version, config_path, config_text, config_hash, status, error, derived_from)
-		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`,
+		(id, started_at, finished_at, tool_version, config_path, config_text, config_hash, status, error)
+		VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
 		string(d.ID), formatTime(d.Started), formatTime(d.Finished), d.ToolVersion, d.ConfigPath, d.ConfigText, d.ConfigHash,
-		string(d.Status), d.Error, nullRun(from))
+		string(d.Status), d.Error)
 	if err != nil {
 		return fmt.Errorf("insert run %s: %w", d.ID, err)
 	}
-	return insertParts(ctx, tx, d.ID, parts)
+	// Where the run came from travels with it, whether or not this ledger
+	// holds the runs named.
+	return insertLinks(ctx, tx, d.ID, d.DerivedFrom, d.Parts)
 }
 
 // ExportRun writes a new, self-contained ledger at path holding exactly

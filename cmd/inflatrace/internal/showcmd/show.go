@@ -161,7 +161,11 @@ func Run(ctx context.Context, o *Options) error {
 		fmt.Fprintf(w, "error     %s\n", out.Error)
 	}
 	if out.DerivedFrom != "" {
-		fmt.Fprintf(w, "derived from %s\n", out.DerivedFrom)
+		note := ""
+		if _, err := l.Run(ctx, run.DerivedFrom); err != nil {
+			note = " (not in this ledger)"
+		}
+		fmt.Fprintf(w, "derived from %s%s\n", out.DerivedFrom, note)
 	}
 	if len(out.AssembledFrom) > 0 {
 		fmt.Fprintf(w, "assembled from %d shard runs: %s\n", len(out.AssembledFrom), strings.Join(out.AssembledFrom, ", "))
