@@ -70,8 +70,10 @@ type Assumption struct {
 	diffs      []Difference
 }
 
-// Quantities compared for each paired result.
-var Quantities = []string{"N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV", "T_reh_GeV", "delta_chi2", "n_sigma", "detection_sigma"}
+// Quantities compared for each paired result: a prediction's, and a
+// reheating band's span (its least and greatest N*, n_s and r).
+var Quantities = []string{"N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV", "T_reh_GeV", "delta_chi2", "n_sigma", "detection_sigma",
+	"N_star_min", "N_star_max", "n_s_min", "n_s_max", "r_min", "r_max"}
 
 // Change is the change of one quantity of one paired result.
 type Change struct {
@@ -150,7 +152,18 @@ func (r *Report) Attributed() []Assumption {
 }
 
 func quantity(r study.Result, q string) (float64, bool) {
-	if r.Error != "" || r.Band != nil {
+	if r.Error != "" {
+		return 0, false
+	}
+	if b := r.Band; b != nil {
+		switch q {
+		case "N_star_min", "N_star_max":
+			return b.NStar[bandEnd(q)], true
+		case "n_s_min", "n_s_max":
+			return b.Ns[bandEnd(q)], true
+		case "r_min", "r_max":
+			return b.R[bandEnd(q)], true
+		}
 		return 0, false
 	}
 	switch q {
@@ -178,6 +191,14 @@ func quantity(r study.Result, q string) (float64, bool) {
 		return opt(r.NSigma)
 	}
 	return 0, false
+}
+
+// bandEnd is 0 for a band's least value, 1 for its greatest.
+func bandEnd(q string) int {
+	if strings.HasSuffix(q, "_max") {
+		return 1
+	}
+	return 0
 }
 
 func opt(p *float64) (float64, bool) {

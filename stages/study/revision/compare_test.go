@@ -204,3 +204,35 @@ func TestShapleyWeightsSumToOne(t *testing.T) {
 		}
 	}
 }
+
+// A reheating band's result is compared by its span: moving the pivot
+// count by widening w_reh moves N*_max, and is not reported unchanged.
+func TestBandsAreCompared(t *testing.T) {
+	const bandA = `
+[[reheating]]
+history = "band"
+w_reh_min = 0
+w_reh_max = 0.25
+n_w = 4
+n_T = 4
+
+[[constraint]]
+use = "cmb-combined-2025"
+
+[[model]]
+family = "starobinsky"
+`
+	bandB := strings.Replace(bandA, "w_reh_max = 0.25", "w_reh_max = 1", 1)
+	a, b := record(t, "A", bandA), record(t, "B", bandB)
+	rep, err := Compare(context.Background(), a, b, evaluator())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Pairs) != 1 || !rep.Pairs[0].Changed() {
+		t.Fatalf("band pairs %+v: want one, changed", rep.Pairs)
+	}
+	c, ok := rep.Pairs[0].Changes["N_star_max"]
+	if !ok || c.Total <= 0 || c.MainCause != "reheating[0].w_reh_max" {
+		t.Errorf("N*_max %+v: a stiffer w_reh_max must raise the band's largest N*, caused by reheating[0].w_reh_max", c)
+	}
+}

@@ -277,6 +277,12 @@ var quantityLaTeX = map[string]string{
 	"delta_chi2":       `$\Delta\chi^2$`,
 	"n_sigma":          `$n_\sigma$`,
 	"detection_sigma":  `detection [$\sigma$]`,
+	"N_star_min":       `$N_*$ min`,
+	"N_star_max":       `$N_*$ max`,
+	"n_s_min":          `$n_s$ min`,
+	"n_s_max":          `$n_s$ max`,
+	"r_min":            `$r$ min`,
+	"r_max":            `$r$ max`,
 }
 
 // Grid is the comparison as a table: one row per changed quantity of each
