@@ -1,7 +1,3 @@
-// Package reportcmd implements "inflatrace table RUN" and "inflatrace plot
-// RUN": paper tables and figures of a recorded run, drawn from the ledger
-// without recomputing anything. It also writes the tables and figures of
-// release archives.
 package reportcmd
 
 import (
@@ -17,77 +13,12 @@ import (
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/figures"
-	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tables"
 	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/compare"
 	"github.com/inflatrace/inflatrace/stages/nodes"
 	"github.com/inflatrace/inflatrace/stages/study"
 )
-
-// TableOptions are the parsed flags of table.
-type TableOptions struct {
-	Env     *app.Env
-	Globals *app.Globals
-	Run     string
-	Format  string
-	Columns []string
-	Digits  int
-	Exact   bool
-	Out     string
-}
-
-// NewTableCmd returns the table command.
-func NewTableCmd(env *app.Env, g *app.Globals) *cobra.Command {
-	o := &TableOptions{Env: env, Globals: g}
-	cmd := &cobra.Command{
-		Use:   "table RUN [--format csv|json|markdown|latex] [--columns a,b,...] [--digits N] [--exact]",
-		Short: "Write a run's results as a paper table (the LaTeX output is a complete tabular to \\input)",
-		Long:  "Columns: " + strings.Join(tables.ColumnNames(), ", ") + ", or param.NAME for one model parameter.",
-		Args:  cobra.ExactArgs(1),
-		RunE: func(c *cobra.Command, args []string) error {
-			o.Run = args[0]
-			return Table(c.Context(), o)
-		},
-	}
-	f := cmd.Flags()
-	f.StringVar(&o.Format, "format", tables.Markdown, "csv, json, markdown or latex")
-	f.StringSliceVar(&o.Columns, "columns", nil, "columns to write (default: "+strings.Join(tables.DefaultColumns, ",")+")")
-	f.IntVar(&o.Digits, "digits", 0, fmt.Sprintf("significant digits (default %d)", tables.DefaultDigits))
-	f.BoolVar(&o.Exact, "exact", false, "write every number exactly (shortest round-trip form)")
-	f.StringVar(&o.Out, "out", "", "file to write (default stdout)")
-	return cmd
-}
-
-// Table writes the table.
-func Table(ctx context.Context, o *TableOptions) error {
-	l, err := o.Env.OpenLedger(o.Globals)
-	if err != nil {
-		return err
-	}
-	defer l.Close()
-	id, err := l.ResolveRun(ctx, o.Run)
-	if err != nil {
-		return err
-	}
-	results, err := app.RecordedResults(ctx, l, id)
-	if err != nil {
-		return err
-	}
-	w := o.Env.Stdout
-	if o.Out != "" {
-		f, err := os.Create(o.Out)
-		if err != nil {
-			return err
-		}
-		defer f.Close()
-		w = f
-	}
-	if err := tables.Write(w, results, tables.Options{Format: o.Format, Columns: o.Columns, Digits: o.Digits, Exact: o.Exact}); err != nil {
-		return app.Usage(err)
-	}
-	return nil
-}
 
 // PlotOptions are the parsed flags of plot.
 type PlotOptions struct {
@@ -339,39 +270,15 @@ func scanned(results []study.Result) []string {
 	return out
 }
 
-// ArchiveExtra writes results.csv, results.tex and the figures of a run
-// into an export folder.
-func ArchiveExtra(l func() (*ledger.Ledger, error)) func(ctx context.Context, dir string, run ledger.RunDetail, results []study.Result) error {
-	return func(ctx context.Context, dir string, run ledger.RunDetail, results []study.Result) error {
-		for _, t := range []struct{ name, format string }{{"results.csv", tables.CSV}, {"results.tex", tables.LaTeX}} {
-			f, err := os.Create(filepath.Join(dir, t.name))
-			if err != nil {
-				return err
-			}
-			cols := append([]string{"label"}, tables.DefaultColumns...)
-			werr := tables.Write(f, results, tables.Options{Format: t.format, Columns: cols, Exact: t.format == tables.CSV})
-			if cerr := f.Close(); werr == nil {
-				werr = cerr
-			}
-			if werr != nil {
-				return werr
-			}
-		}
-		led, err := l()
-		if err != nil {
-			return err
-		}
-		defer led.Close()
-		figDir := filepath.Join(dir, "figures")
-		if err := os.MkdirAll(figDir, 0o755); err != nil {
-			return err
-		}
-		if _, err := Figures(ctx, led, run, results, FigureOptions{Dir: figDir, Format: "png"}); err != nil {
-			// A run whose results cannot be drawn (only failures, say) is
-			// archived without figures.
-			os.Remove(figDir)
-			return nil
-		}
-		return nil
+// archiveFigures draws a run's figures into dir/figures. A run whose
+// results cannot be drawn (only failures, say) is archived without them.
+func archiveFigures(ctx context.Context, led *ledger.Ledger, dir string, run ledger.RunDetail, results []study.Result) error {
+	figDir := filepath.Join(dir, "figures")
+	if err := os.MkdirAll(figDir, 0o755); err != nil {
+		return err
 	}
+	if _, err := Figures(ctx, led, run, results, FigureOptions{Dir: figDir, Format: "png"}); err != nil {
+		os.Remove(figDir)
+	}
+	return nil
 }
