@@ -260,14 +260,15 @@ func TestDeterministic(t *testing.T) {
 }
 
 // TestSave: the extension picks the format (any case); an unknown one is
-// refused and leaves no file; embedded fonts make a larger SVG.
+// refused and leaves no file; PDF and SVG embed their fonts by default
+// (a plain SVG is smaller), so their text renders the same everywhere.
 func TestSave(t *testing.T) {
 	p, err := NsR(NsRSpec{Title: "save", Constraints: []ConstraintLayer{{Set: upperLimit}}})
 	if err != nil {
 		t.Fatal(err)
 	}
 	dir := t.TempDir()
-	for _, name := range []string{"a.png", "b.SVG"} {
+	for _, name := range []string{"a.png", "b.SVG", "c.pdf"} {
 		path := filepath.Join(dir, name)
 		if err := Save(p, path); err != nil {
 			t.Fatal(err)
@@ -279,19 +280,21 @@ func TestSave(t *testing.T) {
 		switch {
 		case strings.HasSuffix(name, "png") && !bytes.HasPrefix(data, []byte("\x89PNG\r\n\x1a\n")):
 			t.Errorf("%s is not a PNG", name)
-		case strings.HasSuffix(name, "SVG") && !bytes.HasPrefix(data, []byte("<?xml")):
-			t.Errorf("%s is not XML", name)
+		case strings.HasSuffix(name, "SVG") && (!bytes.HasPrefix(data, []byte("<?xml")) || !bytes.Contains(data, []byte("@font-face"))):
+			t.Errorf("%s is not XML with embedded fonts", name)
+		case strings.HasSuffix(name, "pdf") && (!bytes.HasPrefix(data, []byte("%PDF-")) || !bytes.Contains(data, []byte("/FontFile"))):
+			t.Errorf("%s is not a PDF with embedded fonts", name)
 		}
 	}
-	if err := Save(p, filepath.Join(dir, "c.pdf")); err == nil {
-		t.Error("c.pdf accepted")
+	if err := Save(p, filepath.Join(dir, "d.eps")); err == nil {
+		t.Error("d.eps accepted")
 	}
 	entries, _ := os.ReadDir(dir)
-	if len(entries) != 2 {
-		t.Errorf("%d files left, want 2 (no temporary or refused files)", len(entries))
+	if len(entries) != 3 {
+		t.Errorf("%d files left, want 3 (no temporary or refused files)", len(entries))
 	}
-	plain, embedded := filepath.Join(dir, "b.SVG"), filepath.Join(dir, "e.svg")
-	if err := SaveWith(p, embedded, Options{EmbedFonts: true}); err != nil {
+	embedded, plain := filepath.Join(dir, "b.SVG"), filepath.Join(dir, "e.svg")
+	if err := SaveWith(p, plain, Options{PlainSVGFonts: true}); err != nil {
 		t.Fatal(err)
 	}
 	a, _ := os.Stat(plain)

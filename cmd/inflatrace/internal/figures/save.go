@@ -7,11 +7,14 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"time"
 
+	"codeberg.org/go-pdf/fpdf"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgpdf"
 	"gonum.org/v1/plot/vg/vgsvg"
 )
 
@@ -23,42 +26,61 @@ const (
 	DPI    = 150
 )
 
-// Formats are the output formats, by file extension.
-var Formats = []string{"png", "svg"}
+// Formats are the output formats, by file extension; PDF, the format
+// journals take, is the default.
+var Formats = []string{"pdf", "svg", "png"}
+
+// DefaultFormat is the format of a figure written without one.
+const DefaultFormat = "pdf"
 
 // Options adjust the output.
 type Options struct {
-	// EmbedFonts embeds the fonts (Liberation, about 0.5 MB) in an SVG so
-	// that it renders the same everywhere. Without it the SVG names the
-	// font and viewers lacking it substitute another serif. PNG ignores it.
-	EmbedFonts bool
+	// PlainSVGFonts writes an SVG that names its fonts (Liberation) instead
+	// of embedding them (about 0.5 MB): smaller, but a viewer lacking the
+	// fonts substitutes others, whose widths differ. PDF always embeds
+	// its fonts; PNG has none.
+	PlainSVGFonts bool
 }
 
-// WriteTo renders p at the fixed size in format "png" or "svg" to w.
-// The output is a function of the plot and the options alone: no time
+func init() {
+	// A PDF carries no time stamp (its dates are fixed at the Unix epoch)
+	// and writes its catalogue in sorted order, so that the same figure
+	// gives the same bytes.
+	fpdf.SetDefaultCreationDate(time.Unix(0, 0).UTC())
+	fpdf.SetDefaultModificationDate(time.Unix(0, 0).UTC())
+	fpdf.SetDefaultCatalogSort(true)
+}
+
+// WriteTo renders p at the fixed size in format "pdf", "svg" or "png" to
+// w. The output is a function of the plot and the options alone: no time
 // stamps or random identifiers are written, so the same plot gives the
 // same bytes with the same versions of Go and gonum/plot (TestDeterministic;
-// both formats are rendered by pure Go code with compiled-in fonts).
+// every format is rendered by pure Go code with compiled-in fonts, which
+// PDF and SVG embed).
 func WriteTo(p *plot.Plot, w io.Writer, format string, o Options) error {
 	var c vg.CanvasWriterTo
 	switch format {
+	case "pdf":
+		pc := vgpdf.New(Width, Height)
+		pc.EmbedFonts(true)
+		c = pc
 	case "png":
 		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(Width, Height), vgimg.UseDPI(DPI))}
 	case "svg":
-		c = vgsvg.NewWith(vgsvg.UseWH(Width, Height), vgsvg.EmbedFonts(o.EmbedFonts))
+		c = vgsvg.NewWith(vgsvg.UseWH(Width, Height), vgsvg.EmbedFonts(!o.PlainSVGFonts))
 	default:
-		return fmt.Errorf("figures: unknown format %q (want %s)", format, strings.Join(Formats, " or "))
+		return fmt.Errorf("figures: unknown format %q (want %s)", format, strings.Join(Formats, ", "))
 	}
 	p.Draw(draw.New(c))
 	_, err := c.WriteTo(w)
 	return err
 }
 
-// Save writes p to path as PNG or SVG according to its extension (.png or
-// .svg, any case), with default Options. See SaveWith.
+// Save writes p to path as PDF, SVG or PNG according to its extension
+// (.pdf, .svg or .png, any case), with default Options. See SaveWith.
 func Save(p *plot.Plot, path string) error { return SaveWith(p, path, Options{}) }
 
-// SaveWith writes p to path as PNG or SVG according to its extension. The
+// SaveWith writes p to path in the format its extension names. The
 // file is written to a temporary name beside path and renamed into place,
 // so a failed render leaves no partial file.
 func SaveWith(p *plot.Plot, path string, o Options) error {

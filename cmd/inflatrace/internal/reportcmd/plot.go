@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 
@@ -36,7 +37,7 @@ type PlotOptions struct {
 func NewPlotCmd(env *app.Env, g *app.Globals) *cobra.Command {
 	o := &PlotOptions{Env: env, Globals: g}
 	cmd := &cobra.Command{
-		Use:   "plot RUN --out DIR [--format png|svg] [--r-scale log|linear] [--along N_star|PARAM] [--forecast NAME]...",
+		Use:   "plot RUN --out DIR [--format pdf|svg|png] [--r-scale log|linear] [--along N_star|PARAM] [--forecast NAME]...",
 		Short: "Draw a run's figures from the ledger: the n_s-r plane and r against a scanned parameter",
 		Long: `plot draws, without recomputing: the n_s-r plane with the 68% and 95% regions of
 the run's constraint sets, its predictions joined along N* (or along a scanned
@@ -54,7 +55,7 @@ the named forecasts (r-PARAM.png). Shipped forecasts: ` + strings.Join(study.For
 	}
 	f := cmd.Flags()
 	f.StringVar(&o.Out, "out", "", "folder to write the figures to")
-	f.StringVar(&o.Format, "format", "png", "png or svg")
+	f.StringVar(&o.Format, "format", figures.DefaultFormat, strings.Join(figures.Formats, ", ")+" (fonts embedded in PDF and SVG)")
 	f.StringVar(&o.RScale, "r-scale", "log", "log or linear r axis")
 	f.StringVar(&o.Along, "along", figures.AlongNStar, "join predictions along N_star or along a model parameter")
 	f.StringSliceVar(&o.Forecasts, "forecast", nil, "forecast sensitivities to draw on the r figure")
@@ -187,10 +188,10 @@ func Figures(ctx context.Context, l *ledger.Ledger, run ledger.RunDetail, result
 		return nil, app.Usage(fmt.Errorf("--r-scale %q: want log or linear", o.RScale))
 	}
 	if o.Format == "" {
-		o.Format = "png"
+		o.Format = figures.DefaultFormat
 	}
-	if o.Format != "png" && o.Format != "svg" {
-		return nil, app.Usage(fmt.Errorf("--format %q: want png or svg", o.Format))
+	if !slices.Contains(figures.Formats, o.Format) {
+		return nil, app.Usage(fmt.Errorf("--format %q: want %s", o.Format, strings.Join(figures.Formats, ", ")))
 	}
 	layers, err := constraints(ctx, l, run.ID)
 	if err != nil {

@@ -32,6 +32,10 @@ func TestTablePlotAndArchiveContents(t *testing.T) {
 	}
 	dir := filepath.Join(h.dir, "figs")
 	h.mustRun("plot", r.Run, "--out", dir, "--forecast", "litebird")
+	if pdf, err := os.ReadFile(filepath.Join(dir, "ns-r.pdf")); err != nil || !bytes.HasPrefix(pdf, []byte("%PDF-")) {
+		t.Errorf("plot without --format: no PDF (%v)", err)
+	}
+	h.mustRun("plot", r.Run, "--out", dir, "--forecast", "litebird", "--format", "png")
 	data, err := os.ReadFile(filepath.Join(dir, "ns-r.png"))
 	if err != nil {
 		t.Fatal(err)
