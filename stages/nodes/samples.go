@@ -62,3 +62,36 @@ func kdeFor(name, citation, text string) (*compare.KDE, error) {
 	}
 	return e.kde, nil
 }
+
+// ConstraintFrom reads the constraint a compare node used back from its
+// parameters: a compare.Gaussian, or a *compare.KDE for a sample-based
+// set. A forecast node gives false (see ForecastFrom).
+func ConstraintFrom(params pipeline.Values) (compare.Constraint, bool, error) {
+	switch text(params, "kind") {
+	case KindForecast:
+		return nil, false, nil
+	case KindSamples:
+		name, _ := params.Text("constraint")
+		citation, _ := params.Text("citation")
+		samples, _ := params.Text("samples")
+		k, err := kdeFor(name, citation, samples)
+		if err != nil {
+			return nil, false, err
+		}
+		return k, true, nil
+	}
+	g, ok := GaussianFrom(params)
+	return g, ok, nil
+}
+
+// ForecastFrom reads a forecast back from a compare node's parameters.
+func ForecastFrom(params pipeline.Values) (compare.Forecast, bool) {
+	if text(params, "kind") != KindForecast {
+		return compare.Forecast{}, false
+	}
+	var f compare.Forecast
+	f.Name, _ = params.Text("constraint")
+	f.Citation, _ = params.Text("citation")
+	f.SigmaR, _ = params.Num("sigma_r")
+	return f, true
+}

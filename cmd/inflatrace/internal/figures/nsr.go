@@ -4,28 +4,26 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 )
 
-// NsR draws the n_s-r plane: the 68.27% and 95.45% regions of each
-// constraint set (filled, darker inside), reheating stripes, and model
-// curves, with r on a linear axis from zero or a logarithmic one from
-// spec.RCut. Axis ranges not given are fitted to the content with a 5%
-// margin (a factor 1.5 above on a log axis). The axes are labelled "n_s"
-// and "r" in plain text.
-func NsR(spec NsRSpec) (*plot.Plot, error) {
+// NsR draws the n_s-r plane: the 68.27% region of each constraint set
+// (filled, solid outline) and its 95.45% region (dashed outline), reheating
+// stripes, forecast detection levels, and model curves, with r on a linear
+// axis from zero or a logarithmic one. Axis ranges not given follow the
+// content, so no point is clipped: the n_s axis spans the points, stripes
+// and 95% regions with a 5% margin; a log r axis spans the points and
+// levels with a factor 1.5 beyond them; a linear one starts at 0. Points
+// outside a range the caller fixed are counted in Figure.Clipped. The key
+// names every model, the meaning of each marker shape, each constraint
+// set's 68% and 95% regions, each band and each forecast level.
+func NsR(spec NsRSpec) (*Figure, error) {
 	if spec.RScale != Linear && spec.RScale != Log {
 		return nil, fmt.Errorf("figures: unknown r scale %d", spec.RScale)
-	}
-	rcut := spec.RCut
-	if rcut == 0 {
-		rcut = DefaultRCut
-	}
-	if spec.RScale == Log && !(rcut > 0) {
-		return nil, fmt.Errorf("figures: log r axis needs a cut r > 0, got %g", rcut)
 	}
 	grid := spec.Grid
 	if grid == 0 {
@@ -40,86 +38,106 @@ func NsR(spec NsRSpec) (*plot.Plot, error) {
 	if err := checkRange("r", spec.RRange, spec.RScale == Log); err != nil {
 		return nil, err
 	}
-
-	p := newPlot(spec.Title, "n_s", "r")
-	var ext extent
+	p := newPlot(spec.Title, `$n_s$`, `$r$`)
+	f := &Figure{Plot: p}
+	var regions, points extent // x: n_s; y: r
 	for i, layer := range spec.Constraints {
 		sets, err := constraintContours(layer.Set, grid)
 		if err != nil {
 			return nil, err
 		}
 		col := pick(layer.Color, constraintPalette, i)
-		line := draw.LineStyle{Color: col, Width: contourWidth}
-		r95 := &region{rings: sets[1].rings, lines: sets[1].lines, fill: withAlpha(col, alpha95), line: line}
-		r68 := &region{rings: sets[0].rings, lines: sets[0].lines, fill: withAlpha(col, alpha68), line: line}
+		line68 := draw.LineStyle{Color: col, Width: contourWidth}
+		line95 := draw.LineStyle{Color: col, Width: contourWidth, Dashes: dash95}
+		r95 := &region{rings: sets[1].rings, lines: sets[1].lines, line: line95}
+		r68 := &region{rings: sets[0].rings, lines: sets[0].lines, fill: withAlpha(col, alpha68), line: line68}
 		p.Add(r95, r68)
 		label := layer.Label
 		if label == "" {
 			label = layer.Set.Label()
 		}
-		if label != "" {
-			p.Legend.Add(label, r68)
-		}
+		label = plainText(label)
+		f.Key = append(f.Key,
+			KeyEntry{label + " 68%", Swatch{Kind: SwatchFilled, Line: line68, Fill: withAlpha(col, alpha68)}},
+			KeyEntry{label + " 95%", Swatch{Kind: SwatchOutline, Line: line95}})
 		for _, ring := range sets[1].rings {
 			for _, q := range ring {
-				ext.add(q.X, math.Max(q.Y, 0))
+				regions.add(q.X, math.Max(q.Y, 0))
 			}
 		}
 	}
-	for i, s := range spec.Stripes {
-		pl, err := stripePlotter(s, i)
+	for _, s := range spec.Stripes {
+		pl, err := stripePlotter(s)
 		if err != nil {
 			return nil, err
 		}
 		p.Add(pl)
 		if s.Label != "" {
-			p.Legend.Add(s.Label, pl)
+			f.Key = append(f.Key, KeyEntry{s.Label, Swatch{Kind: SwatchBand, Fill: withAlpha(stripeColor(s), alphaBand)}})
 		}
 		for _, q := range append(append(append([]xy(nil), fromPoints(s.Lower)...), fromPoints(s.Upper)...), fromPoints(s.Path)...) {
-			ext.add(q.X, q.Y)
+			points.add(q.X, q.Y)
 		}
 	}
-	for i, cv := range spec.Curves {
-		if cv.Tags != nil && len(cv.Tags) != len(cv.Points) {
-			return nil, fmt.Errorf("figures: curve %q: %d tags for %d points", cv.Label, len(cv.Tags), len(cv.Points))
+	var levels []float64
+	for _, fl := range spec.Forecasts {
+		y, entry, line, err := forecastLevel(fl)
+		if err != nil {
+			return nil, err
+		}
+		p.Add(&hline{y: y, line: line})
+		f.Key = append(f.Key, entry)
+		levels = append(levels, y)
+	}
+	var all [][]xy
+	for _, cv := range spec.Curves {
+		if cv.Markers != nil && len(cv.Markers) != len(cv.Points) {
+			return nil, fmt.Errorf("figures: curve %q: %d markers for %d points", cv.Label, len(cv.Markers), len(cv.Points))
 		}
 		pts := fromPoints(cv.Points)
 		if err := finite(cv.Label, pts); err != nil {
 			return nil, err
 		}
-		pl := newCurve(p, pts, cv.Tags, cv.Join, cv.Marker, pick(cv.Color, curvePalette, i))
-		p.Add(pl)
+		line := curveStyle(cv.Style)
+		if cv.Color != nil {
+			line.Color = cv.Color
+		}
+		p.Add(newCurve(pts, cv.Markers, cv.Marker, cv.Join, line))
 		if cv.Label != "" {
-			p.Legend.Add(cv.Label, pl)
+			f.Key = append(f.Key, KeyEntry{cv.Label, Swatch{Kind: SwatchLine, Line: line}})
 		}
 		for _, q := range pts {
-			ext.add(q.X, q.Y)
+			points.add(q.X, q.Y)
 		}
+		all = append(all, pts)
 	}
+	f.Key = append(f.Key, markerKey(spec.Markers)...)
 
-	// Axis ranges.
-	p.X.Min, p.X.Max = ext.x0, ext.x1
-	if spec.NsRange != [2]float64{} {
+	// Axis ranges: what the caller fixed, or what the content needs.
+	content := points
+	content.merge(regions)
+	switch {
+	case spec.NsRange != [2]float64{}:
 		p.X.Min, p.X.Max = spec.NsRange[0], spec.NsRange[1]
-	} else if !ext.ok() {
+	case !content.ok():
 		p.X.Min, p.X.Max = 0.94, 0.99
-	} else {
-		pad := 0.05 * math.Max(ext.x1-ext.x0, 1e-3)
-		p.X.Min, p.X.Max = ext.x0-pad, ext.x1+pad
+	default:
+		pad := 0.05 * math.Max(content.x1-content.x0, 1e-3)
+		p.X.Min, p.X.Max = content.x0-pad, content.x1+pad
 	}
 	switch {
 	case spec.RRange != [2]float64{}:
 		p.Y.Min, p.Y.Max = spec.RRange[0], spec.RRange[1]
 	case spec.RScale == Log:
-		top := 0.1
-		if ext.ok() && ext.y1 > rcut {
-			top = 1.5 * ext.y1
-		}
-		p.Y.Min, p.Y.Max = rcut, top
+		lo, hi := logSpan(points, append(levels, regions.y1), DefaultRCut, 0.1)
+		p.Y.Min, p.Y.Max = lo, hi
 	default:
 		top := 0.1
-		if ext.ok() && ext.y1 > 0 {
-			top = 1.05 * ext.y1
+		if content.ok() {
+			top = 1.05 * math.Max(content.y1, maxOf(levels))
+		}
+		if !(top > 0) {
+			top = 0.1
 		}
 		p.Y.Min, p.Y.Max = 0, top
 	}
@@ -127,40 +145,127 @@ func NsR(spec NsRSpec) (*plot.Plot, error) {
 		p.Y.Scale = plot.LogScale{}
 		p.Y.Tick.Marker = decadeTicks{}
 	}
-	if err := placeLegend(p, spec.Legend); err != nil {
-		return nil, err
-	}
-	return p, nil
+	f.Clipped = countOutside(all, p.X.Min, p.X.Max, p.Y.Min, p.Y.Max, spec.RScale == Log)
+	return f, nil
 }
 
-// newPlot returns a plot with the title and plain-text axis labels.
+// logSpan is the span of a log axis holding every point with y > 0 and
+// every level, a factor 1.5 beyond them; lo and hi are the defaults when
+// there is nothing.
+func logSpan(points extent, levels []float64, lo, hi float64) (float64, float64) {
+	min, max := math.Inf(1), math.Inf(-1)
+	if points.ok() && points.posY0 > 0 {
+		min, max = points.posY0, points.y1
+	}
+	for _, l := range levels {
+		if l > 0 {
+			min, max = math.Min(min, l), math.Max(max, l)
+		}
+	}
+	if math.IsInf(min, 0) {
+		return lo, hi
+	}
+	if max <= min {
+		max = min * 10
+	}
+	return min / 1.5, max * 1.5
+}
+
+func maxOf(xs []float64) float64 {
+	m := math.Inf(-1)
+	for _, x := range xs {
+		m = math.Max(m, x)
+	}
+	return m
+}
+
+// countOutside counts the points not inside the axis box (on a log axis,
+// r <= 0 is outside).
+func countOutside(curves [][]xy, x0, x1, y0, y1 float64, ylog bool) int {
+	n := 0
+	for _, pts := range curves {
+		for _, q := range pts {
+			if q.X < x0 || q.X > x1 || q.Y < y0 || q.Y > y1 || ylog && q.Y <= 0 {
+				n++
+			}
+		}
+	}
+	return n
+}
+
+// markerKey explains the marker shapes.
+func markerKey(ms []MarkerLabel) []KeyEntry {
+	var out []KeyEntry
+	for _, m := range ms {
+		out = append(out, KeyEntry{m.Label, Swatch{Kind: SwatchMarker, Glyph: draw.GlyphStyle{Color: color.Black, Radius: glyphRadius, Shape: m.Marker.shape()}}})
+	}
+	return out
+}
+
+// forecastLevel is a forecast's detection level: its r, key entry and line.
+func forecastLevel(fl ForecastLine) (float64, KeyEntry, draw.LineStyle, error) {
+	if err := fl.Forecast.Check(); err != nil {
+		return 0, KeyEntry{}, draw.LineStyle{}, err
+	}
+	k := fl.K
+	if k == 0 {
+		k = DetectionSigmas
+	}
+	if !(k > 0) || math.IsInf(k, 0) {
+		return 0, KeyEntry{}, draw.LineStyle{}, fmt.Errorf("figures: forecast %s: multiple K = %g, want > 0", fl.Forecast.Name, k)
+	}
+	y := k * fl.Forecast.SigmaR
+	col := fl.Color
+	if col == nil {
+		col = forecastColor
+	}
+	line := draw.LineStyle{Color: col, Width: contourWidth, Dashes: dashForecast}
+	label := fl.Label
+	if label == "" {
+		label = forecastLabel(fl.Forecast.Name, k, y)
+	}
+	return y, KeyEntry{label, Swatch{Kind: SwatchForecast, Line: line}}, line, nil
+}
+
+// forecastLabel states the rule: "LiteBIRD: detects r at 3σ above r =
+// 3σ(r) = 0.003".
+func forecastLabel(name string, k, y float64) string {
+	ks := strconv.FormatFloat(k, 'g', -1, 64)
+	return plainText(name) + ": detects $r$ at " + ks + `$\sigma$ above $r$ = ` + ks + `$\sigma(r)$ = ` + strconv.FormatFloat(y, 'g', 3, 64)
+}
+
+// newPlot returns a plot with the title and typeset axis labels.
 func newPlot(title, x, y string) *plot.Plot {
 	p := plot.New()
 	p.Title.Text = title
 	p.X.Label.Text = x
 	p.Y.Label.Text = y
-	p.Legend.ThumbnailWidth = vg.Points(16)
+	p.X.Label.TextStyle.Font.Size = vg.Points(12)
+	p.Y.Label.TextStyle.Font.Size = vg.Points(12)
+	useHandler(p, handler)
 	return p
 }
 
-func newCurve(p *plot.Plot, pts []xy, tags []string, join bool, m Marker, c color.Color) *curve {
-	font := p.X.Tick.Label
-	font.Font.Size = vg.Points(8)
-	font.XAlign = draw.XLeft
-	font.YAlign = draw.YBottom
-	font.Color = c
-	return &curve{
-		pts:   pts,
-		tags:  tags,
-		join:  join,
-		line:  draw.LineStyle{Color: c, Width: curveWidth},
-		glyph: draw.GlyphStyle{Color: c, Radius: glyphRadius, Shape: m.shape()},
-		font:  font,
+func newCurve(pts []xy, markers []Marker, m Marker, join bool, line draw.LineStyle) *curve {
+	cv := &curve{pts: pts, join: join, line: line, glyph: draw.GlyphStyle{Color: line.Color, Radius: glyphRadius, Shape: m.shape()}}
+	if markers != nil {
+		cv.glyphs = make([]draw.GlyphStyle, len(markers))
+		for i, mk := range markers {
+			cv.glyphs[i] = draw.GlyphStyle{Color: line.Color, Radius: glyphRadius, Shape: mk.shape()}
+		}
 	}
+	return cv
 }
 
-func stripePlotter(s Stripe, i int) (*region, error) {
-	col := pick(s.Color, curvePalette, i)
+func stripeColor(s Stripe) color.Color {
+	if s.Color != nil {
+		return s.Color
+	}
+	return curveStyle(s.Style).Color
+}
+
+func stripePlotter(s Stripe) (*region, error) {
+	col := stripeColor(s)
 	switch {
 	case len(s.Path) > 0 && (len(s.Lower) > 0 || len(s.Upper) > 0):
 		return nil, fmt.Errorf("figures: stripe %q: give Lower and Upper, or Path, not both", s.Label)
@@ -211,34 +316,11 @@ func checkRange(name string, r [2]float64, log bool) error {
 	return nil
 }
 
-func placeLegend(p *plot.Plot, c Corner) error {
-	switch c {
-	case TopRight:
-		p.Legend.Top, p.Legend.Left = true, false
-	case TopLeft:
-		p.Legend.Top, p.Legend.Left = true, true
-	case BottomRight:
-		p.Legend.Top, p.Legend.Left = false, false
-	case BottomLeft:
-		p.Legend.Top, p.Legend.Left = false, true
-	case NoLegend:
-		p.Legend = plot.NewLegend()
-	default:
-		return fmt.Errorf("figures: unknown legend corner %d", c)
-	}
-	p.Legend.XOffs, p.Legend.YOffs = -vg.Points(6), -vg.Points(6)
-	if p.Legend.Left {
-		p.Legend.XOffs = vg.Points(6)
-	}
-	if !p.Legend.Top {
-		p.Legend.YOffs = vg.Points(6)
-	}
-	return nil
-}
-
-// extent accumulates the bounding box of the content.
+// extent accumulates the bounding box of the content, and the least
+// positive y (what a log axis must reach).
 type extent struct {
 	x0, x1, y0, y1 float64
+	posY0          float64
 	n              int
 }
 
@@ -248,7 +330,18 @@ func (e *extent) add(x, y float64) {
 	}
 	e.x0, e.x1 = math.Min(e.x0, x), math.Max(e.x1, x)
 	e.y0, e.y1 = math.Min(e.y0, y), math.Max(e.y1, y)
+	if y > 0 && (e.posY0 == 0 || y < e.posY0) {
+		e.posY0 = y
+	}
 	e.n++
+}
+
+func (e *extent) merge(o extent) {
+	if o.n == 0 {
+		return
+	}
+	e.add(o.x0, o.y0)
+	e.add(o.x1, o.y1)
 }
 
 func (e *extent) ok() bool { return e.n > 0 }

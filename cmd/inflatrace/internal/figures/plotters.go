@@ -4,7 +4,6 @@ import (
 	"image/color"
 
 	"gonum.org/v1/plot"
-	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 )
@@ -82,16 +81,19 @@ func (r *region) Thumbnail(c *draw.Canvas) {
 	}
 }
 
-// curve draws points with glyphs, optionally joined, with optional text
-// beside each point.
+// curve draws points with glyphs, optionally joined. A curve of many
+// points (a scan) draws its glyphs at about maxGlyphs of them, evenly
+// spread and always at both ends, so that the shapes stay readable.
 type curve struct {
-	pts   []xy
-	tags  []string
-	join  bool
-	line  draw.LineStyle
-	glyph draw.GlyphStyle
-	font  text.Style
+	pts    []xy
+	join   bool
+	line   draw.LineStyle
+	glyph  draw.GlyphStyle   // at every point, unless glyphs is set
+	glyphs []draw.GlyphStyle // per point
 }
+
+// maxGlyphs is the number of glyphs drawn along a long curve.
+const maxGlyphs = 12
 
 // Plot implements plot.Plotter.
 func (cv *curve) Plot(c draw.Canvas, plt *plot.Plot) {
@@ -102,36 +104,29 @@ func (cv *curve) Plot(c draw.Canvas, plt *plot.Plot) {
 		}
 	}
 	tx, ty := plt.Transforms(&c)
+	step := 1
+	if n := len(cv.pts); n > 3*maxGlyphs {
+		step = (n - 1) / (maxGlyphs - 1)
+	}
 	for i, p := range cv.pts {
-		if !b.contains(p) {
+		if !b.contains(p) || i%step != 0 && i != len(cv.pts)-1 {
 			continue
 		}
-		at := vg.Point{X: tx(p.X), Y: ty(p.Y)}
-		c.DrawGlyph(cv.glyph, at)
-		if i < len(cv.tags) && cv.tags[i] != "" {
-			off := cv.glyph.Radius + vg.Points(2)
-			c.FillText(cv.font, vg.Point{X: at.X + off, Y: at.Y + off}, cv.tags[i])
+		g := cv.glyph
+		if cv.glyphs != nil {
+			g = cv.glyphs[i]
+		}
+		if g.Shape != nil {
+			c.DrawGlyph(g, vg.Point{X: tx(p.X), Y: ty(p.Y)})
 		}
 	}
 }
 
-// Thumbnail implements plot.Thumbnailer: a line segment if joined, and
-// the glyph.
-func (cv *curve) Thumbnail(c *draw.Canvas) {
-	y := c.Center().Y
-	if cv.join {
-		c.StrokeLine2(cv.line, c.Min.X, y, c.Max.X, y)
-	}
-	c.DrawGlyph(cv.glyph, c.Center())
-}
-
-// hline is a horizontal line across the plot at data y, labelled above
-// its left end.
+// hline is a horizontal line across the plot at data y (its text is in
+// the figure's key).
 type hline struct {
-	y     float64
-	label string
-	line  draw.LineStyle
-	font  text.Style
+	y    float64
+	line draw.LineStyle
 }
 
 // Plot implements plot.Plotter.
@@ -141,14 +136,5 @@ func (h *hline) Plot(c draw.Canvas, plt *plot.Plot) {
 	}
 	_, ty := plt.Transforms(&c)
 	y := ty(h.y)
-	c.StrokeLine2(h.line, c.Min.X, y, c.Max.X, y)
-	if h.label != "" {
-		c.FillText(h.font, vg.Point{X: c.Min.X + vg.Points(4), Y: y + vg.Points(2)}, h.label)
-	}
-}
-
-// Thumbnail implements plot.Thumbnailer.
-func (h *hline) Thumbnail(c *draw.Canvas) {
-	y := c.Center().Y
 	c.StrokeLine2(h.line, c.Min.X, y, c.Max.X, y)
 }

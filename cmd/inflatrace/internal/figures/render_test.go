@@ -10,10 +10,10 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
-	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
 
@@ -30,11 +30,11 @@ var (
 // package's example; the combination is illustrative).
 var upperLimit = compare.Gaussian{Name: "limit", MeanNs: 0.9649, SigmaNs: 0.0042, MeanR: 0, SigmaR: 0.036 / compare.HalfNormal95}
 
-// render draws p as PNG and decodes it.
-func render(t *testing.T, p *plot.Plot) image.Image {
+// render draws f as PNG and decodes it.
+func render(t *testing.T, f *Figure) image.Image {
 	t.Helper()
 	var buf bytes.Buffer
-	if err := WriteTo(p, &buf, "png", Options{}); err != nil {
+	if err := WriteTo(f, &buf, "png", Options{}); err != nil {
 		t.Fatal(err)
 	}
 	img, err := png.Decode(&buf)
@@ -66,12 +66,14 @@ func centroid(img image.Image, c color.NRGBA) (x, y float64, n int) {
 
 // expectedPixel maps data (x, y) to image pixels independently of the
 // plot's own transform: the data area is the rectangle gonum's
-// DataCanvas reports for the fixed canvas size, and a position in it is
+// DataCanvas reports for the figure's size (its key below), and a position in it is
 // the linear or logarithmic fraction of the axis range (the definition of
 // linear and log axes); image rows count down from the top.
-func expectedPixel(p *plot.Plot, x, y float64, xlog, ylog bool) (float64, float64) {
-	c := draw.New(vgimg.NewWith(vgimg.UseWH(Width, Height), vgimg.UseDPI(DPI)))
-	da := p.DataCanvas(c)
+func expectedPixel(f *Figure, x, y float64, xlog, ylog bool) (float64, float64) {
+	w, h := f.Size()
+	c := draw.New(vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(DPI)))
+	da := f.dataArea(c)
+	p := f.Plot
 	frac := func(v, lo, hi float64, log bool) float64 {
 		if log {
 			return (math.Log(v) - math.Log(lo)) / (math.Log(hi) - math.Log(lo))
@@ -81,10 +83,11 @@ func expectedPixel(p *plot.Plot, x, y float64, xlog, ylog bool) (float64, float6
 	dots := func(l float64) float64 { return l / 72 * DPI }
 	px := dots(float64(da.Min.X)) + frac(x, p.X.Min, p.X.Max, xlog)*dots(float64(da.Max.X-da.Min.X))
 	py := dots(float64(da.Min.Y)) + frac(y, p.Y.Min, p.Y.Max, ylog)*dots(float64(da.Max.Y-da.Min.Y))
-	return px, dots(float64(Height)) - py
+	return px, dots(float64(h)) - py
 }
 
-// TestNsRPixels: the PNG is 900 x 675 pixels (6 x 4.5 in at 150 dpi),
+// TestNsRPixels: the PNG is 900 pixels wide and 675 tall above its key
+// (6 x 4.5 in at 150 dpi),
 // and glyphs drawn in colours used nowhere else land where the data
 // coordinates say, within 0.75 pixel, for linear and logarithmic r axes
 // (the centroid of a glyph's fully covered pixels is its centre up to the
@@ -112,8 +115,9 @@ func TestNsRPixels(t *testing.T) {
 			t.Fatal(err)
 		}
 		img := render(t, p)
-		if b := img.Bounds(); b.Dx() != 900 || b.Dy() != 675 {
-			t.Fatalf("%s: image %dx%d, want 900x675", c.name, b.Dx(), b.Dy())
+		_, h := p.Size()
+		if b := img.Bounds(); b.Dx() != 900 || b.Dy() != int(math.Round(float64(h)/72*DPI)) || b.Dy() <= 675 {
+			t.Fatalf("%s: image %dx%d, want 900 wide and 675 plus the key tall", c.name, b.Dx(), b.Dy())
 		}
 		for _, g := range []struct {
 			col color.NRGBA
@@ -141,7 +145,6 @@ func TestRAlphaPixels(t *testing.T) {
 		XScale:    Log,
 		Curves:    []XYCurve{{X: []float64{3}, R: []float64{0.01}, Color: magenta}},
 		Forecasts: []ForecastLine{{Forecast: f, K: 3, Color: cyan}},
-		Legend:    NoLegend,
 	})
 	if err != nil {
 		t.Fatal(err)
@@ -152,19 +155,25 @@ func TestRAlphaPixels(t *testing.T) {
 	if n == 0 || math.Abs(x-wx) > 0.75 || math.Abs(y-wy) > 0.75 {
 		t.Errorf("point drawn at (%.2f, %.2f) [%d px], want (%.2f, %.2f)", x, y, n, wx, wy)
 	}
-	// The line's label is cyan too; take the line's rows only: rows
-	// where more than half the width is cyan.
+	// The key's swatch is cyan too; take the line's rows only: those with
+	// at least half the cyan pixels of the fullest row, which must hold
+	// more than a swatch can (the line is dotted: a pixel is exactly cyan
+	// only where a dot covers it fully).
 	b := img.Bounds()
-	var rows []int
+	counts := make([]int, b.Dy())
+	most := 0
 	for j := b.Min.Y; j < b.Max.Y; j++ {
-		k := 0
 		for i := b.Min.X; i < b.Max.X; i++ {
 			if color.NRGBAModel.Convert(img.At(i, j)).(color.NRGBA) == cyan {
-				k++
+				counts[j-b.Min.Y]++
 			}
 		}
-		if k > b.Dx()/3 {
-			rows = append(rows, j)
+		most = max(most, counts[j-b.Min.Y])
+	}
+	var rows []int
+	for j, k := range counts {
+		if k > 60 && 2*k >= most {
+			rows = append(rows, j+b.Min.Y)
 		}
 	}
 	_, wy = expectedPixel(p, 3, 3e-3, true, true)
@@ -177,8 +186,9 @@ func TestRAlphaPixels(t *testing.T) {
 	}
 }
 
-// TestSVG: the SVG is well-formed XML with an <svg> root of 432 x 324
-// points, and the title (with XML special characters) appears as text.
+// TestSVG: the SVG is well-formed XML with an <svg> root 432 points wide
+// and 324 plus the key tall, and the title (with XML special characters)
+// appears as text.
 func TestSVG(t *testing.T) {
 	title := "n_s & r <test>"
 	p, err := NsR(NsRSpec{Title: title, Constraints: []ConstraintLayer{{Set: upperLimit}}})
@@ -223,8 +233,9 @@ func TestSVG(t *testing.T) {
 	for _, a := range root.Attr {
 		attr[a.Name.Local] = a.Value
 	}
-	if attr["width"] != "432pt" || attr["height"] != "324pt" {
-		t.Errorf("svg size %s x %s, want 432pt x 324pt", attr["width"], attr["height"])
+	_, h := p.Size()
+	if want := strconv.FormatFloat(float64(h), 'g', -1, 64) + "pt"; attr["width"] != "432pt" || attr["height"] != want {
+		t.Errorf("svg size %s x %s, want 432pt x %s", attr["width"], attr["height"], want)
 	}
 	if !found {
 		t.Errorf("title %q not found as SVG text", title)
@@ -238,7 +249,7 @@ func TestDeterministic(t *testing.T) {
 		Title:       "determinism",
 		RScale:      Log,
 		Constraints: []ConstraintLayer{{Set: upperLimit}},
-		Curves:      []Curve{{Label: "m", Points: []compare.Point{{Ns: 0.96, R: 0.01}, {Ns: 0.965, R: 0.005}}, Join: true, Tags: []string{"a", "b"}}},
+		Curves:      []Curve{{Label: "m", Points: []compare.Point{{Ns: 0.96, R: 0.01}, {Ns: 0.965, R: 0.005}}, Join: true, Markers: []Marker{MarkerCircle, MarkerSquare}}},
 	}
 	for _, format := range Formats {
 		var out [2][]byte

@@ -15,62 +15,127 @@ import (
 const AlongNStar = "N_star"
 
 // CurvesAlong groups results into curves for NsR, joined along N*
-// (along = AlongNStar) or along a model parameter (along = its name).
+// (along = AlongNStar) or along a model parameter (along = its name), and
+// says what their marker shapes stand for.
 //
-// Along N*, one curve holds the results of one model, parameter set,
-// slow-roll method, reheating kind and, when set, w_reh, ordered by N*
-// (so a fixed-efolds scan, or a temperature scan at fixed w, is one curve).
+// Along N*, one curve holds every result of one model (family, label and
+// parameters) and method, whatever its reheating history, ordered by N*:
+// for a given model and method, (n_s, r) is a function of N* alone.
 // Along a parameter, one curve holds the results that agree in model, the
-// other parameters, method and history (the history part of the label,
-// such as "N*=55"), ordered by the parameter.
+// other parameters, method and history, ordered by the parameter.
+//
+// Models are told apart by line style (one style per model and method,
+// named once in the key), reheating histories by marker shape: "N*=55"
+// becomes $N_* = 55$ in the key, other histories their own words. Beyond
+// len(markerOrder) histories every point takes a circle and the shapes
+// mean nothing, so no marker key is given.
 //
 // Results with an error, bands (Band set) and results lacking the
 // parameter are skipped; a prediction listed once per constraint set is
-// used once. Curves come in order of first appearance, joined, with the
-// first and last points tagged ("N*=50", "alpha=0.1"). An error is
-// returned when nothing is left.
-func CurvesAlong(rows []study.Result, along string) ([]Curve, error) {
+// used once. An error is returned when nothing is left.
+func CurvesAlong(rows []study.Result, along string) ([]Curve, []MarkerLabel, error) {
 	groups, err := group(rows, along)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
+	marks, key := historyMarkers(groups)
 	out := make([]Curve, len(groups))
 	for i, g := range groups {
-		c := Curve{Label: g.label, Join: true, Tags: make([]string, len(g.rows))}
-		for _, r := range g.rows {
+		c := Curve{Label: g.label, Style: g.style, Join: true, Markers: make([]Marker, len(g.rows))}
+		for k, r := range g.rows {
 			c.Points = append(c.Points, compare.Point{Ns: r.Ns, R: r.R})
+			c.Markers[k] = marks[g.histories[k]]
 		}
-		c.Tags[0] = tag(along, g.x[0])
-		c.Tags[len(g.rows)-1] = tag(along, g.x[len(g.x)-1])
 		out[i] = c
 	}
-	return out, nil
+	return out, key, nil
 }
 
 // RCurvesAlong groups results as CurvesAlong does with along = param and
 // returns r against factor times the parameter (factor 3 for "3 alpha"),
 // for RAlpha.
-func RCurvesAlong(rows []study.Result, param string, factor float64) ([]XYCurve, error) {
+func RCurvesAlong(rows []study.Result, param string, factor float64) ([]XYCurve, []MarkerLabel, error) {
 	if param == AlongNStar {
-		return nil, fmt.Errorf("figures: r against a parameter needs a model parameter, not %s", AlongNStar)
+		return nil, nil, fmt.Errorf("figures: r against a parameter needs a model parameter, not %s", AlongNStar)
 	}
 	if !(factor != 0) || math.IsInf(factor, 0) || math.IsNaN(factor) {
-		return nil, fmt.Errorf("figures: factor %g, want finite and non-zero", factor)
+		return nil, nil, fmt.Errorf("figures: factor %g, want finite and non-zero", factor)
 	}
 	groups, err := group(rows, param)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
+	marks, key := historyMarkers(groups)
 	out := make([]XYCurve, len(groups))
 	for i, g := range groups {
-		c := XYCurve{Label: g.label, Join: true}
+		c := XYCurve{Label: g.label, Style: g.style, Join: true, Markers: make([]Marker, len(g.rows))}
 		for k, r := range g.rows {
 			c.X = append(c.X, factor*g.x[k])
 			c.R = append(c.R, r.R)
+			c.Markers[k] = marks[g.histories[k]]
 		}
 		out[i] = c
 	}
-	return out, nil
+	return out, key, nil
+}
+
+// historyMarkers hands out a marker shape per reheating history (fixed N*
+// in increasing order, then the others in order of first appearance),
+// with the key that explains them.
+func historyMarkers(groups []curveGroup) (map[string]Marker, []MarkerLabel) {
+	var order []string
+	seen := map[string]bool{}
+	for _, g := range groups {
+		for _, h := range g.histories {
+			if !seen[h] {
+				seen[h] = true
+				order = append(order, h)
+			}
+		}
+	}
+	// Fixed N* first, in increasing N*, then the other histories as met.
+	nstar := func(h string) (float64, bool) {
+		v, ok := strings.CutPrefix(h, "N*=")
+		if !ok {
+			return 0, false
+		}
+		x, err := strconv.ParseFloat(v, 64)
+		return x, err == nil
+	}
+	sort.SliceStable(order, func(i, j int) bool {
+		a, okA := nstar(order[i])
+		b, okB := nstar(order[j])
+		if okA && okB {
+			return a < b
+		}
+		return okA && !okB
+	})
+	marks := map[string]Marker{}
+	if len(order) > len(markerOrder) {
+		for _, h := range order {
+			marks[h] = MarkerCircle
+		}
+		return marks, nil
+	}
+	var key []MarkerLabel
+	for i, h := range order {
+		marks[h] = markerOrder[i]
+		key = append(key, MarkerLabel{markerOrder[i], historyText(h)})
+	}
+	return marks, key
+}
+
+// historyText is a history label as the key writes it: "N*=55" as
+// $N_* = 55$, "instantaneous" as "instantaneous reheating", the rest as
+// written.
+func historyText(h string) string {
+	if v, ok := strings.CutPrefix(h, "N*="); ok {
+		return "$N_*$ = " + plainText(v)
+	}
+	if h == "instantaneous" {
+		return "instantaneous reheating"
+	}
+	return plainText(h)
 }
 
 // StripeFromResults builds the stripe of a model scanned over param from
@@ -111,56 +176,75 @@ func StripeFromResults(label string, atNMin, atNMax []study.Result, param string
 	return Stripe{Label: label, Lower: lo, Upper: hi}, nil
 }
 
-// curveGroup is one curve's results in order of x.
+// curveGroup is one curve's results in order of x, with each result's
+// history, the curve's key label (empty when an earlier curve of the same
+// model already names it) and its style index (one per model and method).
 type curveGroup struct {
-	label string
-	rows  []study.Result
-	x     []float64
+	label     string
+	style     int
+	rows      []study.Result
+	x         []float64
+	histories []string
 }
 
 func group(rows []study.Result, along string) ([]curveGroup, error) {
+	methods := map[string]bool{}
+	for _, r := range rows {
+		methods[r.Method] = true
+	}
 	var order []string
 	byKey := map[string]*curveGroup{}
 	seen := map[string]bool{}
+	styles := map[string]int{}
 	for _, r := range rows {
 		if r.Error != "" || r.Band != nil {
 			continue
 		}
 		model, history := labelParts(r)
-		id := model + " | " + history
+		id := model + " | " + history + " | " + r.Method + " | " + r.End
 		if seen[id] {
 			continue
 		}
 		var x float64
-		var key, label string
+		name := model
 		if along == AlongNStar {
 			x = r.NStar
-			label = model + " | " + r.Reheating
-			if r.WReh != nil && r.Reheating != "instantaneous" {
-				label += " w=" + strconv.FormatFloat(*r.WReh, 'g', -1, 64)
-			}
-			key = strings.Join([]string{r.Model, model, r.Method, label}, "\x00")
 		} else {
 			v, ok := r.Params[along]
 			if !ok {
 				continue
 			}
-			x = v
-			label = dropParam(model, along) + " | " + history
-			key = strings.Join([]string{r.Model, r.Method, otherParams(r.Params, along), label}, "\x00")
+			x, name = v, dropParam(model, along)
 		}
 		if math.IsNaN(x) || math.IsNaN(r.Ns) || math.IsNaN(r.R) {
 			continue
 		}
 		seen[id] = true
+		identity := strings.Join([]string{r.Model, name, otherParams(r.Params, along), r.Method, r.End}, "\x00")
+		key := identity
+		if along != AlongNStar {
+			key += "\x00" + history
+		}
 		g, ok := byKey[key]
 		if !ok {
-			g = &curveGroup{label: label}
+			style, named := styles[identity]
+			if !named {
+				style = len(styles)
+				styles[identity] = style
+			}
+			g = &curveGroup{style: style}
+			if !named {
+				g.label = plainText(name)
+				if len(methods) > 1 {
+					g.label += " [" + plainText(r.Method) + "]"
+				}
+			}
 			byKey[key] = g
 			order = append(order, key)
 		}
 		g.rows = append(g.rows, r)
 		g.x = append(g.x, x)
+		g.histories = append(g.histories, history)
 	}
 	if len(order) == 0 {
 		return nil, fmt.Errorf("figures: no results to join along %s", along)
@@ -173,10 +257,11 @@ func group(rows []study.Result, along string) ([]curveGroup, error) {
 			idx[j] = j
 		}
 		sort.SliceStable(idx, func(a, b int) bool { return g.x[idx[a]] < g.x[idx[b]] })
-		sorted := curveGroup{label: g.label}
+		sorted := curveGroup{label: g.label, style: g.style}
 		for _, j := range idx {
 			sorted.rows = append(sorted.rows, g.rows[j])
 			sorted.x = append(sorted.x, g.x[j])
+			sorted.histories = append(sorted.histories, g.histories[j])
 		}
 		out[i] = sorted
 	}
@@ -232,13 +317,4 @@ func otherParams(ps map[string]float64, skip string) string {
 		parts[i] = n + "=" + strconv.FormatFloat(ps[n], 'g', -1, 64)
 	}
 	return strings.Join(parts, ", ")
-}
-
-// tag is "N*=50" or "alpha=0.1", four significant digits.
-func tag(along string, x float64) string {
-	name := along
-	if along == AlongNStar {
-		name = "N*"
-	}
-	return name + "=" + strconv.FormatFloat(x, 'g', 4, 64)
 }

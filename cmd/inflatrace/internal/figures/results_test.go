@@ -42,63 +42,69 @@ func scan() []study.Result {
 
 // TestCurvesAlongParam: along alpha, one curve per N* (history), points
 // ordered by alpha, each prediction once despite two constraint sets,
-// failed results and bands left out; labels drop alpha and keep the
-// history; the ends are tagged.
+// failed results and bands left out; both curves are one model, so they
+// share a line style and the key names the model (without alpha) once;
+// N* is told by the marker shape, N* = 50 first.
 func TestCurvesAlongParam(t *testing.T) {
-	cs, err := CurvesAlong(scan(), "alpha")
+	cs, key, err := CurvesAlong(scan(), "alpha")
 	if err != nil {
 		t.Fatal(err)
 	}
 	if len(cs) != 2 {
 		t.Fatalf("%d curves, want 2", len(cs))
 	}
+	if cs[0].Label != "att(n=2)" || cs[1].Label != "" || cs[0].Style != cs[1].Style {
+		t.Errorf("labels %q, %q and styles %d, %d: want the model named once, one style", cs[0].Label, cs[1].Label, cs[0].Style, cs[1].Style)
+	}
 	for k, n := range []float64{60, 50} {
 		c := cs[k]
-		if want := "att(n=2) | N*=" + ftoa(n); c.Label != want {
-			t.Errorf("label %q, want %q", c.Label, want)
-		}
 		if len(c.Points) != 3 || !c.Join {
-			t.Fatalf("curve %q: %d points", c.Label, len(c.Points))
+			t.Fatalf("curve %d: %d points", k, len(c.Points))
+		}
+		want := MarkerSquare // N* = 60, the second shape
+		if n == 50 {
+			want = MarkerCircle
 		}
 		for i, a := range []float64{0.1, 1, 10} {
-			if want := (compare.Point{Ns: 1 - 2/n, R: 12 * a / (n * n)}); c.Points[i] != want {
-				t.Errorf("curve %q point %d = %v, want %v", c.Label, i, c.Points[i], want)
+			if p := (compare.Point{Ns: 1 - 2/n, R: 12 * a / (n * n)}); c.Points[i] != p || c.Markers[i] != want {
+				t.Errorf("curve %d point %d = %v marker %d, want %v marker %d", k, i, c.Points[i], c.Markers[i], p, want)
 			}
 		}
-		if c.Tags[0] != "alpha=0.1" || c.Tags[1] != "" || c.Tags[2] != "alpha=10" {
-			t.Errorf("tags %q", c.Tags)
-		}
+	}
+	if len(key) != 2 || key[0].Label != "$N_*$ = 50" || key[0].Marker != MarkerCircle || key[1].Label != "$N_*$ = 60" {
+		t.Errorf("marker key %+v", key)
 	}
 }
 
-// TestCurvesAlongNStar: along N*, one curve per alpha, ordered by N*.
+// TestCurvesAlongNStar: along N*, one curve per alpha, ordered by N*, a
+// style each.
 func TestCurvesAlongNStar(t *testing.T) {
-	cs, err := CurvesAlong(scan(), AlongNStar)
+	cs, _, err := CurvesAlong(scan(), AlongNStar)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if len(cs) != 3 {
 		t.Fatalf("%d curves, want 3", len(cs))
 	}
-	if cs[0].Label != "att(alpha=1, n=2) | fixed-efolds" {
+	if cs[0].Label != "att(alpha=1, n=2)" {
 		t.Errorf("label %q", cs[0].Label)
 	}
-	for _, c := range cs {
-		if len(c.Points) != 2 || c.Points[0].Ns != 1-2.0/50 || c.Points[1].Ns != 1-2.0/60 {
-			t.Errorf("curve %q points %v, want N* 50 then 60", c.Label, c.Points)
+	for i, c := range cs {
+		if len(c.Points) != 2 || c.Points[0].Ns != 1-2.0/50 || c.Points[1].Ns != 1-2.0/60 || c.Style != i {
+			t.Errorf("curve %q points %v style %d, want N* 50 then 60, style %d", c.Label, c.Points, c.Style, i)
 		}
-		if c.Tags[0] != "N*=50" || c.Tags[1] != "N*=60" {
-			t.Errorf("tags %q", c.Tags)
+		if c.Markers[0] != MarkerCircle || c.Markers[1] != MarkerSquare {
+			t.Errorf("markers %v", c.Markers)
 		}
 	}
-	if _, err := CurvesAlong(scan(), "beta"); err == nil {
+	if _, _, err := CurvesAlong(scan(), "beta"); err == nil {
 		t.Error("a parameter no result has was accepted")
 	}
 }
 
 // TestRCurvesAlong: r against 3 alpha.
 func TestRCurvesAlong(t *testing.T) {
-	cs, err := RCurvesAlong(scan(), "alpha", 3)
+	cs, _, err := RCurvesAlong(scan(), "alpha", 3)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -111,10 +117,10 @@ func TestRCurvesAlong(t *testing.T) {
 			t.Errorf("point %d = (%g, %g), want (%g, %g)", i, c.X[i], c.R[i], 3*a, 12*a/2500)
 		}
 	}
-	if _, err := RCurvesAlong(scan(), AlongNStar, 3); err == nil {
+	if _, _, err := RCurvesAlong(scan(), AlongNStar, 3); err == nil {
 		t.Error("N* accepted as the parameter")
 	}
-	if _, err := RCurvesAlong(scan(), "alpha", 0); err == nil {
+	if _, _, err := RCurvesAlong(scan(), "alpha", 0); err == nil {
 		t.Error("factor 0 accepted")
 	}
 }

@@ -10,7 +10,6 @@ import (
 	"time"
 
 	"codeberg.org/go-pdf/fpdf"
-	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 	"gonum.org/v1/plot/vg/vgimg"
@@ -18,8 +17,9 @@ import (
 	"gonum.org/v1/plot/vg/vgsvg"
 )
 
-// Figure size and raster resolution: 6 x 4.5 inches, 150 dots per inch,
-// so a PNG is 900 x 675 pixels and an SVG 432 x 324 points.
+// Figure size and raster resolution: 6 x 4.5 inches above the key (which
+// adds its own height), 150 dots per inch, so a figure without a key is
+// 900 x 675 pixels as PNG and 432 x 324 points as SVG or PDF.
 const (
 	Width  = 6 * vg.Inch
 	Height = 4.5 * vg.Inch
@@ -57,45 +57,46 @@ func init() {
 // same bytes with the same versions of Go and gonum/plot (TestDeterministic;
 // every format is rendered by pure Go code with compiled-in fonts, which
 // PDF and SVG embed).
-func WriteTo(p *plot.Plot, w io.Writer, format string, o Options) error {
+func WriteTo(f *Figure, w io.Writer, format string, o Options) error {
 	var c vg.CanvasWriterTo
+	width, height := f.Size()
 	switch format {
 	case "pdf":
-		pc := vgpdf.New(Width, Height)
+		pc := vgpdf.New(width, height)
 		pc.EmbedFonts(true)
 		c = pc
 	case "png":
-		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(Width, Height), vgimg.UseDPI(DPI))}
+		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(DPI))}
 	case "svg":
-		c = vgsvg.NewWith(vgsvg.UseWH(Width, Height), vgsvg.EmbedFonts(!o.PlainSVGFonts))
+		c = vgsvg.NewWith(vgsvg.UseWH(width, height), vgsvg.EmbedFonts(!o.PlainSVGFonts))
 	default:
 		return fmt.Errorf("figures: unknown format %q (want %s)", format, strings.Join(Formats, ", "))
 	}
-	p.Draw(draw.New(c))
+	f.Draw(draw.New(c))
 	_, err := c.WriteTo(w)
 	return err
 }
 
 // Save writes p to path as PDF, SVG or PNG according to its extension
 // (.pdf, .svg or .png, any case), with default Options. See SaveWith.
-func Save(p *plot.Plot, path string) error { return SaveWith(p, path, Options{}) }
+func Save(f *Figure, path string) error { return SaveWith(f, path, Options{}) }
 
 // SaveWith writes p to path in the format its extension names. The
 // file is written to a temporary name beside path and renamed into place,
 // so a failed render leaves no partial file.
-func SaveWith(p *plot.Plot, path string, o Options) error {
+func SaveWith(f *Figure, path string, o Options) error {
 	format := strings.TrimPrefix(strings.ToLower(filepath.Ext(path)), ".")
 	var buf bytes.Buffer
-	if err := WriteTo(p, &buf, format, o); err != nil {
+	if err := WriteTo(f, &buf, format, o); err != nil {
 		return fmt.Errorf("figures: %s: %w", path, err)
 	}
-	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*")
+	file, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".*")
 	if err != nil {
 		return err
 	}
-	tmp := f.Name()
-	_, err = f.Write(buf.Bytes())
-	if cerr := f.Close(); err == nil {
+	tmp := file.Name()
+	_, err = file.Write(buf.Bytes())
+	if cerr := file.Close(); err == nil {
 		err = cerr
 	}
 	if err == nil {

@@ -15,42 +15,39 @@ const (
 	Log
 )
 
-// DefaultRCut is the lower end of a logarithmic r axis when the spec
-// gives none: the targets of planned experiments lie between 1e-3 and
-// 1e-2, and a log axis cannot reach r = 0.
+// DefaultRCut is the lower end of a logarithmic r axis when there is
+// nothing to fit it to (no prediction with r > 0): the targets of planned
+// experiments lie between 1e-3 and 1e-2.
 const DefaultRCut = 1e-4
 
-// Corner places the legend inside the data area.
-type Corner int
-
-// Legend corners; NoLegend omits it.
-const (
-	TopRight Corner = iota
-	TopLeft
-	BottomRight
-	BottomLeft
-	NoLegend
-)
-
-// ConstraintLayer is one constraint set drawn as its 68.27% (darker) and
-// 95.45% (lighter) regions with their boundaries.
+// ConstraintLayer is one constraint set drawn as its 68.27% region
+// (filled, with a solid outline) and its 95.45% region (a dashed outline,
+// unfilled), each with an entry in the key.
 type ConstraintLayer struct {
 	Set   compare.Constraint // compare.Gaussian, *compare.Gaussian or *compare.KDE
-	Label string             // legend text; empty means Set.Label()
+	Label string             // key text (plain); empty means Set.Label()
 	Color color.Color        // nil picks from the palette
 }
 
 // Curve is a model's predictions: points in order, optionally joined.
-// Join them along N* (same model, parameters and history, different fixed
-// N*) or along a scanned parameter (same model and history, different
-// parameter value): CurvesAlong builds either from results.
+// Join them along N* (same model and method, different N*) or along a
+// scanned parameter (same model and history, different parameter value):
+// CurvesAlong builds either from results.
 type Curve struct {
-	Label  string          // legend text; empty means no legend entry
-	Points []compare.Point // in drawing order
-	Tags   []string        // optional text beside each point ("" for none); nil or len(Points)
-	Join   bool            // draw a line through the points in order
-	Marker Marker          // glyph at each point
-	Color  color.Color     // nil picks from the palette
+	Label   string          // key text (typeset markup); empty means no key entry
+	Points  []compare.Point // in drawing order
+	Markers []Marker        // the glyph at each point; nil: Marker at every point
+	Join    bool            // draw a line through the points in order
+	Marker  Marker          // glyph at each point when Markers is nil
+	Style   int             // line style: the Style-th colour and dash (curveStyle)
+	Color   color.Color     // overrides the style's colour when set
+}
+
+// MarkerLabel says in the key what a marker shape stands for
+// ("$N_* = 50$", "instantaneous reheating").
+type MarkerLabel struct {
+	Marker Marker
+	Label  string // typeset markup
 }
 
 // Stripe is a reheating band drawn as a translucent fill.
@@ -65,25 +62,26 @@ type Curve struct {
 // For a single model, give Path instead: points along its curve from
 // N*_min to N*_max, drawn as a thick translucent line.
 type Stripe struct {
-	Label        string          // legend text; empty means no legend entry
+	Label        string          // key text (typeset markup); empty means no key entry
 	Lower, Upper []compare.Point // the two edges of a scanned model's stripe
 	Path         []compare.Point // a single model's band along its curve
-	Color        color.Color     // nil picks from the curve palette (stripe i matches curve i)
+	Style        int             // colour of the Style-th model (curveStyle)
+	Color        color.Color     // overrides the style's colour when set
 }
 
 // NsRSpec describes the n_s-r figure. Layers are drawn in the order
-// constraints, stripes, curves.
+// constraints, stripes, forecast levels, curves.
 type NsRSpec struct {
-	Title       string            // figure title, plain text
-	RScale      Scale             // Linear (from r = 0) or Log (from RCut)
-	RCut        float64           // lower end of a Log r axis; 0 means DefaultRCut
+	Title       string            // figure title (typeset markup)
+	RScale      Scale             // Linear (from r = 0) or Log
 	NsRange     [2]float64        // n_s axis range; zero means fit to the content
 	RRange      [2]float64        // r axis range; zero means fit to the content
 	Constraints []ConstraintLayer // drawn first, in order
 	Stripes     []Stripe          // reheating bands, over the constraints
 	Curves      []Curve           // model predictions, on top
+	Markers     []MarkerLabel     // what the curves' marker shapes stand for
+	Forecasts   []ForecastLine    // detection levels, as horizontal lines
 	Grid        int               // nodes a side of a KDE set's density grid; 0 means DefaultGrid
-	Legend      Corner            // where the legend goes (TopRight by default)
 }
 
 // DefaultGrid is the number of grid nodes a side on which a KDE
@@ -92,33 +90,40 @@ const DefaultGrid = 100
 
 // XYCurve is a curve of r against a scanned parameter, optionally joined.
 type XYCurve struct {
-	Label  string      // legend text; empty means no legend entry
-	X, R   []float64   // the scanned value (as plotted, e.g. 3 alpha) and r, pairwise
-	Join   bool        // draw a line through the points in order
-	Marker Marker      // glyph at each point
-	Color  color.Color // nil picks from the palette
+	Label   string    // key text (typeset markup); empty means no key entry
+	X, R    []float64 // the scanned value (as plotted, e.g. 3 alpha) and r, pairwise
+	Join    bool      // draw a line through the points in order
+	Markers []Marker  // the glyph at each point; nil: Marker at every point
+	Marker  Marker    // glyph at each point when Markers is nil
+	Style   int       // line style index (curveStyle)
+	Color   color.Color
 }
 
 // ForecastLine is a horizontal line at r = K sigma(r) of a planned
 // experiment: above it that experiment would detect r at K standard
-// deviations or more (compare.Forecast.Significance).
+// deviations or more (compare.Forecast.Significance), the rule the key
+// states.
 type ForecastLine struct {
 	Forecast compare.Forecast // the experiment and its sigma(r)
-	K        float64          // multiple of sigma(r); 0 means 1
-	Label    string           // text on the line; empty means "<name>: <K> sigma(r) = <value>"
-	Color    color.Color      // nil means grey
+	K        float64          // multiple of sigma(r); 0 means DetectionSigmas
+	Label    string           // key text; empty means "<name>: r > K sigma(r) = <value>"
+	Color    color.Color      // nil means dark grey
 }
+
+// DetectionSigmas is the significance a forecast line marks by default:
+// above it the experiment detects r at 3 sigma (common practice for an
+// "evidence" level).
+const DetectionSigmas = 3
 
 // RAlphaSpec describes the figure of r against a scanned parameter such as
 // 3 alpha, on a logarithmic r axis.
 type RAlphaSpec struct {
-	Title     string         // figure title, plain text
-	XLabel    string         // empty means "3 alpha"
+	Title     string         // figure title (typeset markup)
+	XLabel    string         // typeset markup; empty means "$3\alpha$"
 	XScale    Scale          // Linear or Log
 	XRange    [2]float64     // zero means fit to the content
 	RRange    [2]float64     // zero means fit to the content (and the forecast lines)
-	RCut      float64        // smallest r shown when fitting; 0 means DefaultRCut
 	Curves    []XYCurve      // predictions
-	Forecasts []ForecastLine // horizontal sensitivity lines
-	Legend    Corner         // where the legend goes (TopRight by default)
+	Markers   []MarkerLabel  // what the curves' marker shapes stand for
+	Forecasts []ForecastLine // horizontal detection levels
 }

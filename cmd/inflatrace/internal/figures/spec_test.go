@@ -22,7 +22,7 @@ func TestDecadeTicks(t *testing.T) {
 			labels = append(labels, tk.Label)
 		}
 	}
-	if got := strings.Join(labels, " "); got != "0.0001 0.001 0.01 0.1" {
+	if got := strings.Join(labels, " "); got != "$10^{-4}$ $10^{-3}$ $10^{-2}$ 0.1" {
 		t.Errorf("labels %q", got)
 	}
 	ticks = decadeTicks{}.Ticks(2.5e-3, 0.03)
@@ -35,37 +35,43 @@ func TestDecadeTicks(t *testing.T) {
 			labels = append(labels, tk.Label)
 		}
 	}
-	if len(labels) != 1 || labels[0] != "0.01" || len(ticks) != 10 {
+	if len(labels) != 1 || labels[0] != "$10^{-2}$" || len(ticks) != 10 {
 		t.Errorf("ticks %v", ticks)
 	}
 }
 
-// TestNsRRanges: fitted ranges hold the content (r from 0 on a linear
-// axis, from the cut on a log one, default 1e-4); given ranges are kept.
+// TestNsRRanges: fitted ranges hold the content, so nothing is clipped
+// (r from 0 on a linear axis; on a log one from the smallest r over 1.5
+// to the largest times 1.5, however small r is); given ranges are kept
+// and the points outside them counted.
 func TestNsRRanges(t *testing.T) {
 	curve := []Curve{{Points: []compare.Point{{Ns: 0.95, R: 0.08}, {Ns: 0.97, R: 0.002}}}}
-	p, err := NsR(NsRSpec{Constraints: []ConstraintLayer{{Set: upperLimit}}, Curves: curve})
+	f, err := NsR(NsRSpec{Constraints: []ConstraintLayer{{Set: upperLimit}}, Curves: curve})
 	if err != nil {
 		t.Fatal(err)
 	}
+	p := f.Plot
 	// The 95% ellipse of the upper limit spans n_s = 0.9649 ± sqrt(6.18) 0.0042.
 	half := math.Sqrt(compare.Chi2Level(compare.P95)) * 0.0042
-	if p.Y.Min != 0 || p.Y.Max < 0.08 || p.X.Min > 0.9649-half || p.X.Max < 0.97 {
-		t.Errorf("linear ranges x [%g, %g] y [%g, %g]", p.X.Min, p.X.Max, p.Y.Min, p.Y.Max)
+	if p.Y.Min != 0 || p.Y.Max < 0.08 || p.X.Min > 0.9649-half || p.X.Max < 0.97 || f.Clipped != 0 {
+		t.Errorf("linear ranges x [%g, %g] y [%g, %g], %d clipped", p.X.Min, p.X.Max, p.Y.Min, p.Y.Max, f.Clipped)
 	}
-	p, err = NsR(NsRSpec{RScale: Log, Curves: curve})
+	for _, small := range []float64{0.002, 1e-7} {
+		c := []Curve{{Points: []compare.Point{{Ns: 0.95, R: 0.08}, {Ns: 0.97, R: small}}}}
+		f, err = NsR(NsRSpec{RScale: Log, Curves: c})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if p := f.Plot; math.Abs(p.Y.Min-small/1.5) > 1e-15 || p.Y.Max < 0.08*1.5 || f.Clipped != 0 {
+			t.Errorf("log r range [%g, %g] for r down to %g, %d clipped", p.Y.Min, p.Y.Max, small, f.Clipped)
+		}
+	}
+	f, err = NsR(NsRSpec{RScale: Log, NsRange: [2]float64{0.95, 0.98}, RRange: [2]float64{1e-2, 0.05}, Curves: curve})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if p.Y.Min != DefaultRCut || p.Y.Max < 0.08 {
-		t.Errorf("log r range [%g, %g]", p.Y.Min, p.Y.Max)
-	}
-	p, err = NsR(NsRSpec{RScale: Log, RCut: 1e-3, NsRange: [2]float64{0.95, 0.98}, RRange: [2]float64{1e-3, 0.05}, Curves: curve})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if p.X.Min != 0.95 || p.X.Max != 0.98 || p.Y.Min != 1e-3 || p.Y.Max != 0.05 {
-		t.Errorf("given ranges not kept: x [%g, %g] y [%g, %g]", p.X.Min, p.X.Max, p.Y.Min, p.Y.Max)
+	if p := f.Plot; p.X.Min != 0.95 || p.X.Max != 0.98 || p.Y.Min != 1e-2 || p.Y.Max != 0.05 || f.Clipped != 2 {
+		t.Errorf("given ranges not kept: x [%g, %g] y [%g, %g], %d clipped (want 2)", p.X.Min, p.X.Max, p.Y.Min, p.Y.Max, f.Clipped)
 	}
 }
 
@@ -82,19 +88,17 @@ func TestSpecErrors(t *testing.T) {
 		spec NsRSpec
 		msg  string
 	}{
-		{"negative cut", NsRSpec{RScale: Log, RCut: -1}, "cut r > 0"},
 		{"bad scale", NsRSpec{RScale: 7}, "unknown r scale"},
 		{"reversed range", NsRSpec{NsRange: [2]float64{0.98, 0.95}}, "want min < max"},
 		{"log range from 0", NsRSpec{RScale: Log, RRange: [2]float64{0, 0.1}}, "want min > 0"},
 		{"small grid", NsRSpec{Grid: 3}, "at least 10"},
-		{"tags", NsRSpec{Curves: []Curve{{Label: "c", Points: two, Tags: []string{"a"}}}}, "1 tags for 2 points"},
+		{"markers", NsRSpec{Curves: []Curve{{Label: "c", Points: two, Markers: []Marker{MarkerRing}}}}, "1 markers for 2 points"},
 		{"NaN", NsRSpec{Curves: []Curve{{Label: "c", Points: []compare.Point{{Ns: math.NaN(), R: 0.01}}}}}, "want finite"},
 		{"stripe edges", NsRSpec{Stripes: []Stripe{{Label: "s", Lower: two, Upper: pt}}}, "edges of 2 and 1 points"},
 		{"stripe both", NsRSpec{Stripes: []Stripe{{Label: "s", Lower: two, Upper: two, Path: two}}}, "not both"},
 		{"stripe path", NsRSpec{Stripes: []Stripe{{Label: "s", Path: pt}}}, "at least 2 points"},
 		{"no set", NsRSpec{Constraints: []ConstraintLayer{{}}}, "without a constraint set"},
 		{"other type", NsRSpec{Constraints: []ConstraintLayer{{Set: otherConstraint{upperLimit}}}}, "no contours for a figures.otherConstraint"},
-		{"legend", NsRSpec{Legend: 9}, "unknown legend corner"},
 	} {
 		_, err := NsR(c.spec)
 		if err == nil || !strings.Contains(err.Error(), c.msg) {
@@ -119,13 +123,10 @@ func TestSpecErrors(t *testing.T) {
 	}
 }
 
-// TestForecastLabel: the default line label names the experiment, the
-// multiple and the value.
+// TestForecastLabel: the default key text names the experiment and
+// states the rule with its multiple and level.
 func TestForecastLabel(t *testing.T) {
-	if got := forecastLabel("X", 1, 1e-3); got != "X: sigma(r) = 0.001" {
-		t.Errorf("got %q", got)
-	}
-	if got := forecastLabel("X", 3, 1.5e-3); got != "X: 3 sigma(r) = 0.0015" {
+	if got := forecastLabel("X", 3, 1.5e-3); got != `X: detects $r$ at 3$\sigma$ above $r$ = 3$\sigma(r)$ = 0.0015` {
 		t.Errorf("got %q", got)
 	}
 }

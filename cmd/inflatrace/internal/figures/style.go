@@ -19,7 +19,13 @@ const (
 	MarkerCross
 	MarkerPlus
 	MarkerNone
+	MarkerHollowSquare
+	MarkerHollowTriangle
 )
+
+// markerOrder is the order in which marker shapes are handed out to the
+// values they stand for (N* = 50, 55, 60, then other histories).
+var markerOrder = []Marker{MarkerCircle, MarkerSquare, MarkerTriangle, MarkerRing, MarkerHollowSquare, MarkerHollowTriangle, MarkerCross, MarkerPlus}
 
 func (m Marker) shape() draw.GlyphDrawer {
 	switch m {
@@ -33,25 +39,48 @@ func (m Marker) shape() draw.GlyphDrawer {
 		return draw.CrossGlyph{}
 	case MarkerPlus:
 		return draw.PlusGlyph{}
+	case MarkerHollowSquare:
+		return draw.SquareGlyph{}
+	case MarkerHollowTriangle:
+		return draw.TriangleGlyph{}
 	case MarkerNone:
 		return nil
 	}
 	return draw.CircleGlyph{}
 }
 
-// The colour-blind-safe palette of Okabe & Ito (2008, "Color Universal
-// Design"): model curves take black, vermillion, blue, bluish green,
-// reddish purple, orange, sky blue, yellow in turn; constraint sets take
-// blue, vermillion, bluish green, reddish purple.
+// Colours are those of the colour-blind-safe set of Okabe & Ito (2008,
+// "Color Universal Design"), in an order of our own, plus a mid grey.
+// Model lines take them in turn and, past eight models, the next dash
+// pattern (solid, dashed, dotted, dash-dot), so 32 models have 32
+// distinct styles; constraint sets take bluish green, reddish purple,
+// orange and sky blue.
 var (
 	curvePalette = []color.NRGBA{
 		{0, 0, 0, 255}, {213, 94, 0, 255}, {0, 114, 178, 255}, {0, 158, 115, 255},
-		{204, 121, 167, 255}, {230, 159, 0, 255}, {86, 180, 233, 255}, {240, 228, 66, 255},
+		{204, 121, 167, 255}, {230, 159, 0, 255}, {86, 180, 233, 255}, {120, 120, 120, 255},
+	}
+	curveDashes = [][]vg.Length{
+		nil,
+		{vg.Points(5), vg.Points(2.5)},
+		{vg.Points(1.2), vg.Points(1.8)},
+		{vg.Points(6), vg.Points(2), vg.Points(1.2), vg.Points(2)},
 	}
 	constraintPalette = []color.NRGBA{
-		{0, 114, 178, 255}, {213, 94, 0, 255}, {0, 158, 115, 255}, {204, 121, 167, 255},
+		{0, 158, 115, 255}, {204, 121, 167, 255}, {230, 159, 0, 255}, {86, 180, 233, 255},
 	}
+	// dash95 outlines a 95% region; a 68% region is filled and outlined
+	// with a solid line.
+	dash95 = []vg.Length{vg.Points(3.5), vg.Points(2)}
+	// dashForecast draws a forecast's detection level.
+	dashForecast  = []vg.Length{vg.Points(1), vg.Points(2.5)}
+	forecastColor = color.NRGBA{70, 70, 70, 255}
 )
+
+// curveStyle is the line of the i-th model.
+func curveStyle(i int) draw.LineStyle {
+	return draw.LineStyle{Color: curvePalette[i%len(curvePalette)], Width: curveWidth, Dashes: curveDashes[(i/len(curvePalette))%len(curveDashes)]}
+}
 
 func pick(c color.Color, palette []color.NRGBA, i int) color.Color {
 	if c != nil {
@@ -75,9 +104,9 @@ var (
 	glyphRadius  = vg.Points(2.5)
 )
 
-// Opacities of the filled 95% and 68% regions and of reheating bands.
+// Opacities of the filled 68% region and of reheating bands (the 95%
+// region is an outline only).
 const (
-	alpha95   = 0.18
-	alpha68   = 0.40
+	alpha68   = 0.35
 	alphaBand = 0.25
 )

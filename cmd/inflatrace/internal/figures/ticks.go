@@ -30,10 +30,20 @@ func (decadeTicks) Ticks(min, max float64) []plot.Tick {
 			}
 			t := plot.Tick{Value: v}
 			if m == 1 {
-				t.Label = strconv.FormatFloat(v, 'g', -1, 64)
+				t.Label = decadeLabel(e)
 			}
 			ticks = append(ticks, t)
 		}
 	}
 	return ticks
+}
+
+// decadeLabel writes 10^e as a journal does: 1 and 10 plainly (and 0.1),
+// other powers as $10^{e}$.
+func decadeLabel(e int) string {
+	switch e {
+	case -1, 0, 1:
+		return strconv.FormatFloat(math.Pow10(e), 'g', -1, 64)
+	}
+	return "$10^{" + strconv.Itoa(e) + "}$"
 }

@@ -3,10 +3,12 @@ package reportcmd
 import (
 	"context"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 
 	"github.com/pelletier/go-toml/v2"
@@ -14,6 +16,7 @@ import (
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/figures"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tables"
 	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/compare"
@@ -29,21 +32,48 @@ type PlotOptions struct {
 	Out       string
 	Format    string
 	RScale    string
+	XScale    string
+	RRange    string
+	NsRange   string
 	Along     string
 	Forecasts []string
+	Models    []string
+	Reheating []string
+	Methods   []string
 }
 
 // NewPlotCmd returns the plot command.
 func NewPlotCmd(env *app.Env, g *app.Globals) *cobra.Command {
 	o := &PlotOptions{Env: env, Globals: g}
 	cmd := &cobra.Command{
-		Use:   "plot RUN --out DIR [--format pdf|svg|png] [--r-scale log|linear] [--along N_star|PARAM] [--forecast NAME]...",
+		Use:   "plot RUN --out DIR [--format pdf|svg|png] [--r-scale log|linear] [--r-range LO,HI] [--ns-range LO,HI] [--along N_star|PARAM] [--x-scale auto|log|linear] [--forecast NAME]... [--model M]... [--reheating H]... [--method M]...",
 		Short: "Draw a run's figures from the ledger: the n_s-r plane and r against a scanned parameter",
-		Long: `plot draws, without recomputing: the n_s-r plane with the 68% and 95% regions of
-the run's constraint sets, its predictions joined along N* (or along a scanned
-parameter with --along) and its reheating bands as stripes (ns-r.png); and,
-when a model parameter is scanned, r against it with the sensitivity lines of
-the named forecasts (r-PARAM.png). Shipped forecasts: ` + strings.Join(study.ForecastNames(), ", ") + ".",
+		Long: `plot draws, without recomputing, into --out:
+
+ns-r.FORMAT, the n_s-r plane: each constraint set of the run (Gaussian or
+sample-based) as its 68% region, filled with a solid outline, and its 95%
+region, a dashed outline; each model as a line of its own colour and dash
+(eight colours, then the next dash pattern), joined along N* (or along a
+scanned parameter with --along), with one marker shape per reheating
+history ($N_*$ = 50, 55, 60, instantaneous reheating, ...); reheating bands
+(history "band") as translucent stripes between the predictions at N*_min
+and N*_max of each parameter value, or along the curve of a single model;
+and each forecast (the run's [[forecast]] sets and --forecast) as a dotted
+horizontal line at r = 3 sigma(r), above which that experiment detects r at
+3 sigma. The key, below the data in as many columns as fit, names every
+model, marker, region, band and forecast line; nothing is written on the
+data.
+
+r-PARAM.FORMAT, for each scanned model parameter: r against it (3 alpha for
+alpha), with the same styles, markers and forecast lines. The parameter axis
+is logarithmic when the scan is log-spaced (--x-scale overrides).
+
+Axis ranges follow the data, so no point is cut off; --r-range and
+--ns-range fix them, and plot says how many points then fall outside.
+--model, --reheating and --method draw a subset (a model by its label or
+family, a history by its kind or its label part such as "N*=55"; each flag
+may repeat). PDF (the default) and SVG embed their fonts. Shipped forecasts:
+` + strings.Join(study.ForecastNames(), ", ") + ".",
 		Args: cobra.ExactArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			o.Run = args[0]
@@ -57,13 +87,23 @@ the named forecasts (r-PARAM.png). Shipped forecasts: ` + strings.Join(study.For
 	f.StringVar(&o.Out, "out", "", "folder to write the figures to")
 	f.StringVar(&o.Format, "format", figures.DefaultFormat, strings.Join(figures.Formats, ", ")+" (fonts embedded in PDF and SVG)")
 	f.StringVar(&o.RScale, "r-scale", "log", "log or linear r axis")
+	f.StringVar(&o.XScale, "x-scale", "auto", "parameter axis of r-PARAM: auto (log when the scan is log-spaced), log or linear")
+	f.StringVar(&o.RRange, "r-range", "", "r axis range LO,HI (default: follow the data)")
+	f.StringVar(&o.NsRange, "ns-range", "", "n_s axis range LO,HI (default: follow the data)")
 	f.StringVar(&o.Along, "along", figures.AlongNStar, "join predictions along N_star or along a model parameter")
-	f.StringSliceVar(&o.Forecasts, "forecast", nil, "forecast sensitivities to draw on the r figure")
+	f.StringSliceVar(&o.Forecasts, "forecast", nil, "forecasts to draw besides the run's own")
+	f.StringSliceVar(&o.Models, "model", nil, "draw only these models (label or family)")
+	f.StringSliceVar(&o.Reheating, "reheating", nil, "draw only these histories (kind, or label part such as N*=55)")
+	f.StringSliceVar(&o.Methods, "method", nil, "draw only these slow-roll methods")
 	return cmd
 }
 
 // Plot draws the figures.
 func Plot(ctx context.Context, o *PlotOptions) error {
+	fo, err := o.figureOptions()
+	if err != nil {
+		return err
+	}
 	l, err := o.Env.OpenLedger(o.Globals)
 	if err != nil {
 		return err
@@ -73,68 +113,118 @@ func Plot(ctx context.Context, o *PlotOptions) error {
 	if err != nil {
 		return err
 	}
-	var fcs []compare.Forecast
-	for _, n := range o.Forecasts {
-		f, err := study.ShippedForecast(n)
-		if err != nil {
-			return app.Usage(err)
-		}
-		fcs = append(fcs, f)
-	}
 	if err := os.MkdirAll(o.Out, 0o755); err != nil {
 		return err
 	}
-	written, err := Figures(ctx, l, run, results, FigureOptions{Dir: o.Out, Format: o.Format, RScale: o.RScale, Along: o.Along, Forecasts: fcs})
+	fo.Dir = o.Out
+	out, err := Figures(ctx, l, run, results, fo)
 	if err != nil {
 		return err
 	}
-	for _, p := range written {
+	for _, p := range out.Written {
 		fmt.Fprintf(o.Env.Stderr, "wrote %s\n", p)
+	}
+	for _, n := range out.Notes {
+		fmt.Fprintf(o.Env.Stderr, "note: %s\n", n)
 	}
 	return nil
 }
 
-// MaxLegend is the largest number of entries a figure's legend shows;
-// beyond it the legend is left out.
-const MaxLegend = 12
+// figureOptions checks the flags.
+func (o *PlotOptions) figureOptions() (FigureOptions, error) {
+	fo := FigureOptions{Format: o.Format, RScale: o.RScale, XScale: o.XScale, Along: o.Along,
+		Models: o.Models, Reheating: o.Reheating, Methods: o.Methods}
+	var err error
+	if fo.RRange, err = parseRange("--r-range", o.RRange); err != nil {
+		return fo, err
+	}
+	if fo.NsRange, err = parseRange("--ns-range", o.NsRange); err != nil {
+		return fo, err
+	}
+	for _, n := range o.Forecasts {
+		f, err := study.ShippedForecast(n)
+		if err != nil {
+			return fo, app.Usage(fmt.Errorf("--forecast: %w", err))
+		}
+		fo.Forecasts = append(fo.Forecasts, f)
+	}
+	return fo, nil
+}
+
+// parseRange reads "LO,HI".
+func parseRange(flag, s string) ([2]float64, error) {
+	if s == "" {
+		return [2]float64{}, nil
+	}
+	lo, hi, ok := strings.Cut(s, ",")
+	a, err1 := strconv.ParseFloat(strings.TrimSpace(lo), 64)
+	b, err2 := strconv.ParseFloat(strings.TrimSpace(hi), 64)
+	if !ok || err1 != nil || err2 != nil || !(a < b) || math.IsInf(a, 0) || math.IsInf(b, 0) {
+		return [2]float64{}, app.Usage(fmt.Errorf("%s %q: want LO,HI with LO < HI (for example 1e-4,0.1)", flag, s))
+	}
+	return [2]float64{a, b}, nil
+}
 
 // FigureOptions choose what Figures draws.
 type FigureOptions struct {
-	Dir, Format, RScale, Along string
-	Forecasts                  []compare.Forecast
+	Dir, Format, RScale, XScale, Along string
+	RRange, NsRange                    [2]float64
+	Forecasts                          []compare.Forecast // besides the run's own
+	Models, Reheating, Methods         []string           // filters; empty keeps all
 }
 
-// title returns the configuration's title, or the run id.
+// FiguresWritten is what Figures did.
+type FiguresWritten struct {
+	Written []string
+	Notes   []string // points left out of fixed ranges, and the like
+}
+
+// title returns the configuration's title, or the run id, as plain text.
 func title(run ledger.RunDetail) string {
 	var t struct {
 		Title string `toml:"title"`
 	}
 	if err := toml.Unmarshal([]byte(run.ConfigText), &t); err == nil && t.Title != "" {
-		return t.Title
+		return plain(t.Title)
 	}
 	return "inflatrace run " + string(run.ID)
 }
 
-// constraints returns the Gaussian sets the run's comparisons used.
-func constraints(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) ([]figures.ConstraintLayer, error) {
-	ns, err := l.RunNodes(ctx, id)
+// plain makes user text safe for the typeset labels.
+func plain(s string) string { return strings.NewReplacer(`\`, `\\`, `$`, `\$`).Replace(s) }
+
+// constraints returns the constraint sets and forecasts the run's
+// comparisons used, in the order the run met them.
+func constraints(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) ([]figures.ConstraintLayer, []compare.Forecast, error) {
+	ns, err := l.RunNodeHeads(ctx, id)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	seen := map[string]bool{}
-	var out []figures.ConstraintLayer
+	var sets []figures.ConstraintLayer
+	var fcs []compare.Forecast
 	for _, n := range ns {
 		if n.Stage != nodes.CompareStage {
 			continue
 		}
-		g, ok := nodes.GaussianFrom(n.Params)
-		if !ok || seen[g.Name] {
+		name, _ := n.Params.Text("constraint")
+		if seen[name] {
 			continue
 		}
-		seen[g.Name] = true
-		out = append(out, figures.ConstraintLayer{Set: g})
+		seen[name] = true
+		if f, ok := nodes.ForecastFrom(n.Params); ok {
+			fcs = append(fcs, f)
+			continue
+		}
+		c, ok, err := nodes.ConstraintFrom(n.Params)
+		if err != nil {
+			return nil, nil, err
+		}
+		if ok {
+			sets = append(sets, figures.ConstraintLayer{Set: c})
+		}
 	}
-	return out, nil
+	return sets, fcs, nil
 }
 
 // stripes turns the run's band results into stripes: one per model label
@@ -153,16 +243,16 @@ func stripes(results []study.Result) []figures.Stripe {
 		if i := strings.IndexByte(model, '('); i > 0 {
 			model = model[:i]
 		}
-		k := key{model, strings.Join(parts[1:], " | ")}
+		k := key{model, parts[min(1, len(parts)-1)]}
 		if _, ok := groups[k]; !ok {
 			order = append(order, k)
 		}
 		groups[k] = append(groups[k], r)
 	}
 	var out []figures.Stripe
-	for _, k := range order {
+	for i, k := range order {
 		g := groups[k]
-		s := figures.Stripe{Label: k.model + " " + k.history}
+		s := figures.Stripe{Label: plain(k.model + " " + k.history), Style: i}
 		for _, r := range g {
 			lo := compare.Point{Ns: r.Band.NsAtNStar[0], R: r.Band.RAtNStar[0]}
 			hi := compare.Point{Ns: r.Band.NsAtNStar[1], R: r.Band.RAtNStar[1]}
@@ -177,8 +267,114 @@ func stripes(results []study.Result) []figures.Stripe {
 	return out
 }
 
-// Figures draws a run's figures into o.Dir and returns the paths written.
-func Figures(ctx context.Context, l *ledger.Ledger, run ledger.RunDetail, results []study.Result, o FigureOptions) ([]string, error) {
+// keep applies the figure filters.
+func keep(results []study.Result, o FigureOptions) []study.Result {
+	match := func(want []string, have ...string) bool {
+		if len(want) == 0 {
+			return true
+		}
+		for _, w := range want {
+			for _, h := range have {
+				if h != "" && strings.EqualFold(w, h) {
+					return true
+				}
+			}
+		}
+		return false
+	}
+	var out []study.Result
+	for _, r := range results {
+		parts := strings.Split(r.Label, " | ")
+		history := ""
+		if len(parts) > 1 {
+			history = parts[1]
+		}
+		if match(o.Models, tables.ModelLabel(r), r.Model, parts[0]) && match(o.Reheating, r.Reheating, history) && match(o.Methods, r.Method) {
+			out = append(out, r)
+		}
+	}
+	return out
+}
+
+// greekParams are the parameter names written as Greek letters on an axis.
+var greekParams = map[string]bool{"alpha": true, "beta": true, "gamma": true, "delta": true, "xi": true, "mu": true, "lambda": true, "phi": true}
+
+// paramAxis is the axis factor and typeset label of a scanned parameter.
+func paramAxis(param string) (float64, string) {
+	switch {
+	case param == "alpha":
+		return 3, `$3\alpha$`
+	case greekParams[param]:
+		return 1, `$\` + param + `$`
+	}
+	return 1, plain(param)
+}
+
+// logSpaced reports whether a scan's values are log-spaced: all positive,
+// spanning more than a decade, with ratios of neighbours more alike than
+// their differences (or, for a scan of a few values, spanning at least
+// two decades).
+func logSpaced(xs []float64) bool {
+	vs := append([]float64(nil), xs...)
+	sort.Float64s(vs)
+	vs = slices.Compact(vs)
+	if len(vs) < 2 || vs[0] <= 0 || vs[len(vs)-1]/vs[0] < 10 {
+		return false
+	}
+	if len(vs) < 4 {
+		return vs[len(vs)-1]/vs[0] >= 100
+	}
+	spread := func(d []float64) float64 {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, x := range d {
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+		return (hi - lo) / math.Abs(hi+lo) * 2
+	}
+	var diffs, logs []float64
+	for i := 1; i < len(vs); i++ {
+		diffs = append(diffs, vs[i]-vs[i-1])
+		logs = append(logs, math.Log(vs[i]/vs[i-1]))
+	}
+	return spread(logs) < spread(diffs)
+}
+
+// Built is a figure BuildFigures drew, with its file name without
+// extension ("ns-r", "r-alpha").
+type Built struct {
+	Name   string
+	Figure *figures.Figure
+}
+
+// Figures draws a run's figures into o.Dir and says what it wrote.
+func Figures(ctx context.Context, l *ledger.Ledger, run ledger.RunDetail, all []study.Result, o FigureOptions) (FiguresWritten, error) {
+	var out FiguresWritten
+	if o.Format == "" {
+		o.Format = figures.DefaultFormat
+	}
+	if !slices.Contains(figures.Formats, o.Format) {
+		return out, app.Usage(fmt.Errorf("--format %q: want %s", o.Format, strings.Join(figures.Formats, ", ")))
+	}
+	built, err := BuildFigures(ctx, l, run, all, o)
+	if err != nil {
+		return out, err
+	}
+	for _, b := range built {
+		path := filepath.Join(o.Dir, b.Name+"."+o.Format)
+		if err := figures.Save(b.Figure, path); err != nil {
+			return out, err
+		}
+		out.Written = append(out.Written, path)
+		if b.Figure.Clipped > 0 {
+			out.Notes = append(out.Notes, fmt.Sprintf("%s: %d point(s) lie outside the fixed axis ranges and are not drawn", path, b.Figure.Clipped))
+		}
+	}
+	return out, nil
+}
+
+// BuildFigures draws a run's figures, from the ledger alone: the n_s-r
+// plane and r against each scanned parameter.
+func BuildFigures(ctx context.Context, l *ledger.Ledger, run ledger.RunDetail, all []study.Result, o FigureOptions) ([]Built, error) {
 	scale := figures.Log
 	switch o.RScale {
 	case "", "log":
@@ -187,67 +383,73 @@ func Figures(ctx context.Context, l *ledger.Ledger, run ledger.RunDetail, result
 	default:
 		return nil, app.Usage(fmt.Errorf("--r-scale %q: want log or linear", o.RScale))
 	}
-	if o.Format == "" {
-		o.Format = figures.DefaultFormat
+	switch o.XScale {
+	case "", "auto", "log", "linear":
+	default:
+		return nil, app.Usage(fmt.Errorf("--x-scale %q: want auto, log or linear", o.XScale))
 	}
-	if !slices.Contains(figures.Formats, o.Format) {
-		return nil, app.Usage(fmt.Errorf("--format %q: want %s", o.Format, strings.Join(figures.Formats, ", ")))
+	if scale == figures.Log && o.RRange != [2]float64{} && !(o.RRange[0] > 0) {
+		return nil, app.Usage(fmt.Errorf("--r-range %g,%g: a log r axis needs LO > 0 (or --r-scale linear)", o.RRange[0], o.RRange[1]))
 	}
-	layers, err := constraints(ctx, l, run.ID)
+	results := keep(all, o)
+	if len(results) == 0 {
+		return nil, app.Usage(fmt.Errorf("--model, --reheating and --method leave none of the run's %d results to draw", len(all)))
+	}
+	layers, own, err := constraints(ctx, l, run.ID)
 	if err != nil {
 		return nil, err
+	}
+	var lines []figures.ForecastLine
+	seen := map[string]bool{}
+	for _, f := range append(own, o.Forecasts...) {
+		if !seen[f.Name] {
+			seen[f.Name] = true
+			lines = append(lines, figures.ForecastLine{Forecast: f})
+		}
 	}
 	along := o.Along
 	if along == "" {
 		along = figures.AlongNStar
 	}
-	spec := figures.NsRSpec{Title: title(run), RScale: scale, Constraints: layers, Stripes: stripes(results)}
-	if curves, err := figures.CurvesAlong(results, along); err == nil {
-		spec.Curves = curves
+	spec := figures.NsRSpec{Title: title(run), RScale: scale, RRange: o.RRange, NsRange: o.NsRange,
+		Constraints: layers, Stripes: stripes(results), Forecasts: lines}
+	if curves, marks, err := figures.CurvesAlong(results, along); err == nil {
+		spec.Curves, spec.Markers = curves, marks
 	} else if len(spec.Stripes) == 0 {
 		return nil, fmt.Errorf("nothing to draw: %w", err)
 	}
-	if len(spec.Curves)+len(spec.Stripes) > MaxLegend {
-		spec.Legend = figures.NoLegend // the curves' end tags still name N* or the parameter
-	}
-	var written []string
-	p, err := figures.NsR(spec)
+	f, err := figures.NsR(spec)
 	if err != nil {
 		return nil, err
 	}
-	path := filepath.Join(o.Dir, "ns-r."+o.Format)
-	if err := figures.Save(p, path); err != nil {
-		return nil, err
-	}
-	written = append(written, path)
+	built := []Built{{"ns-r", f}}
 	// r against each scanned parameter (one with more than one value).
 	for _, param := range scanned(results) {
-		factor, label := 1.0, param
-		if param == "alpha" {
-			factor, label = 3, "3 alpha"
-		}
-		xy, err := figures.RCurvesAlong(results, param, factor)
+		factor, label := paramAxis(param)
+		xy, marks, err := figures.RCurvesAlong(results, param, factor)
 		if err != nil {
 			continue
 		}
-		rs := figures.RAlphaSpec{Title: title(run), XLabel: label, Curves: xy}
-		if len(xy) > MaxLegend {
-			rs.Legend = figures.NoLegend
+		rs := figures.RAlphaSpec{Title: title(run), XLabel: label, Curves: xy, Markers: marks, Forecasts: lines}
+		if o.RRange != [2]float64{} && o.RRange[0] > 0 {
+			rs.RRange = o.RRange
 		}
-		for _, f := range o.Forecasts {
-			rs.Forecasts = append(rs.Forecasts, figures.ForecastLine{Forecast: f})
+		var xs []float64
+		for _, c := range xy {
+			for _, x := range c.X {
+				xs = append(xs, x/factor)
+			}
 		}
-		p, err := figures.RAlpha(rs)
+		if o.XScale == "log" || (o.XScale == "" || o.XScale == "auto") && logSpaced(xs) {
+			rs.XScale = figures.Log
+		}
+		f, err := figures.RAlpha(rs)
 		if err != nil {
 			return nil, err
 		}
-		path := filepath.Join(o.Dir, "r-"+param+"."+o.Format)
-		if err := figures.Save(p, path); err != nil {
-			return nil, err
-		}
-		written = append(written, path)
+		built = append(built, Built{"r-" + param, f})
 	}
-	return written, nil
+	return built, nil
 }
 
 // scanned lists the model parameters that take more than one value.
@@ -271,15 +473,19 @@ func scanned(results []study.Result) []string {
 	return out
 }
 
-// archiveFigures draws a run's figures into dir/figures. A run whose
-// results cannot be drawn (only failures, say) is archived without them.
+// archiveFigures draws a run's figures into dir/figures in every format
+// (PDF for the paper, SVG, PNG for a quick look). A run whose results
+// cannot be drawn (only failures, say) is archived without them.
 func archiveFigures(ctx context.Context, led *ledger.Ledger, dir string, run ledger.RunDetail, results []study.Result) error {
 	figDir := filepath.Join(dir, "figures")
 	if err := os.MkdirAll(figDir, 0o755); err != nil {
 		return err
 	}
-	if _, err := Figures(ctx, led, run, results, FigureOptions{Dir: figDir, Format: "png"}); err != nil {
-		os.Remove(figDir)
+	for _, format := range figures.Formats {
+		if _, err := Figures(ctx, led, run, results, FigureOptions{Dir: figDir, Format: format}); err != nil {
+			os.RemoveAll(figDir)
+			return nil
+		}
 	}
 	return nil
 }
