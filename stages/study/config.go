@@ -305,6 +305,14 @@ func number(v any) (float64, string, error) {
 	return 0, "", fmt.Errorf("want a number or a ratio such as \"1/3\", got %T", v)
 }
 
+// ParseNumber reads a number as a study writes one in text: a decimal
+// ("0.5", "1e-3") or a ratio "p/q" ("1/3"), to the float64 the study
+// computes from it (p/q divided in float64).
+func ParseNumber(s string) (float64, error) {
+	x, _, err := number(s)
+	return x, err
+}
+
 // numbers reads a number or a non-empty list of numbers.
 func numbers(v any) ([]float64, []string, error) {
 	if t, ok := v.(map[string]any); ok {

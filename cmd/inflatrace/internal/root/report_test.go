@@ -21,7 +21,9 @@ func TestTablePlotAndArchiveContents(t *testing.T) {
 	h := newHarness(t)
 	r := decodeRun(t, h.mustRun("run", h.write("a.toml", studyA), "--json"))
 	tex := h.mustRun("table", r.Run, "--format", "latex", "--digits", "3")
-	if !strings.HasPrefix(tex, "\\begin{tabular}") || !strings.Contains(tex, "\\end{tabular}") || strings.Count(tex, "\\\\") != 1+3 {
+	// The wide layout: a header row of set names, one of column headers,
+	// a row per prediction (booktabs rules, no \hline).
+	if !strings.HasPrefix(tex, "\\begin{tabular}") || !strings.Contains(tex, "\\end{tabular}") || strings.Count(tex, "\\\\") != 2+3 || strings.Contains(tex, `\hline`) {
 		t.Errorf("LaTeX table:\n%s", tex)
 	}
 	csv := h.mustRun("table", r.Run, "--format", "csv", "--columns", "model,param.alpha,n_s", "--exact")

@@ -27,6 +27,10 @@ type column struct {
 	latex string // LaTeX header
 	kind  kind
 	get   func(r study.Result) cell // nil for the ordinal column
+	// compared marks a column of the comparison with a constraint set or
+	// forecast rather than of the prediction: in the wide layout it is
+	// repeated under each set that gives it a value.
+	compared bool
 }
 
 // value is the cell of row k (from 0), result r, in this column.
@@ -44,6 +48,9 @@ type cell struct {
 	num    float64
 	flag   bool
 	params map[string]float64
+	// written is each parameter as the study wrote it ("1/3"), for the
+	// params column (WrittenParams).
+	written map[string]string
 }
 
 func txt(s string) cell  { return cell{ok: true, text: s} }
@@ -101,16 +108,26 @@ func history(r study.Result) string {
 	return r.Reheating
 }
 
-// ModelLabel is the model part of a result label "label(params) |
-// history | constraint" without its parameter list: the user's [[model]]
-// label, or the family name when the study gives none.
+// ModelLabel is the model part of a result label "label(params)
+// [method] | history | constraint" without its parameter list and method:
+// the user's [[model]] label, or the family name when the study gives
+// none.
 func ModelLabel(r study.Result) string {
 	s, _, _ := strings.Cut(r.Label, " | ")
-	if len(r.Params) == 0 || !strings.HasSuffix(s, ")") {
-		return s
+	if r.Method != "" {
+		s = strings.TrimSuffix(s, " ["+r.Method+"]")
 	}
-	// Cut the parameter list at the parenthesis matching the last one: a
-	// label may itself hold parentheses.
+	label, _, _ := cutParams(s, len(r.Params) > 0)
+	return label
+}
+
+// cutParams splits "label(a=1, b=2)" into the label and the parameter
+// list "a=1, b=2", cutting at the parenthesis matching the last one (a
+// label may itself hold parentheses); ok is false when s has no list.
+func cutParams(s string, hasParams bool) (label, list string, ok bool) {
+	if !hasParams || !strings.HasSuffix(s, ")") {
+		return s, "", false
+	}
 	depth := 0
 	for i := len(s) - 1; i >= 0; i-- {
 		switch s[i] {
@@ -119,66 +136,73 @@ func ModelLabel(r study.Result) string {
 		case '(':
 			depth--
 			if depth == 0 {
-				return s[:i]
+				return s[:i], s[i+1 : len(s)-1], true
 			}
 		}
 	}
-	return s
+	return s, "", false
 }
 
 // columns are the selectable columns in their documented order (see the
 // package documentation); param.NAME columns are made on demand.
 var columns = []column{
-	{"row", "#", "\\#", ordinal, nil},
-	{"label", "Label", "Label", text, func(r study.Result) cell { return txt(r.Label) }},
-	{"model_label", "Model label", "Model", text, func(r study.Result) cell { return txt(ModelLabel(r)) }},
-	{"model", "Model", "Model", text, func(r study.Result) cell { return txt(r.Model) }},
-	{"params", "Parameters", "Parameters", params, func(r study.Result) cell { return cell{ok: true, params: r.Params} }},
-	{"method", "Method", "Method", text, func(r study.Result) cell { return txt(r.Method) }},
-	{"reheating", "Reheating", "Reheating", text, func(r study.Result) cell { return txt(r.Reheating) }},
-	{"history", "History", "History", text, func(r study.Result) cell { return txt(history(r)) }},
-	{"N_star", "N*", `$N_*$`, number, pred(func(r study.Result) float64 { return r.NStar })},
-	{"phi_star", "phi* [M_Pl]", `$\phi_*$ [$M_{\rm Pl}$]`, number, pred(func(r study.Result) float64 { return r.PhiStar })},
-	{"phi_end", "phi_end [M_Pl]", `$\phi_{\rm end}$ [$M_{\rm Pl}$]`, number, pred(func(r study.Result) float64 { return r.PhiEnd })},
-	{"n_s", "n_s", `$n_s$`, number, pred(func(r study.Result) float64 { return r.Ns })},
-	{"r", "r", `$r$`, number, pred(func(r study.Result) float64 { return r.R })},
-	{"alpha_s", "alpha_s", `$\alpha_s$`, number, pred(func(r study.Result) float64 { return r.AlphaS })},
-	{"n_t", "n_t", `$n_t$`, number, pred(func(r study.Result) float64 { return r.Nt })},
-	{"energy_scale_GeV", "V*^(1/4) [GeV]", `$V_*^{1/4}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.EnergyScaleGeV })},
-	{"H_star_GeV", "H* [GeV]", `$H_*$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.HStarGeV })},
-	{"T_reh_GeV", "T_reh [GeV]", `$T_{\rm reh}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.TRehGeV })},
-	{"T_max_GeV", "T_max [GeV]", `$T_{\rm max}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.TMaxGeV })},
-	{"w_reh", "w_reh", `$w_{\rm reh}$`, number, predOpt(func(r study.Result) *float64 { return r.WReh })},
-	{"N_reh", "N_reh", `$N_{\rm reh}$`, number, predOpt(func(r study.Result) *float64 { return r.NReh })},
-	{"below_bbn", "below BBN", "below BBN", flag, func(r study.Result) cell { return optFlag(r.BelowBBN) }},
-	{"N_star_min", "N*_min", `$N_*^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.NStar[0] })},
-	{"N_star_max", "N*_max", `$N_*^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.NStar[1] })},
-	{"n_s_min", "n_s,min", `$n_s^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.Ns[0] })},
-	{"n_s_max", "n_s,max", `$n_s^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.Ns[1] })},
-	{"r_min", "r_min", `$r^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.R[0] })},
-	{"r_max", "r_max", `$r^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.R[1] })},
-	{"constraint", "Constraint", "Constraint", text, func(r study.Result) cell { return txt(r.Constraint) }},
-	{"delta_chi2", "Delta chi^2", `$\Delta\chi^2$`, number, predOpt(func(r study.Result) *float64 { return r.DeltaChi2 })},
-	{"n_sigma", "n_sigma", `$n_\sigma$`, number, predOpt(func(r study.Result) *float64 { return r.NSigma })},
-	{"inside_68", "in 68%", `in 68\%`, flag, func(r study.Result) cell { return optFlag(r.Inside68) }},
-	{"inside_95", "in 95%", `in 95\%`, flag, func(r study.Result) cell { return optFlag(r.Inside95) }},
-	{"key", "Key", "Key", text, func(r study.Result) cell { return txt(r.Key) }},
-	{"error", "Error", "Error", text, func(r study.Result) cell { return txt(r.Error) }},
+	{"row", "#", "\\#", ordinal, nil, false},
+	{"label", "Label", "Label", text, func(r study.Result) cell { return txt(r.Label) }, false},
+	{"model_label", "Model label", "Model", text, func(r study.Result) cell { return txt(ModelLabel(r)) }, false},
+	{"model", "Model", "Model", text, func(r study.Result) cell { return txt(r.Model) }, false},
+	{"params", "Parameters", "Parameters", params, func(r study.Result) cell { return cell{ok: true, params: r.Params, written: WrittenParams(r)} }, false},
+	{"method", "Method", "Method", text, func(r study.Result) cell { return txt(r.Method) }, false},
+	{"reheating", "Reheating", "Reheating", text, func(r study.Result) cell { return txt(r.Reheating) }, false},
+	{"history", "History", "History", text, func(r study.Result) cell { return txt(history(r)) }, false},
+	{"N_star", "N*", `$N_*$`, number, pred(func(r study.Result) float64 { return r.NStar }), false},
+	{"phi_star", "phi* [M_Pl]", `$\phi_*$ [$M_{\rm Pl}$]`, number, pred(func(r study.Result) float64 { return r.PhiStar }), false},
+	{"phi_end", "phi_end [M_Pl]", `$\phi_{\rm end}$ [$M_{\rm Pl}$]`, number, pred(func(r study.Result) float64 { return r.PhiEnd }), false},
+	{"n_s", "n_s", `$n_s$`, number, pred(func(r study.Result) float64 { return r.Ns }), false},
+	{"r", "r", `$r$`, number, pred(func(r study.Result) float64 { return r.R }), false},
+	{"alpha_s", "alpha_s", `$\alpha_s$`, number, pred(func(r study.Result) float64 { return r.AlphaS }), false},
+	{"n_t", "n_t", `$n_t$`, number, pred(func(r study.Result) float64 { return r.Nt }), false},
+	{"energy_scale_GeV", "V*^(1/4) [GeV]", `$V_*^{1/4}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.EnergyScaleGeV }), false},
+	{"H_star_GeV", "H* [GeV]", `$H_*$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.HStarGeV }), false},
+	{"T_reh_GeV", "T_reh [GeV]", `$T_{\rm reh}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.TRehGeV }), false},
+	{"T_max_GeV", "T_max [GeV]", `$T_{\rm max}$ [GeV]`, number, predOpt(func(r study.Result) *float64 { return r.TMaxGeV }), false},
+	{"w_reh", "w_reh", `$w_{\rm reh}$`, number, predOpt(func(r study.Result) *float64 { return r.WReh }), false},
+	{"N_reh", "N_reh", `$N_{\rm reh}$`, number, predOpt(func(r study.Result) *float64 { return r.NReh }), false},
+	{"below_bbn", "below BBN", "below BBN", flag, func(r study.Result) cell { return optFlag(r.BelowBBN) }, false},
+	{"N_star_min", "N*_min", `$N_*^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.NStar[0] }), false},
+	{"N_star_max", "N*_max", `$N_*^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.NStar[1] }), false},
+	{"n_s_min", "n_s,min", `$n_s^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.Ns[0] }), false},
+	{"n_s_max", "n_s,max", `$n_s^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.Ns[1] }), false},
+	{"r_min", "r_min", `$r^{\rm min}$`, number, band(func(b *study.Band) float64 { return b.R[0] }), false},
+	{"r_max", "r_max", `$r^{\rm max}$`, number, band(func(b *study.Band) float64 { return b.R[1] }), false},
+	{"constraint", "Constraint", "Constraint", text, func(r study.Result) cell { return txt(r.Constraint) }, true},
+	{"delta_chi2", "Delta chi^2", `$\Delta\chi^2$`, number, predOpt(func(r study.Result) *float64 { return r.DeltaChi2 }), true},
+	{"n_sigma", "n_sigma", `$n_\sigma$`, number, predOpt(func(r study.Result) *float64 { return r.NSigma }), true},
+	{"inside_68", "in 68%", `in 68\%`, flag, func(r study.Result) cell { return optFlag(r.Inside68) }, true},
+	{"inside_95", "in 95%", `in 95\%`, flag, func(r study.Result) cell { return optFlag(r.Inside95) }, true},
+	{"detection_sigma", "detection [sigma]", `detection [$\sigma$]`, number, predOpt(func(r study.Result) *float64 { return r.DetectionSigma }), true},
+	{"detected_5sigma", "detected at 5 sigma", `$5\sigma$ detection`, flag, func(r study.Result) cell { return optFlag(r.Detected5Sigma) }, true},
+	{"key", "Key", "Key", text, func(r study.Result) cell { return txt(r.Key) }, true},
+	{"error", "Error", "Error", text, func(r study.Result) cell { return txt(r.Error) }, false},
 }
 
 // ParamPrefix starts a column holding one model parameter:
 // "param.alpha" is the parameter alpha.
 const ParamPrefix = "param."
 
-// DefaultColumns are used when Options.Columns is empty, except in LaTeX.
-// The row column is the N of RUN#N when the rows are a run's recorded
-// results in order (as the table command writes them).
-var DefaultColumns = []string{"row", "model_label", "model", "params", "history", "N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV"}
+// DefaultColumns are used when Options.Columns is empty, except in LaTeX:
+// the prediction (the row number, model, parameters, history and
+// observables) and, per constraint set, Delta chi^2, the number of sigma
+// and whether the prediction lies inside the 95% region, and per forecast
+// the detection significance. In the wide layout the comparison columns
+// (those after H_star_GeV) are repeated under each set that gives them a
+// value; in the long layout the constraint column names the set.
+var DefaultColumns = []string{"row", "model_label", "model", "params", "history", "N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV", "constraint", "delta_chi2", "n_sigma", "inside_95", "detection_sigma"}
 
 // DefaultLaTeXColumns are used for LaTeX when Options.Columns is empty:
-// DefaultColumns without the row number, which a paper's table does not
-// carry (ask for it with the column "row").
-var DefaultLaTeXColumns = DefaultColumns[1:]
+// DefaultColumns without the row number and the family name, which a
+// paper's table does not carry (ask for them with the columns row and
+// model).
+var DefaultLaTeXColumns = []string{"model_label", "params", "history", "N_star", "n_s", "r", "alpha_s", "n_t", "energy_scale_GeV", "H_star_GeV", "constraint", "delta_chi2", "n_sigma", "inside_95", "detection_sigma"}
 
 // ColumnNames returns the names of the fixed columns in documented order
 // (a param.NAME column may be added for any parameter).

@@ -7,21 +7,23 @@ import (
 	"github.com/inflatrace/inflatrace/stages/study"
 )
 
-// A LaTeX table of two invented predictions, ready to \input.
+// A LaTeX table of one invented prediction compared with two invented
+// constraint sets of the demo scenario: one row, a column group per set.
 func ExampleWrite() {
-	v := 1.62e16
+	v, d1, d2, s1, s2 := 1.62e16, 0.52, 3.9, 0.31, 1.5
 	rows := []study.Result{
-		{Label: "att(alpha=1) | N*=55 | x", Model: "alpha-attractor", Params: map[string]float64{"alpha": 1}, NStar: 55, Ns: 0.963636, R: 0.0039669, EnergyScaleGeV: &v},
-		{Label: "att(alpha=10) | N*=55 | x", Model: "alpha-attractor", Params: map[string]float64{"alpha": 10}, NStar: 55, Ns: 0.963636, R: 0.039669},
+		{Label: "att(alpha=1/3) | N*=55 | orrery-a", Model: "alpha-attractor", Params: map[string]float64{"alpha": 1.0 / 3}, NStar: 55, Ns: 0.963636, R: 0.0013223, EnergyScaleGeV: &v, Constraint: "orrery-a", DeltaChi2: &d1, NSigma: &s1},
+		{Label: "att(alpha=1/3) | N*=55 | orrery-b", Model: "alpha-attractor", Params: map[string]float64{"alpha": 1.0 / 3}, NStar: 55, Ns: 0.963636, R: 0.0013223, EnergyScaleGeV: &v, Constraint: "orrery-b", DeltaChi2: &d2, NSigma: &s2},
 	}
-	tables.Write(os.Stdout, rows, tables.Options{Format: tables.LaTeX, Columns: []string{"param.alpha", "N_star", "n_s", "r", "energy_scale_GeV"}, Digits: 3})
+	tables.Write(os.Stdout, rows, tables.Options{Format: tables.LaTeX, Columns: []string{"param.alpha", "N_star", "n_s", "r", "delta_chi2", "n_sigma"}, Digits: 3})
 	// Output:
-	// \begin{tabular}{rrrrr}
-	// \hline
-	// $\alpha$ & $N_*$ & $n_s$ & $r$ & $V_*^{1/4}$ [GeV] \\
-	// \hline
-	// $1$ & $55.0$ & $0.964$ & $0.00397$ & $1.62\times10^{16}$ \\
-	// $10$ & $55.0$ & $0.964$ & $0.0397$ & --- \\
-	// \hline
+	// \begin{tabular}{rS[table-format=2.1,group-digits=none]S[table-format=1.3,group-digits=none]S[table-format=1.5,group-digits=none]S[table-format=1.3,group-digits=none]S[table-format=1.3,group-digits=none]S[table-format=1.2,group-digits=none]S[table-format=1.2,group-digits=none]}
+	// \toprule
+	//  &  &  &  & \multicolumn{2}{c}{orrery-a} & \multicolumn{2}{c}{orrery-b} \\
+	// \cmidrule(lr){5-6} \cmidrule(lr){7-8}
+	// $\alpha$ & {$N_*$} & {$n_s$} & {$r$} & {$\Delta\chi^2$} & {$n_\sigma$} & {$\Delta\chi^2$} & {$n_\sigma$} \\
+	// \midrule
+	// $1/3$ & 55.0 & 0.964 & 0.00132 & 0.520 & 0.310 & 3.90 & 1.50 \\
+	// \bottomrule
 	// \end{tabular}
 }

@@ -178,3 +178,17 @@ func gridCell(c Cell, nf numberFormat, st cellStyle) string {
 	}
 	return st.text(c.Text)
 }
+
+// cellStyle is how one format writes a grid cell: a missing value, a
+// number and text.
+type cellStyle struct {
+	missing string
+	number  func(f numberFormat, x float64) string
+	text    func(string) string
+}
+
+var (
+	csvCells      = cellStyle{"", numberFormat.machine, func(s string) string { return s }}
+	markdownCells = cellStyle{"—", numberFormat.plain, escapeMarkdown}
+	latexCells    = cellStyle{"---", numberFormat.latex, escapeLaTeX}
+)

@@ -93,3 +93,70 @@ func (f numberFormat) latex(x float64) string {
 	}
 	return "$" + mant + `\times10^{` + strconv.Itoa(exp) + "}$"
 }
+
+// notations chooses, for each column of computed numbers, one notation
+// for all its cells (one notation per column, as journal tables print
+// them: common practice): scientific when any of its finite non-zero
+// values lies outside the positional range of parts, else positional.
+// Other columns are false.
+func (sh *sheet) notations(nf numberFormat) []bool {
+	sci := make([]bool, len(sh.cols))
+	for i, c := range sh.cols {
+		if c.kind != number {
+			continue
+		}
+		for _, row := range sh.rows {
+			v := sh.value(c, row)
+			if !v.ok || v.num == 0 || math.IsNaN(v.num) || math.IsInf(v.num, 0) {
+				continue
+			}
+			if _, _, _, fixed := nf.parts(v.num); !fixed {
+				sci[i] = true
+				break
+			}
+		}
+	}
+	return sci
+}
+
+// split writes a finite x in the given notation: the positional digits,
+// or the mantissa and decimal exponent.
+func (f numberFormat) split(x float64, sci bool) (mant string, exp int) {
+	fixed, mant, exp, _ := f.parts(x)
+	if !sci {
+		if fixed == "" { // outside the positional range: only for x = 0, which parts keeps positional
+			fixed = strconv.FormatFloat(x, 'f', -1, 64)
+		}
+		return fixed, 0
+	}
+	return mant, exp
+}
+
+// plainIn writes x for Markdown in the column's notation: "0.9649", or
+// "2.481e+13", "-6.612e-4".
+func (f numberFormat) plainIn(x float64, sci bool) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return f.plain(x)
+	}
+	mant, exp := f.split(x, sci)
+	if !sci {
+		return mant
+	}
+	sign := "+"
+	if exp < 0 {
+		sign, exp = "-", -exp
+	}
+	return mant + "e" + sign + strconv.Itoa(exp)
+}
+
+// siunitx writes a finite x as input to a siunitx S column in the
+// column's notation: "0.9649", "-6.612e-4" (siunitx manual, Wright 2023,
+// section "Parsing numbers": an optional sign, digits with a decimal
+// marker, an exponent after e).
+func (f numberFormat) siunitx(x float64, sci bool) string {
+	mant, exp := f.split(x, sci)
+	if !sci {
+		return mant
+	}
+	return mant + "e" + strconv.Itoa(exp)
+}

@@ -23,8 +23,14 @@ func TestModelLabel(t *testing.T) {
 		{"f(g(x))(a=(1)) | N*=55", map[string]float64{"a": 1}, "f(g(x))"},
 		{"Starobinsky | N*=55 | planck", nil, "Starobinsky"},
 		{"R (no params) | N*=55", nil, "R (no params)"},
+		// A study of several methods marks the method after the list.
+		{"E-model(alpha=1) [second] | N*=55 | planck", map[string]float64{"alpha": 1}, "E-model"},
 	} {
-		if got := ModelLabel(study.Result{Label: c.label, Params: c.params}); got != c.want {
+		method := ""
+		if strings.Contains(c.label, "[second]") {
+			method = "second"
+		}
+		if got := ModelLabel(study.Result{Label: c.label, Params: c.params, Method: method}); got != c.want {
 			t.Errorf("ModelLabel(%q) = %q, want %q", c.label, got, c.want)
 		}
 	}
@@ -64,11 +70,11 @@ func TestDefaultRowColumn(t *testing.T) {
 		t.Errorf("Markdown header and last row:\n%s\n%s", md[0], md[4])
 	}
 	tex := write(t, rows, Options{Format: LaTeX})
-	if strings.Contains(tex, `\#`) || !strings.Contains(tex, "Model & Model &") {
+	if strings.Contains(tex, `\#`) || !strings.Contains(tex, "\nModel & Parameters &") {
 		t.Errorf("default LaTeX should have the model label and no row number:\n%s", tex)
 	}
 	tex = write(t, rows, Options{Format: LaTeX, Columns: []string{"row", "n_s"}})
-	if !strings.Contains(tex, `\# & $n_s$`) || !strings.Contains(tex, "\n2 & ") {
+	if !strings.Contains(tex, `\# & {$n_s$}`) || !strings.Contains(tex, "\n2 & ") {
 		t.Errorf("LaTeX with row:\n%s", tex)
 	}
 }

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -26,17 +27,33 @@ const (
 // Formats lists the output formats.
 var Formats = []string{CSV, JSON, Markdown, LaTeX}
 
-// Options choose a table's format, columns and number precision.
+// Options choose a table's format, layout, columns, rows and number
+// precision.
 type Options struct {
-	Format  string   // CSV, JSON, Markdown or LaTeX
-	Columns []string // column names (ColumnNames, or param.NAME); empty means DefaultColumns
+	Format string // CSV, JSON, Markdown or LaTeX
+	// Layout is Wide (the default when empty) or Long.
+	Layout  string
+	Columns []string // column names (ColumnNames, or param.NAME); empty means the format's defaults
+	// Where keeps the rows meeting every condition "COLUMN OP VALUE"
+	// (OP one of = != < <= > >=); Sort orders them by columns, "-COLUMN"
+	// descending. See the package documentation.
+	Where []string
+	Sort  []string
 	// Digits is the number of significant digits of computed numbers,
-	// 1 to 17; 0 means DefaultDigits. Model parameters are inputs and are
-	// always written exactly.
+	// 1 to 17. 0 means the format's default: exact in CSV and JSON,
+	// DefaultDigits in Markdown and LaTeX. Model parameters are inputs and
+	// are always written exactly (in Markdown and LaTeX as the study wrote
+	// them).
 	Digits int
 	// Exact writes every number as the shortest decimal that reads back
 	// to the same float64 (strconv 'g' -1). It excludes Digits.
 	Exact bool
+	// LaTeX only: LongTable writes a longtable (its head repeated on
+	// every page) instead of a tabular; Caption (LaTeX text) and Label (a
+	// \label key) caption the table, in a table float around a tabular.
+	LongTable bool
+	Caption   string
+	Label     string
 }
 
 // Write writes rows as a table.
@@ -53,10 +70,10 @@ type Options struct {
 // left-aligned, numbers right-aligned, flags centred; pipes and
 // backslashes in text are escaped, and a missing value is an em dash.
 //
-// LaTeX is a complete tabular environment to \input: a column spec of l
-// (text), r (numbers) and c (flags), \hline above and below the header
-// and at the end, headers in math mode with units, numbers in math mode
-// ($2.481\times10^{13}$), text escaped, a missing value ---.
+// LaTeX is a booktabs table to \input (see the package documentation for
+// its layout and the preamble it needs).
+//
+// A bad option is an *OptionError.
 func Write(w io.Writer, rows []study.Result, opts Options) error {
 	names := opts.Columns
 	if len(names) == 0 && opts.Format == LaTeX {
@@ -64,33 +81,52 @@ func Write(w io.Writer, rows []study.Result, opts Options) error {
 	}
 	cols, err := lookup(names)
 	if err != nil {
-		return err
+		return &OptionError{"--columns", strings.Join(names, ","), err}
 	}
 	var nf numberFormat
 	switch {
 	case opts.Exact && opts.Digits != 0:
-		return fmt.Errorf("tables: give Digits or Exact, not both")
+		return &OptionError{"--digits", strconv.Itoa(opts.Digits), fmt.Errorf("give --digits or --exact, not both")}
 	case opts.Exact:
-		nf = numberFormat{0}
+		nf = exactFormat
+	case opts.Digits == 0 && (opts.Format == CSV || opts.Format == JSON):
+		nf = exactFormat
 	case opts.Digits == 0:
 		nf = numberFormat{DefaultDigits}
 	case opts.Digits < 1 || opts.Digits > 17:
-		return fmt.Errorf("tables: %d significant digits, want 1 to 17", opts.Digits)
+		return &OptionError{"--digits", strconv.Itoa(opts.Digits), fmt.Errorf("want 1 to 17 significant digits")}
 	default:
 		nf = numberFormat{opts.Digits}
+	}
+	if !slices.Contains(Formats, opts.Format) {
+		return &OptionError{"--format", opts.Format, fmt.Errorf("unknown format (want %s)", strings.Join(Formats, ", "))}
+	}
+	if opts.Format != LaTeX && (opts.LongTable || opts.Caption != "" || opts.Label != "") {
+		return &OptionError{"--format", opts.Format, fmt.Errorf("a long table, caption and label are LaTeX's (--format latex)")}
+	}
+	if strings.ContainsAny(opts.Label, `\{}%#&~^$`) {
+		return &OptionError{"--label", opts.Label, fmt.Errorf("a label key may not hold any of \\ { } %% # & ~ ^ $")}
+	}
+	sh, err := build(rows, cols, opts.Layout, len(opts.Columns) == 0)
+	if err != nil {
+		return err
+	}
+	if err := sh.filter(opts.Where); err != nil {
+		return err
+	}
+	if err := sh.order(opts.Sort); err != nil {
+		return err
 	}
 	bw := bufio.NewWriter(w)
 	switch opts.Format {
 	case CSV:
-		err = writeCSV(bw, rows, cols, nf)
+		err = writeCSV(bw, sh, nf)
 	case JSON:
-		err = writeJSON(bw, rows, cols, nf)
+		err = writeJSON(bw, sh, nf)
 	case Markdown:
-		err = writeMarkdown(bw, rows, cols, nf)
+		err = writeMarkdown(bw, sh, nf)
 	case LaTeX:
-		err = writeLaTeX(bw, rows, cols, nf)
-	default:
-		return fmt.Errorf("tables: unknown format %q (want %s)", opts.Format, strings.Join(Formats, ", "))
+		err = writeLaTeX(bw, sh, nf, opts)
 	}
 	if err != nil {
 		return err
@@ -98,21 +134,33 @@ func Write(w io.Writer, rows []study.Result, opts Options) error {
 	return bw.Flush()
 }
 
-// exactFormat writes model parameters.
+// exactFormat writes model parameters, and every number of CSV and JSON
+// by default.
 var exactFormat = numberFormat{0}
 
-// paramText is "alpha=0.1, n=2": names sorted, values exact.
-func paramText(ps map[string]float64) string {
+// paramText is "alpha=1/3, n=2": names sorted, values as written (where
+// written has them) or exact.
+func paramText(ps map[string]float64, written map[string]string) string {
+	names := paramNames(ps)
+	parts := make([]string, len(names))
+	for i, n := range names {
+		t, ok := written[n]
+		if !ok {
+			t = strconv.FormatFloat(ps[n], 'g', -1, 64)
+		}
+		parts[i] = n + "=" + t
+	}
+	return strings.Join(parts, ", ")
+}
+
+// paramNames are the parameters' names, sorted.
+func paramNames(ps map[string]float64) []string {
 	names := make([]string, 0, len(ps))
 	for n := range ps {
 		names = append(names, n)
 	}
 	sort.Strings(names)
-	parts := make([]string, len(names))
-	for i, n := range names {
-		parts[i] = n + "=" + strconv.FormatFloat(ps[n], 'g', -1, 64)
-	}
-	return strings.Join(parts, ", ")
+	return names
 }
 
 func (c column) format(nf numberFormat) numberFormat {
@@ -122,24 +170,42 @@ func (c column) format(nf numberFormat) numberFormat {
 	return nf
 }
 
-func writeCSV(w io.Writer, rows []study.Result, cols []column, nf numberFormat) error {
+func writeCSV(w io.Writer, sh *sheet, nf numberFormat) error {
 	cw := csv.NewWriter(w)
 	cw.UseCRLF = true
-	rec := make([]string, len(cols))
-	for i, c := range cols {
-		rec[i] = c.name
+	rec := make([]string, len(sh.cols))
+	for i, c := range sh.cols {
+		rec[i] = c.key()
 	}
 	if err := cw.Write(rec); err != nil {
 		return err
 	}
-	for k, r := range rows {
-		csvCells.fill(rec, k, r, cols, nf)
+	for _, row := range sh.rows {
+		for i, c := range sh.cols {
+			rec[i] = machineCell(c, sh.value(c, row), nf)
+		}
 		if err := cw.Write(rec); err != nil {
 			return err
 		}
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// machineCell is a CSV cell: numbers (parameters too) in Go's shortest
+// form, flags true or false, missing values empty.
+func machineCell(c sheetCol, v cell, nf numberFormat) string {
+	switch {
+	case !v.ok:
+		return ""
+	case c.kind == number || c.kind == input || c.kind == ordinal:
+		return c.format(nf).machine(v.num)
+	case c.kind == flag:
+		return strconv.FormatBool(v.flag)
+	case c.kind == params:
+		return paramText(v.params, v.written)
+	}
+	return v.text
 }
 
 // jsonString encodes s as a JSON string without HTML escaping.
@@ -158,20 +224,20 @@ func jsonNumber(nf numberFormat, x float64) string {
 	return nf.machine(x)
 }
 
-func writeJSON(w io.Writer, rows []study.Result, cols []column, nf numberFormat) error {
+func writeJSON(w io.Writer, sh *sheet, nf numberFormat) error {
 	var b strings.Builder
 	b.WriteString("[")
-	for k, r := range rows {
+	for k, row := range sh.rows {
 		if k > 0 {
 			b.WriteString(",")
 		}
 		b.WriteString("\n  {")
-		for i, c := range cols {
+		for i, c := range sh.cols {
 			if i > 0 {
 				b.WriteString(", ")
 			}
-			b.WriteString(jsonString(c.name) + ": ")
-			v := c.value(k, r)
+			b.WriteString(jsonString(c.key()) + ": ")
+			v := sh.value(c, row)
 			switch {
 			case !v.ok:
 				b.WriteString("null")
@@ -180,13 +246,8 @@ func writeJSON(w io.Writer, rows []study.Result, cols []column, nf numberFormat)
 			case c.kind == flag:
 				b.WriteString(strconv.FormatBool(v.flag))
 			case c.kind == params:
-				names := make([]string, 0, len(v.params))
-				for n := range v.params {
-					names = append(names, n)
-				}
-				sort.Strings(names)
 				b.WriteString("{")
-				for j, n := range names {
+				for j, n := range paramNames(v.params) {
 					if j > 0 {
 						b.WriteString(", ")
 					}
@@ -199,7 +260,7 @@ func writeJSON(w io.Writer, rows []study.Result, cols []column, nf numberFormat)
 		}
 		b.WriteString("}")
 	}
-	if len(rows) > 0 {
+	if len(sh.rows) > 0 {
 		b.WriteString("\n")
 	}
 	b.WriteString("]\n")
@@ -207,7 +268,16 @@ func writeJSON(w io.Writer, rows []study.Result, cols []column, nf numberFormat)
 	return err
 }
 
-func writeMarkdown(w io.Writer, rows []study.Result, cols []column, nf numberFormat) error {
+// markdownHeader is a column's Markdown header: in the wide layout, a
+// column of one set is "set: header".
+func markdownHeader(sh *sheet, c sheetCol) string {
+	if c.set < 0 {
+		return c.plain
+	}
+	return sh.sets[c.set].title() + ": " + c.plain
+}
+
+func writeMarkdown(w io.Writer, sh *sheet, nf numberFormat) error {
 	var b strings.Builder
 	line := func(cells []string) {
 		b.WriteString("|")
@@ -216,12 +286,12 @@ func writeMarkdown(w io.Writer, rows []study.Result, cols []column, nf numberFor
 		}
 		b.WriteString("\n")
 	}
-	cells := make([]string, len(cols))
-	for i, c := range cols {
-		cells[i] = escapeMarkdown(c.plain)
+	cells := make([]string, len(sh.cols))
+	for i, c := range sh.cols {
+		cells[i] = escapeMarkdown(markdownHeader(sh, c))
 	}
 	line(cells)
-	for i, c := range cols {
+	for i, c := range sh.cols {
 		switch c.kind {
 		case number, input, ordinal:
 			cells[i] = "---:"
@@ -232,49 +302,40 @@ func writeMarkdown(w io.Writer, rows []study.Result, cols []column, nf numberFor
 		}
 	}
 	line(cells)
-	for k, r := range rows {
-		markdownCells.fill(cells, k, r, cols, nf)
+	notations := sh.notations(nf)
+	for _, row := range sh.rows {
+		for i, c := range sh.cols {
+			v := sh.value(c, row)
+			switch {
+			case !v.ok:
+				cells[i] = "—"
+			case c.kind == ordinal:
+				cells[i] = strconv.Itoa(int(v.num))
+			case c.kind == input:
+				cells[i] = escapeMarkdown(inputText(c, row))
+			case c.kind == number:
+				cells[i] = nf.plainIn(v.num, notations[i])
+			case c.kind == flag:
+				cells[i] = yesNo(v.flag)
+			case c.kind == params:
+				cells[i] = escapeMarkdown(paramText(v.params, v.written))
+			default:
+				cells[i] = escapeMarkdown(v.text)
+			}
+		}
 		line(cells)
 	}
 	_, err := io.WriteString(w, b.String())
 	return err
 }
 
-// cellStyle is how one format writes a cell: a missing value, a number, a
-// flag, and text (parameters are text).
-type cellStyle struct {
-	missing string
-	number  func(f numberFormat, x float64) string
-	flag    func(bool) string
-	text    func(string) string
-}
-
-var (
-	csvCells      = cellStyle{"", numberFormat.machine, strconv.FormatBool, func(s string) string { return s }}
-	markdownCells = cellStyle{"—", numberFormat.plain, yesNo, escapeMarkdown}
-	latexCells    = cellStyle{"---", numberFormat.latex, yesNo, escapeLaTeX}
-)
-
-// fill writes the cells of row k (from 0), result r, for cols in this
-// style.
-func (st cellStyle) fill(cells []string, k int, r study.Result, cols []column, nf numberFormat) {
-	for i, c := range cols {
-		v := c.value(k, r)
-		switch {
-		case !v.ok:
-			cells[i] = st.missing
-		case c.kind == ordinal:
-			cells[i] = strconv.Itoa(k + 1)
-		case c.kind == number || c.kind == input:
-			cells[i] = st.number(c.format(nf), v.num)
-		case c.kind == flag:
-			cells[i] = st.flag(v.flag)
-		case c.kind == params:
-			cells[i] = st.text(paramText(v.params))
-		default:
-			cells[i] = st.text(v.text)
-		}
+// inputText is a param.NAME cell as the study wrote it.
+func inputText(c sheetCol, row sheetRow) string {
+	name := strings.TrimPrefix(c.name, ParamPrefix)
+	if t, ok := WrittenParams(row.pred)[name]; ok {
+		return t
 	}
+	return ""
 }
 
 func yesNo(b bool) string {
@@ -282,37 +343,4 @@ func yesNo(b bool) string {
 		return "yes"
 	}
 	return "no"
-}
-
-// latexSpec is the tabular column spec: l, r or c per column.
-func latexSpec(cols []column) string {
-	var b strings.Builder
-	for _, c := range cols {
-		switch c.kind {
-		case number, input, ordinal:
-			b.WriteByte('r')
-		case flag:
-			b.WriteByte('c')
-		default:
-			b.WriteByte('l')
-		}
-	}
-	return b.String()
-}
-
-func writeLaTeX(w io.Writer, rows []study.Result, cols []column, nf numberFormat) error {
-	var b strings.Builder
-	b.WriteString(`\begin{tabular}{` + latexSpec(cols) + "}\n\\hline\n")
-	cells := make([]string, len(cols))
-	for i, c := range cols {
-		cells[i] = c.latex
-	}
-	b.WriteString(strings.Join(cells, " & ") + " \\\\\n\\hline\n")
-	for k, r := range rows {
-		latexCells.fill(cells, k, r, cols, nf)
-		b.WriteString(strings.Join(cells, " & ") + " \\\\\n")
-	}
-	b.WriteString("\\hline\n\\end{tabular}\n")
-	_, err := io.WriteString(w, b.String())
-	return err
 }
