@@ -101,8 +101,15 @@ func Write(w io.Writer, rows []study.Result, opts Options) error {
 	if !slices.Contains(Formats, opts.Format) {
 		return &OptionError{"--format", opts.Format, fmt.Errorf("unknown format (want %s)", strings.Join(Formats, ", "))}
 	}
-	if opts.Format != LaTeX && (opts.LongTable || opts.Caption != "" || opts.Label != "") {
-		return &OptionError{"--format", opts.Format, fmt.Errorf("a long table, caption and label are LaTeX's (--format latex)")}
+	if opts.Format != LaTeX {
+		for _, o := range []struct {
+			name, value string
+			set         bool
+		}{{"--longtable", "true", opts.LongTable}, {"--caption", opts.Caption, opts.Caption != ""}, {"--label", opts.Label, opts.Label != ""}} {
+			if o.set {
+				return &OptionError{o.name, o.value, fmt.Errorf("LaTeX's only (--format latex), not %s's", opts.Format)}
+			}
+		}
 	}
 	if strings.ContainsAny(opts.Label, `\{}%#&~^$`) {
 		return &OptionError{"--label", opts.Label, fmt.Errorf("a label key may not hold any of \\ { } %% # & ~ ^ $")}

@@ -337,8 +337,9 @@ func TestOptionErrors(t *testing.T) {
 		{Options{Format: CSV, Digits: 18}, "--digits", "1 to 17"},
 		{Options{Format: CSV, Digits: -1}, "--digits", "1 to 17"},
 		{Options{Format: CSV, Digits: 3, Exact: true}, "--digits", "not both"},
-		{Options{Format: Markdown, LongTable: true}, "--format", "LaTeX's"},
-		{Options{Format: CSV, Caption: "x"}, "--format", "LaTeX's"},
+		{Options{Format: Markdown, LongTable: true}, "--longtable", "LaTeX's only"},
+		{Options{Format: CSV, Caption: "x"}, "--caption", "LaTeX's only"},
+		{Options{Format: JSON, Label: "tab:x"}, "--label", "LaTeX's only"},
 		{Options{Format: LaTeX, Label: `tab:{x}`}, "--label", "may not hold"},
 	} {
 		err := Write(&bytes.Buffer{}, fixture(), c.o)
