@@ -432,3 +432,38 @@ func (l *Ledger) RunNodeHeads(ctx context.Context, id pipeline.RunID) ([]NodeHea
 	}
 	return out, nil
 }
+
+// RunStageParams returns the distinct parameter sets of the nodes of one
+// stage that run id linked, in the order the run first touched them (the
+// constraint sets a run's comparisons used, say), in one query.
+func (l *Ledger) RunStageParams(ctx context.Context, id pipeline.RunID, stage string) ([]pipeline.Values, error) {
+	var out []pipeline.Values
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		if _, err := readRun(ctx, tx, id); err != nil {
+			return err
+		}
+		rows, err := tx.QueryContext(ctx, `SELECT n.params, min(rn.ordinal) AS first FROM run_nodes rn JOIN nodes n ON n.id = rn.node
+			WHERE rn.run_id = ? AND n.stage = ? GROUP BY n.params ORDER BY first`, string(id), stage)
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var params string
+			var first int
+			if err := rows.Scan(&params, &first); err != nil {
+				return err
+			}
+			vs, err := pipeline.DecodeValues([]byte(params))
+			if err != nil {
+				return fmt.Errorf("%w: a %s node of run %s: stored parameters: %v", ErrIntegrity, stage, id, err)
+			}
+			out = append(out, vs)
+		}
+		return rows.Err()
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: %s nodes of run %s: %w", stage, id, err)
+	}
+	return out, nil
+}

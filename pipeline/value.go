@@ -176,8 +176,15 @@ func (vs Values) Encode() ([]byte, error) {
 
 // DecodeValues parses the canonical text written by Encode.
 func DecodeValues(data []byte) (Values, error) {
-	vs := Values{}
-	for i, l := range strings.Split(string(data), "\n") {
+	text := string(data)
+	vs := make(Values, strings.Count(text, "\n")+1)
+	for i := 0; len(text) > 0; i++ {
+		l := text
+		if j := strings.IndexByte(text, '\n'); j >= 0 {
+			l, text = text[:j], text[j+1:]
+		} else {
+			text = ""
+		}
 		if l == "" {
 			continue
 		}

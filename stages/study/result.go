@@ -52,6 +52,20 @@ type Result struct {
 	Row int `json:"row,omitempty"`
 }
 
+// AssemblyNeeds says what Assemble reads of a lineage node of each stage:
+// the outputs of the model, slow-roll, reheat and compare stages, and the
+// parameters of the compare stage (for its one-dimensional r bound). A
+// reader of many results decodes only these.
+func AssemblyNeeds(stage string) (params, outputs bool) {
+	switch stage {
+	case nodes.ModelStage, nodes.SlowRollStage, nodes.ReheatStage:
+		return false, true
+	case nodes.CompareStage:
+		return true, true
+	}
+	return false, false
+}
+
 // Band is the span of a reheating band's predictions, with the histories
 // at the two ends of its N* span.
 type Band struct {

@@ -168,31 +168,25 @@ func (e *Env) flagBBN(results []study.Result) {
 }
 
 // RecordedResults assembles a recorded run's results from the ledger,
-// without recomputing anything.
+// without recomputing anything (ledger.RunLineages: a few queries,
+// whatever the run's size).
 func RecordedResults(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) ([]study.Result, error) {
-	refs, err := l.RunResults(ctx, id)
-	if err != nil {
-		return nil, err
-	}
-	out := make([]study.Result, 0, len(refs))
-	for _, ref := range refs {
-		lin, err := l.Lineage(ctx, ref.Key)
-		if err != nil {
-			return nil, err
-		}
-		var so []study.StageOutputs
+	var out []study.Result
+	err := l.EachLineage(ctx, id, study.AssemblyNeeds, func(rl ledger.ResultLineage) error {
+		so := make([]study.StageOutputs, 0, len(rl.Nodes))
 		firstErr := ""
-		for _, n := range lin {
+		for _, n := range rl.Nodes {
 			so = append(so, study.StageOutputs{Stage: n.Stage, Outputs: n.Outputs, Params: n.Params})
 			if n.Status == pipeline.NodeFailed && firstErr == "" {
 				firstErr = n.Stage + ": " + n.Error
 			}
 		}
-		r := study.Assemble(ref.Label, ref.Key, so)
+		r := study.Assemble(rl.Ref.Label, rl.Ref.Key, so)
 		r.Error = firstErr
 		out = append(out, r)
-	}
-	return out, nil
+		return nil
+	})
+	return out, err
 }
 
 // LoadRun resolves a run reference (id, prefix, tag or "latest") and reads

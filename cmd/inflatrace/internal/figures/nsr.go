@@ -111,7 +111,7 @@ func NsR(spec NsRSpec) (*Figure, error) {
 		}
 		all = append(all, pts)
 	}
-	f.Key = append(f.Key, markerKey(spec.Markers)...)
+	f.Key = append(capKey(f.Key), markerKey(spec.Markers)...)
 
 	// Axis ranges: what the caller fixed, or what the content needs.
 	content := points
@@ -191,6 +191,29 @@ func countOutside(curves [][]xy, x0, x1, y0, y1 float64, ylog bool) int {
 		}
 	}
 	return n
+}
+
+// MaxKeyModels is the most models a key names; the curves of any more
+// are drawn, and one entry says how many the key leaves out.
+const MaxKeyModels = 60
+
+// capKey keeps the first MaxKeyModels model entries of a key.
+func capKey(key []KeyEntry) []KeyEntry {
+	var out []KeyEntry
+	n := 0
+	for _, e := range key {
+		if e.Swatch.Kind == SwatchLine {
+			n++
+			if n > MaxKeyModels {
+				continue
+			}
+		}
+		out = append(out, e)
+	}
+	if n > MaxKeyModels {
+		out = append(out, KeyEntry{Label: fmt.Sprintf("and %d more models (draw a subset to name them)", n-MaxKeyModels), Swatch: Swatch{Kind: SwatchMarker}})
+	}
+	return out
 }
 
 // markerKey explains the marker shapes.

@@ -71,7 +71,7 @@ func RAlpha(spec RAlphaSpec) (*Figure, error) {
 		f.Key = append(f.Key, entry)
 		levels = append(levels, y)
 	}
-	f.Key = append(f.Key, markerKey(spec.Markers)...)
+	f.Key = append(capKey(f.Key), markerKey(spec.Markers)...)
 	switch {
 	case spec.XRange != [2]float64{}:
 		p.X.Min, p.X.Max = spec.XRange[0], spec.XRange[1]

@@ -182,7 +182,7 @@ func StripeFromResults(label string, atNMin, atNMax []study.Result, param string
 type curveGroup struct {
 	label     string
 	style     int
-	rows      []study.Result
+	rows      []*study.Result
 	x         []float64
 	histories []string
 }
@@ -196,11 +196,12 @@ func group(rows []study.Result, along string) ([]curveGroup, error) {
 	byKey := map[string]*curveGroup{}
 	seen := map[string]bool{}
 	styles := map[string]int{}
-	for _, r := range rows {
+	for i := range rows {
+		r := &rows[i]
 		if r.Error != "" || r.Band != nil {
 			continue
 		}
-		model, history := labelParts(r)
+		model, history := labelParts(*r)
 		id := model + " | " + history + " | " + r.Method + " | " + r.End
 		if seen[id] {
 			continue
@@ -220,7 +221,9 @@ func group(rows []study.Result, along string) ([]curveGroup, error) {
 			continue
 		}
 		seen[id] = true
-		identity := strings.Join([]string{r.Model, name, otherParams(r.Params, along), r.Method, r.End}, "\x00")
+		// The label's model part names the family and every parameter
+		// value, so without the joined parameter it names the curve.
+		identity := r.Model + "\x00" + name + "\x00" + r.Method + "\x00" + r.End
 		key := identity
 		if along != AlongNStar {
 			key += "\x00" + history

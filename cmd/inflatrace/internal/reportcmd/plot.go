@@ -90,7 +90,7 @@ may repeat). PDF (the default) and SVG embed their fonts. Shipped forecasts:
 	f.StringVar(&o.XScale, "x-scale", "auto", "parameter axis of r-PARAM: auto (log when the scan is log-spaced), log or linear")
 	f.StringVar(&o.RRange, "r-range", "", "r axis range LO,HI (default: follow the data)")
 	f.StringVar(&o.NsRange, "ns-range", "", "n_s axis range LO,HI (default: follow the data)")
-	f.StringVar(&o.Along, "along", figures.AlongNStar, "join predictions along N_star or along a model parameter")
+	f.StringVar(&o.Along, "along", "auto", "join predictions along N_star or along a model parameter; auto: along N_star, or along the most-scanned parameter when that would give more than "+strconv.Itoa(MaxModelCurves)+" model curves")
 	f.StringSliceVar(&o.Forecasts, "forecast", nil, "forecasts to draw besides the run's own")
 	f.StringSliceVar(&o.Models, "model", nil, "draw only these models (label or family)")
 	f.StringSliceVar(&o.Reheating, "reheating", nil, "draw only these histories (kind, or label part such as N*=55)")
@@ -196,27 +196,24 @@ func plain(s string) string { return strings.NewReplacer(`\`, `\\`, `$`, `\$`).R
 // constraints returns the constraint sets and forecasts the run's
 // comparisons used, in the order the run met them.
 func constraints(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) ([]figures.ConstraintLayer, []compare.Forecast, error) {
-	ns, err := l.RunNodeHeads(ctx, id)
+	ps, err := l.RunStageParams(ctx, id, nodes.CompareStage)
 	if err != nil {
 		return nil, nil, err
 	}
 	seen := map[string]bool{}
 	var sets []figures.ConstraintLayer
 	var fcs []compare.Forecast
-	for _, n := range ns {
-		if n.Stage != nodes.CompareStage {
-			continue
-		}
-		name, _ := n.Params.Text("constraint")
+	for _, params := range ps {
+		name, _ := params.Text("constraint")
 		if seen[name] {
 			continue
 		}
 		seen[name] = true
-		if f, ok := nodes.ForecastFrom(n.Params); ok {
+		if f, ok := nodes.ForecastFrom(params); ok {
 			fcs = append(fcs, f)
 			continue
 		}
-		c, ok, err := nodes.ConstraintFrom(n.Params)
+		c, ok, err := nodes.ConstraintFrom(params)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -408,8 +405,8 @@ func BuildFigures(ctx context.Context, l *ledger.Ledger, run ledger.RunDetail, a
 		}
 	}
 	along := o.Along
-	if along == "" {
-		along = figures.AlongNStar
+	if along == "" || along == "auto" {
+		along = autoAlong(results)
 	}
 	spec := figures.NsRSpec{Title: title(run), RScale: scale, RRange: o.RRange, NsRange: o.NsRange,
 		Constraints: layers, Stripes: stripes(results), Forecasts: lines}
@@ -450,6 +447,41 @@ func BuildFigures(ctx context.Context, l *ledger.Ledger, run ledger.RunDetail, a
 		built = append(built, Built{"r-" + param, f})
 	}
 	return built, nil
+}
+
+// MaxModelCurves is the most model curves --along auto draws along N*;
+// a scan with more models is joined along its most-scanned parameter.
+const MaxModelCurves = 40
+
+// autoAlong joins along N* unless that gives more than MaxModelCurves
+// models (a parameter scan: one curve of one point per value), in which
+// case it joins along the parameter with the most values.
+func autoAlong(results []study.Result) string {
+	models := map[string]bool{}
+	values := map[string]map[float64]bool{}
+	for _, r := range results {
+		if r.Error != "" || r.Band != nil {
+			continue
+		}
+		model, _, _ := strings.Cut(r.Label, " | ")
+		models[model+"\x00"+r.Method+"\x00"+r.End] = true
+		for n, v := range r.Params {
+			if values[n] == nil {
+				values[n] = map[float64]bool{}
+			}
+			values[n][v] = true
+		}
+	}
+	if len(models) <= MaxModelCurves {
+		return figures.AlongNStar
+	}
+	best, most := figures.AlongNStar, 1
+	for _, n := range scanned(results) {
+		if len(values[n]) > most {
+			best, most = n, len(values[n])
+		}
+	}
+	return best
 }
 
 // scanned lists the model parameters that take more than one value.

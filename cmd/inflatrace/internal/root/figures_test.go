@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -12,6 +13,7 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/figures"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/reportcmd"
 	"github.com/inflatrace/inflatrace/ledger"
+	"github.com/inflatrace/inflatrace/stages/study"
 )
 
 // built draws the figures of a recorded run as plot would.
@@ -141,5 +143,42 @@ func TestFiguresDrawSamplesForecastsAndSmallR(t *testing.T) {
 	}
 	if _, errs, code := h.run("plot", "latest", "--out", h.dir+"/figs", "--r-range", "0.1"); code != 2 || !strings.Contains(errs, "--r-range") {
 		t.Errorf("bad --r-range: exit %d, %q", code, errs)
+	}
+}
+
+// Results assembled from the decoded fields study.AssemblyNeeds names are
+// the results assembled from every field (a property that fails as soon
+// as Assemble reads something AssemblyNeeds leaves out).
+func TestAssemblyNeedsSuffice(t *testing.T) {
+	h := newHarness(t)
+	h.mustRun("run", demoPath(t))
+	l, err := ledger.Open(h.ledger)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Close()
+	ctx := context.Background()
+	id, err := l.ResolveRun(ctx, "latest")
+	if err != nil {
+		t.Fatal(err)
+	}
+	assemble := func(need func(string) (bool, bool)) []study.Result {
+		ls, err := l.RunLineages(ctx, id, need)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var out []study.Result
+		for _, rl := range ls {
+			var so []study.StageOutputs
+			for _, n := range rl.Nodes {
+				so = append(so, study.StageOutputs{Stage: n.Stage, Outputs: n.Outputs, Params: n.Params})
+			}
+			out = append(out, study.Assemble(rl.Ref.Label, rl.Ref.Key, so))
+		}
+		return out
+	}
+	all, some := assemble(nil), assemble(study.AssemblyNeeds)
+	if len(all) != 64 || !reflect.DeepEqual(all, some) {
+		t.Errorf("%d results; assembled from the needed fields only, they differ", len(all))
 	}
 }

@@ -66,3 +66,21 @@ func BenchmarkScanWarm(b *testing.B) {
 	b.ReportMetric(cold.Seconds(), "cold-s")
 	b.ReportMetric(warm.Seconds()/cold.Seconds(), "warm/cold")
 }
+
+// BenchmarkPlot1e5: the figures of a recorded 1e5-point scan (the scan of
+// BenchmarkScanCold), drawn from the ledger as PNG. Target: under 3 s on
+// 2 cores. Reports seconds per plot.
+func BenchmarkPlot1e5(b *testing.B) {
+	h, p := scanHarness(b, scanPoints)
+	if _, errs, code := h.run("run", p); code != 0 {
+		b.Fatal(errs)
+	}
+	out := filepath.Join(h.dir, "figs")
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, errs, code := h.run("plot", "latest", "--out", out, "--format", "png"); code != 0 {
+			b.Fatal(errs)
+		}
+	}
+	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/plot")
+}
