@@ -135,7 +135,46 @@ func historyText(h string) string {
 	if h == "instantaneous" {
 		return "instantaneous reheating"
 	}
-	return plainText(h)
+	// "w=1/3 T_reh=1e+09 GeV": symbols typeset, powers of ten as such.
+	var b strings.Builder
+	fields := strings.Fields(h)
+	for i, f := range fields {
+		name, value, ok := strings.Cut(f, "=")
+		sym, known := historySymbols[name]
+		if i > 0 {
+			b.WriteString(" ")
+		}
+		if !ok || !known {
+			b.WriteString(plainText(f))
+			continue
+		}
+		b.WriteString(sym + " = " + typesetNumber(value))
+		if i+1 < len(fields) && strings.Contains(fields[i+1], "=") {
+			b.WriteString(",")
+		}
+	}
+	return b.String()
+}
+
+// historySymbols are the typeset symbols of a history label's fields.
+var historySymbols = map[string]string{"w": "$w$", "T_reh": "$T_{reh}$", "N_reh": "$N_{reh}$", "N*": "$N_*$"}
+
+// typesetNumber writes "1e+09" as 10 to the 9 and "2.5e+12" as 2.5 times
+// 10 to the 12; anything else as it stands.
+func typesetNumber(v string) string {
+	mant, exp, ok := strings.Cut(v, "e")
+	if !ok {
+		return plainText(v)
+	}
+	e, err := strconv.Atoi(exp)
+	if err != nil {
+		return plainText(v)
+	}
+	pow := "$10^{" + strconv.Itoa(e) + "}$"
+	if mant == "1" {
+		return pow
+	}
+	return plainText(mant) + "$\\times$" + pow
 }
 
 // StripeFromResults builds the stripe of a model scanned over param from

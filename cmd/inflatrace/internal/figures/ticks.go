@@ -21,6 +21,7 @@ func (decadeTicks) Ticks(min, max float64) []plot.Tick {
 	lo := int(math.Floor(math.Log10(min) + 1e-9))
 	hi := int(math.Ceil(math.Log10(max) - 1e-9))
 	var ticks []plot.Tick
+	labelled := 0
 	for e := lo; e <= hi; e++ {
 		base := math.Pow10(e)
 		for m := 1; m <= 9; m++ {
@@ -31,8 +32,19 @@ func (decadeTicks) Ticks(min, max float64) []plot.Tick {
 			t := plot.Tick{Value: v}
 			if m == 1 {
 				t.Label = decadeLabel(e)
+				labelled++
 			}
 			ticks = append(ticks, t)
+		}
+	}
+	// An axis of less than about a decade would show one number or none:
+	// label 2 and 5 times each power of ten too (common practice).
+	if labelled < 2 {
+		for i := range ticks {
+			m := ticks[i].Value / math.Pow10(int(math.Floor(math.Log10(ticks[i].Value)+1e-9)))
+			if math.Abs(m-2) < 1e-9 || math.Abs(m-5) < 1e-9 {
+				ticks[i].Label = strconv.FormatFloat(ticks[i].Value, 'g', 3, 64)
+			}
 		}
 	}
 	return ticks

@@ -50,3 +50,18 @@ func TestTypesetBox(t *testing.T) {
 		t.Errorf("10^-3 height %v, plain 10 %v: a superscript must rise", hs, hp)
 	}
 }
+
+// History labels are typeset: symbols in math, powers of ten as such.
+func TestHistoryText(t *testing.T) {
+	for in, want := range map[string]string{
+		"N*=55":                 "$N_*$ = 55",
+		"instantaneous":         "instantaneous reheating",
+		"w=1/3 T_reh=1e+09 GeV": "$w$ = 1/3, $T_{reh}$ = $10^{9}$ GeV",
+		"w=0 T_reh=2.5e+12 GeV": `$w$ = 0, $T_{reh}$ = 2.5$\times$$10^{12}$ GeV`,
+		"band w in [0, 1/3]":    "band w in [0, 1/3]",
+	} {
+		if got := historyText(in); got != want {
+			t.Errorf("historyText(%q) = %q, want %q", in, got, want)
+		}
+	}
+}
