@@ -3,7 +3,6 @@ module github.com/inflatrace/inflatrace
 go 1.26.8
 
 require (
-	codeberg.org/go-fonts/liberation v0.5.0
 	codeberg.org/go-pdf/fpdf v0.11.1
 	github.com/goccy/go-graphviz v0.2.10
 	github.com/mattn/go-sqlite3 v1.14.53
@@ -11,13 +10,13 @@ require (
 	github.com/spf13/cobra v1.10.2
 	github.com/spf13/pflag v1.0.9
 	github.com/vbauerster/mpb/v8 v8.16.2
-	golang.org/x/image v0.30.0
 	golang.org/x/sys v0.48.0
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/plot v0.17.0
 )
 
 require (
+	codeberg.org/go-fonts/liberation v0.5.0 // indirect
 	codeberg.org/go-latex/latex v0.2.0 // indirect
 	git.sr.ht/~sbinet/gg v0.7.0 // indirect
 	github.com/VividCortex/ewma v1.2.0 // indirect
@@ -32,5 +31,6 @@ require (
 	github.com/mattn/go-runewidth v0.0.30 // indirect
 	github.com/tetratelabs/wazero v1.10.1 // indirect
 	github.com/vbauerster/cupwriter v0.0.5 // indirect
+	golang.org/x/image v0.30.0 // indirect
 	golang.org/x/text v0.28.0 // indirect
 )

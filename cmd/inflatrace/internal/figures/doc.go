@@ -27,9 +27,10 @@
 //     clipped to the axis box in data coordinates before it is mapped to
 //     the canvas, since a log axis cannot map r <= 0.
 //   - Text is typeset by Typeset, a small text handler of our own for
-//     subscripts, superscripts, Greek letters and italic symbols with the
-//     compiled-in Liberation fonts (gonum's LaTeX handler, in the version
-//     used, renders no sub- or superscript). User text goes through
+//     subscripts, superscripts and Greek letters in the compiled-in
+//     Liberation Serif (gonum's LaTeX handler, in the version used, renders
+//     no sub- or superscript). Symbols are upright: gonum's PDF canvas can
+//     embed only one TrueType font per file. User text goes through
 //     plainText and is written as given.
 //   - Output. 6 inches wide, 4.5 inches tall above the key; PNG at 150
 //     dpi. Rendering is pure Go with compiled-in fonts, which PDF and SVG

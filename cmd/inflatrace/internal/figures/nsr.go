@@ -40,7 +40,8 @@ func NsR(spec NsRSpec) (*Figure, error) {
 	}
 	p := newPlot(spec.Title, `$n_s$`, `$r$`)
 	f := &Figure{Plot: p}
-	var regions, points extent // x: n_s; y: r
+	var regions, points extent  // x: n_s; y: r
+	var outlines []plot.Plotter // drawn over every fill
 	for i, layer := range spec.Constraints {
 		sets, err := constraintContours(layer.Set, grid)
 		if err != nil {
@@ -49,16 +50,16 @@ func NsR(spec NsRSpec) (*Figure, error) {
 		col := pick(layer.Color, constraintPalette, i)
 		line68 := draw.LineStyle{Color: col, Width: contourWidth}
 		line95 := draw.LineStyle{Color: col, Width: contourWidth, Dashes: dash95}
-		r95 := &region{rings: sets[1].rings, lines: sets[1].lines, line: line95}
-		r68 := &region{rings: sets[0].rings, lines: sets[0].lines, fill: withAlpha(col, alpha68), line: line68}
-		p.Add(r95, r68)
+		fill := tint(col, alpha68)
+		p.Add(&region{rings: sets[0].rings, fill: fill})
+		outlines = append(outlines, &region{lines: sets[1].lines, line: line95}, &region{lines: sets[0].lines, line: line68})
 		label := layer.Label
 		if label == "" {
 			label = layer.Set.Label()
 		}
 		label = plainText(label)
 		f.Key = append(f.Key,
-			KeyEntry{label + " 68%", Swatch{Kind: SwatchFilled, Line: line68, Fill: withAlpha(col, alpha68)}},
+			KeyEntry{label + " 68%", Swatch{Kind: SwatchFilled, Line: line68, Fill: fill}},
 			KeyEntry{label + " 95%", Swatch{Kind: SwatchOutline, Line: line95}})
 		for _, ring := range sets[1].rings {
 			for _, q := range ring {
@@ -73,12 +74,13 @@ func NsR(spec NsRSpec) (*Figure, error) {
 		}
 		p.Add(pl)
 		if s.Label != "" {
-			f.Key = append(f.Key, KeyEntry{s.Label, Swatch{Kind: SwatchBand, Fill: withAlpha(stripeColor(s), alphaBand)}})
+			f.Key = append(f.Key, KeyEntry{s.Label, Swatch{Kind: SwatchBand, Fill: tint(stripeColor(s), alphaBand)}})
 		}
 		for _, q := range append(append(append([]xy(nil), fromPoints(s.Lower)...), fromPoints(s.Upper)...), fromPoints(s.Path)...) {
 			points.add(q.X, q.Y)
 		}
 	}
+	p.Add(outlines...)
 	var levels []float64
 	for _, fl := range spec.Forecasts {
 		y, entry, line, err := forecastLevel(fl)
@@ -300,7 +302,7 @@ func stripePlotter(s Stripe) (*region, error) {
 		if err := finite(s.Label, pts); err != nil {
 			return nil, err
 		}
-		return &region{lines: [][]xy{pts}, line: draw.LineStyle{Color: withAlpha(col, alphaBand), Width: bandWidth}}, nil
+		return &region{lines: [][]xy{pts}, line: draw.LineStyle{Color: tint(col, alphaBand), Width: bandWidth}}, nil
 	}
 	if len(s.Lower) != len(s.Upper) || len(s.Lower) < 2 {
 		return nil, fmt.Errorf("figures: stripe %q: edges of %d and %d points, want equal and at least 2", s.Label, len(s.Lower), len(s.Upper))
@@ -314,7 +316,7 @@ func stripePlotter(s Stripe) (*region, error) {
 		return nil, err
 	}
 	// Orientation does not matter for a single ring under nonzero winding.
-	return &region{rings: [][]xy{ring}, fill: withAlpha(col, alphaBand)}, nil
+	return &region{rings: [][]xy{ring}, fill: tint(col, alphaBand)}, nil
 }
 
 func finite(label string, pts []xy) error {

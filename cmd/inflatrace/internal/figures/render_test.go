@@ -10,6 +10,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -296,6 +297,16 @@ func TestSave(t *testing.T) {
 		case strings.HasSuffix(name, "pdf") && (!bytes.HasPrefix(data, []byte("%PDF-")) || !bytes.Contains(data, []byte("/FontFile"))):
 			t.Errorf("%s is not a PDF with embedded fonts", name)
 		}
+	}
+	// Each font of the PDF has a font file of its own (gonum's PDF canvas
+	// shares one between fonts, so a figure must use a single face).
+	pdf, _ := os.ReadFile(filepath.Join(dir, "c.pdf"))
+	files := map[string]bool{}
+	for _, m := range regexp.MustCompile(`/FontFile2? (\d+) 0 R`).FindAllSubmatch(pdf, -1) {
+		files[string(m[1])] = true
+	}
+	if descs := len(regexp.MustCompile(`/FontDescriptor \d+ 0 R`).FindAll(pdf, -1)); descs == 0 || len(files) != descs {
+		t.Errorf("PDF: %d font descriptors sharing %d font files", descs, len(files))
 	}
 	if err := Save(p, filepath.Join(dir, "d.eps")); err == nil {
 		t.Error("d.eps accepted")

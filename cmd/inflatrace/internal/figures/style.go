@@ -89,11 +89,16 @@ func pick(c color.Color, palette []color.NRGBA, i int) color.Color {
 	return palette[i%len(palette)]
 }
 
-// withAlpha returns c with its opacity scaled to a (0..1), non-premultiplied.
-func withAlpha(c color.Color, a float64) color.NRGBA {
+// tint returns c mixed with white, a of c to 1-a of white, opaque. Fills
+// are opaque tints, not translucent colours: gonum's PDF canvas (v0.17)
+// writes a translucent colour premultiplied and then applies its opacity
+// again, darkening it, so a tint is the one fill that looks the same in
+// PDF, SVG and PNG. Regions are filled first and outlined after, so no
+// fill hides another set's boundary.
+func tint(c color.Color, a float64) color.NRGBA {
 	n := color.NRGBAModel.Convert(c).(color.NRGBA)
-	n.A = uint8(float64(n.A)*a + 0.5)
-	return n
+	mix := func(v uint8) uint8 { return uint8(float64(v)*a + 255*(1-a) + 0.5) }
+	return color.NRGBA{mix(n.R), mix(n.G), mix(n.B), 255}
 }
 
 // Line widths and glyph sizes, in points.
@@ -104,8 +109,8 @@ var (
 	glyphRadius  = vg.Points(2.5)
 )
 
-// Opacities of the filled 68% region and of reheating bands (the 95%
-// region is an outline only).
+// Strengths of the tints of the filled 68% region and of reheating bands
+// (the 95% region is an outline only).
 const (
 	alpha68   = 0.35
 	alphaBand = 0.25

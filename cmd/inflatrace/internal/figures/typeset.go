@@ -5,20 +5,24 @@ import (
 	"strings"
 	"sync"
 
-	"codeberg.org/go-fonts/liberation/liberationserifitalic"
-	"golang.org/x/image/font/opentype"
+	"golang.org/x/image/font/sfnt"
+	"golang.org/x/image/math/fixed"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgpdf"
+
 	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 )
 
 // Typeset is a text.Handler for the labels of a physics figure. It writes
-// subscripts and superscripts, Greek letters and italic symbols, which
+// subscripts and superscripts and Greek letters, which
 // gonum's plain handler cannot (and its LaTeX handler, in the version we
 // use, renders no sub- or superscript at all). The markup is small:
 //
-//	$...$        math: single Latin letters in italic (n, r, N, T), words
-//	             of two or more letters upright ("reh", "end")
+//	$...$        math: single Latin letters are symbols (n, r, N, T), words
+//	             of two or more letters text ("reh", "end"); all are drawn
+//	             upright in the one embedded face (see face)
 //	_x, _{...}   subscript (one character, or a group)
 //	^x, ^{...}   superscript
 //	\alpha ...   Greek letters by name (lower case, and the upper-case
@@ -203,32 +207,17 @@ func parseMarkup(s string) []span {
 
 func isLatin(r rune) bool { return r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' }
 
-// italicVariant names Liberation Serif Italic as a variant of its own.
-// gonum's PDF canvas registers a font under its full name with no style
-// but selects it with the style's letter ("I"), so a face looked up by
-// StyleItalic cannot be written to PDF; as a variant with the normal
-// style it can, in every format.
-const italicVariant = "SerifItalic"
-
-func init() {
-	f, err := opentype.Parse(liberationserifitalic.TTF)
-	if err != nil {
-		panic("figures: the compiled-in italic font does not parse: " + err.Error())
-	}
-	font.DefaultCache.Add(font.Collection{{Font: font.Font{Typeface: "Liberation", Variant: italicVariant}, Face: f}})
-}
-
 // face returns the face of a span in fnt.
 func (h Typeset) face(fnt font.Font, sp span) (font.Face, vg.Length) {
 	size := fnt.Size
 	if sp.level != 0 {
 		size = vg.Length(float64(size) * scriptScale)
 	}
-	f := fnt
-	if sp.italic && f.Variant == "Serif" {
-		f.Variant = italicVariant
-	}
-	return h.Fonts.Lookup(f, size), size
+	// Spans marked italic are drawn upright: gonum's PDF canvas (v0.17)
+	// writes every embedded TrueType font under one file name, so a second
+	// font would replace the first in a PDF. One face keeps the three
+	// formats alike.
+	return h.Fonts.Lookup(fnt, size), size
 }
 
 // shift is a span's baseline offset.
@@ -293,9 +282,17 @@ func (h Typeset) Draw(c vg.Canvas, txt string, sty text.Style, pt vg.Point) {
 		w, _, _ := h.Box(line, sty.Font)
 		x := pt.X + vg.Length(sty.XAlign)*w
 		y := pt.Y + vg.Length(len(lines)-i)*sty.Font.Size
+		pdf := isPDF(c)
 		for _, sp := range parseMarkup(line) {
-			face, _ := h.face(sty.Font, sp)
-			c.FillString(face, vg.Point{X: x, Y: y + shift(sty.Font, sp)}, sp.text)
+			face, size := h.face(sty.Font, sp)
+			at := vg.Point{X: x, Y: y + shift(sty.Font, sp)}
+			if pdf && !winAnsi(sp.text) {
+				// The PDF canvas writes text in Windows-1252, which has no
+				// Greek: write such a span as the outlines of its glyphs.
+				fillOutlines(c, face, size, at, sp.text)
+			} else {
+				c.FillString(face, at, sp.text)
+			}
 			x += face.Width(sp.text)
 		}
 	}
@@ -308,4 +305,80 @@ func (h Typeset) Draw(c vg.Canvas, txt string, sty text.Style, pt vg.Point) {
 func plainText(s string) string {
 	r := strings.NewReplacer(`\`, `\\`, `$`, `\$`)
 	return r.Replace(s)
+}
+
+// isPDF reports whether c draws into a PDF (under any draw.Canvas).
+func isPDF(c vg.Canvas) bool {
+	for {
+		switch x := c.(type) {
+		case *vgpdf.Canvas:
+			return true
+		case *draw.Canvas:
+			c = x.Canvas
+		case draw.Canvas:
+			c = x.Canvas
+		default:
+			return false
+		}
+	}
+}
+
+// winAnsi reports whether every character of s is one the PDF canvas can
+// write (ASCII and Latin-1; the rest of Windows-1252 is left to outlines
+// as well, which is always correct).
+func winAnsi(s string) bool {
+	for _, r := range s {
+		if r >= 0x80 && r < 0xa0 || r > 0xff {
+			return false
+		}
+	}
+	return true
+}
+
+// fillOutlines draws text from its baseline origin at as the filled
+// outlines of its glyphs, advanced (and kerned) as the face's own text is.
+func fillOutlines(c vg.Canvas, face font.Face, size vg.Length, at vg.Point, text string) {
+	f := face.Face
+	var buf sfnt.Buffer
+	ppem := fixed.Int26_6(math.Round(float64(size) * 64)) // one unit per point
+	toPt := func(v fixed.Int26_6) vg.Length { return vg.Length(float64(v) / 64) }
+	x := at.X
+	prev := sfnt.GlyphIndex(0)
+	for i, r := range text {
+		g, err := f.GlyphIndex(&buf, r)
+		if err != nil {
+			continue
+		}
+		if i > 0 {
+			if k, err := f.Kern(&buf, prev, g, ppem, 0); err == nil {
+				x += toPt(k)
+			}
+		}
+		segs, err := f.LoadGlyph(&buf, g, ppem, nil)
+		if err == nil && len(segs) > 0 {
+			var path vg.Path
+			pt := func(p fixed.Point26_6) vg.Point { return vg.Point{X: x + toPt(p.X), Y: at.Y - toPt(p.Y)} }
+			for _, sg := range segs {
+				switch sg.Op {
+				case sfnt.SegmentOpMoveTo:
+					if len(path) > 0 {
+						path.Close()
+					}
+					path.Move(pt(sg.Args[0]))
+				case sfnt.SegmentOpLineTo:
+					path.Line(pt(sg.Args[0]))
+				case sfnt.SegmentOpQuadTo:
+					path.QuadTo(pt(sg.Args[0]), pt(sg.Args[1]))
+				case sfnt.SegmentOpCubeTo:
+					path.CubeTo(pt(sg.Args[0]), pt(sg.Args[1]), pt(sg.Args[2]))
+				}
+			}
+			path.Close()
+			c.Fill(path)
+		}
+		if adv, err := f.GlyphAdvance(&buf, g, ppem, 0); err == nil {
+			x += toPt(adv)
+		}
+		prev = g
+	}
 }

@@ -56,7 +56,7 @@ region, a dashed outline; each model as a line of its own colour and dash
 (eight colours, then the next dash pattern), joined along N* (or along a
 scanned parameter with --along), with one marker shape per reheating
 history ($N_*$ = 50, 55, 60, instantaneous reheating, ...); reheating bands
-(history "band") as translucent stripes between the predictions at N*_min
+(history "band") as tinted stripes between the predictions at N*_min
 and N*_max of each parameter value, or along the curve of a single model;
 and each forecast (the run's [[forecast]] sets and --forecast) as a dotted
 horizontal line at r = 3 sigma(r), above which that experiment detects r at
