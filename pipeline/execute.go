@@ -120,7 +120,10 @@ type Session struct {
 	// Totals accumulates the node counts of every chunk.
 	Totals Report
 
-	wr *writer // nil unless writes are batched
+	wr *writer // nil unless writes are batched (and once finished)
+	// batched and finalUpto keep, after Finish, what the writer committed.
+	batched   bool
+	finalUpto int
 	// flights holds the run's nodes by key, so that a key met twice is
 	// evaluated and recorded once: every node of the current chunk, and
 	// those of earlier chunks whose records may not be written yet (a
@@ -180,13 +183,28 @@ func (s *Session) Execute(ctx context.Context, g *Graph) (*Report, error) {
 	}
 	s.ordinal += len(g.Results)
 	if s.wr != nil {
-		s.wr.addResults(refs)
+		s.wr.addResults(refs, s.ordinal)
 		return rep, nil
 	}
 	if err := s.rec.RecordResults(ctx, s.info.ID, refs); err != nil {
 		return rep, fmt.Errorf("record results of run %s: %w", s.info.ID, err)
 	}
 	return rep, nil
+}
+
+// Committed is the number of the run's results, counted in order over its
+// chunks (failed ones included), whose nodes and result rows are committed
+// to the recorder: a front end prints a result only once it is below this
+// mark, so that nothing printed can be missing from the ledger after a
+// crash. Without batched writes every executed chunk is committed.
+func (s *Session) Committed() int {
+	switch {
+	case s.wr != nil:
+		return int(s.wr.committedUpto.Load())
+	case s.batched:
+		return s.finalUpto // after Finish: what the writer committed
+	}
+	return s.ordinal
 }
 
 // Finish writes what is pending and closes the run: failed when runErr is
@@ -197,6 +215,7 @@ func (s *Session) Finish(ctx context.Context, runErr error) (RunStatus, error) {
 	var werr error
 	if s.wr != nil {
 		werr = s.wr.close()
+		s.batched, s.finalUpto = true, int(s.wr.committedUpto.Load())
 		s.wr = nil
 	}
 	s.flights = nil
@@ -246,7 +265,11 @@ type writer struct {
 	err     error
 
 	committed atomic.Uint64 // records 1..committed are written
-	kick      chan struct{}
+	// upto is the results mark of the last chunk queued; committedUpto
+	// that of the last chunk whose records and results are written.
+	upto          int
+	committedUpto atomic.Int64
+	kick          chan struct{}
 	done      chan struct{}
 }
 
@@ -282,10 +305,12 @@ func (w *writer) add(r Recorded) uint64 {
 	return seq
 }
 
-// addResults queues results, written after every record added before them.
-func (w *writer) addResults(refs []ResultRef) {
+// addResults queues a chunk's results, written after every record added
+// before them; upto is the session's results mark after the chunk.
+func (w *writer) addResults(refs []ResultRef, upto int) {
 	w.mu.Lock()
 	w.results = append(w.results, refs...)
+	w.upto = upto
 	w.mu.Unlock()
 }
 
@@ -306,7 +331,7 @@ func (w *writer) loop() {
 		case <-timer.C:
 		}
 		w.mu.Lock()
-		batch, results, last, closing := w.buf, w.results, w.seq, w.closing
+		batch, results, last, closing, upto := w.buf, w.results, w.seq, w.closing, w.upto
 		w.buf, w.spare, w.results = w.spare, nil, nil
 		failed := w.err != nil
 		w.room.Broadcast()
@@ -322,6 +347,9 @@ func (w *writer) loop() {
 			if err == nil {
 				w.committed.Store(last)
 			}
+		}
+		if w.failed() == nil {
+			w.committedUpto.Store(int64(upto))
 		}
 		// Keep the batch's array for the next one, without its records.
 		clear(batch)

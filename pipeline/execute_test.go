@@ -484,3 +484,63 @@ func TestReuseOnly(t *testing.T) {
 		t.Errorf("%d nodes recorded by a reuse-only run that failed", len(rec.nodes)-before)
 	}
 }
+
+// slowBatch is a BatchRecorder that takes a while to write a batch and
+// counts the results it has written.
+type slowBatch struct {
+	*memRecorder
+	mu      sync.Mutex
+	written int
+	fail    bool
+}
+
+func (b *slowBatch) RecordNodes(ctx context.Context, run RunID, recs []Recorded) error {
+	time.Sleep(20 * time.Millisecond)
+	if b.fail {
+		return errors.New("disk full")
+	}
+	for _, r := range recs {
+		if err := b.memRecorder.RecordNode(ctx, run, r.Node, r.Action); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func (b *slowBatch) RecordResults(ctx context.Context, run RunID, rs []ResultRef) error {
+	b.mu.Lock()
+	b.written += len(rs)
+	b.mu.Unlock()
+	return b.memRecorder.RecordResults(ctx, run, rs)
+}
+
+// Session.Committed never runs ahead of what the recorder wrote: after
+// every chunk, the results below the mark are written; after Finish all
+// are, unless a write failed, when none past the failure are.
+func TestCommittedNeverAheadOfTheRecorder(t *testing.T) {
+	for _, fail := range []bool{false, true} {
+		rec := &slowBatch{memRecorder: newMem(), fail: fail}
+		opts := Options{Jobs: 2, Tool: "test/1", Now: time.Now, Batch: 3, FlushEvery: 5 * time.Millisecond}
+		s, err := Begin(context.Background(), rec, RunInfo{ID: RunID(fmt.Sprintf("committed-%v", fail))}, opts)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for k := 0; k < 6; k++ {
+			g := &Graph{}
+			g.MarkResult("r", mustAdd(t, g, src{}, Values{"x": f(float64(100 + k))}))
+			if _, err := s.Execute(context.Background(), g); err != nil && !fail {
+				t.Fatal(err)
+			}
+			rec.mu.Lock()
+			w := rec.written
+			rec.mu.Unlock()
+			if c := s.Committed(); c > w {
+				t.Fatalf("fail=%v chunk %d: %d results marked committed, %d written", fail, k, c, w)
+			}
+		}
+		s.Finish(context.Background(), nil)
+		if c := s.Committed(); !fail && c != 6 || fail && c != 0 {
+			t.Errorf("fail=%v: %d committed after Finish, want %d", fail, c, map[bool]int{false: 6, true: 0}[fail])
+		}
+	}
+}

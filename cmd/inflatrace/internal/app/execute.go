@@ -105,6 +105,30 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 	var firstErr error
 	nodes := 0
 	var runErr error
+	// A chunk's results are handed on (printed) only once the session has
+	// committed them with their nodes: what was printed is in the ledger,
+	// even after a crash. Chunks wait here until then.
+	type waiting struct {
+		results []study.Result
+		upto    int // the session's results mark after the chunk
+	}
+	var queue []waiting
+	marked := 0
+	release := func(committed int) error {
+		for len(queue) > 0 && queue[0].upto <= committed {
+			rs := queue[0].results
+			queue = queue[1:]
+			e.flagBBN(rs)
+			if emit != nil {
+				if err := emit(id, rs); err != nil {
+					return err
+				}
+			} else {
+				out.Results = append(out.Results, rs...)
+			}
+		}
+		return nil
+	}
 	// Chunk by chunk: each graph is evaluated, recorded and let go.
 	for k, ch := range chunks {
 		graph := first
@@ -120,15 +144,11 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 			break
 		}
 		nodes += len(graph.Nodes)
-		results := study.Results(graph, rep)
-		e.flagBBN(results)
-		if emit != nil {
-			if err := emit(id, results); err != nil {
-				runErr = err
-				break
-			}
-		} else {
-			out.Results = append(out.Results, results...)
+		marked += len(graph.Results)
+		queue = append(queue, waiting{study.Results(graph, rep), marked})
+		if err := release(sess.Committed()); err != nil {
+			runErr = err
+			break
 		}
 		for _, o := range rep.Outcomes {
 			if o.Err != nil && firstErr == nil {
@@ -141,6 +161,11 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 	status, ferr := sess.Finish(ctx, runErr)
 	if runErr == nil {
 		runErr = ferr
+	}
+	// Finish wrote what was pending: release what it committed (nothing
+	// more, if a write failed).
+	if err := release(sess.Committed()); err != nil && runErr == nil {
+		runErr = err
 	}
 	if runErr != nil {
 		return nil, runErr
