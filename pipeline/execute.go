@@ -270,7 +270,7 @@ type writer struct {
 	upto          int
 	committedUpto atomic.Int64
 	kick          chan struct{}
-	done      chan struct{}
+	done          chan struct{}
 }
 
 func newWriter(ctx context.Context, rec BatchRecorder, run RunID, max int, every time.Duration) *writer {
