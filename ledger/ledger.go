@@ -9,6 +9,7 @@ import (
 	"net/url"
 	"os"
 	"path/filepath"
+	"strings"
 	"time"
 
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -33,6 +34,8 @@ type Ledger struct {
 	rdb  *sql.DB // readers: several connections, reading in WAL snapshots
 	path string
 	now  func() time.Time
+	// readOnly is set by OpenReadOnly: db and rdb are one read-only pool.
+	readOnly bool
 	// What LookupMany just found, for the writer a moment later: rows
 	// (their ids, statuses and output hashes; ids never change and ok rows
 	// never change, so an entry cannot go stale) and keys not stored at
@@ -144,7 +147,7 @@ func (l *Ledger) Path() string { return l.path }
 
 // Close closes the database.
 func (l *Ledger) Close() error {
-	if l.rdb != nil {
+	if l.rdb != nil && l.rdb != l.db {
 		l.rdb.Close()
 	}
 	if err := l.db.Close(); err != nil {
@@ -363,6 +366,9 @@ func (l *Ledger) inTx(ctx context.Context, fn func(*qtx) error) error {
 	tx := &qtx{Tx: sqlTx, stmts: map[string]*sql.Stmt{}}
 	defer tx.Rollback()
 	if err := fn(tx); err != nil {
+		if l.readOnly && (strings.Contains(err.Error(), "readonly") || strings.Contains(err.Error(), "read-only") || strings.Contains(err.Error(), "query_only")) {
+			return fmt.Errorf("%w (%s): %v", ErrReadOnly, l.path, err)
+		}
 		return err
 	}
 	if err := tx.Commit(); err != nil {

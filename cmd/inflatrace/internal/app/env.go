@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"runtime"
 	"strconv"
@@ -106,6 +107,37 @@ func (e *Env) OpenLedger(g *Globals) (*ledger.Ledger, error) {
 		return nil, fmt.Errorf("open ledger %s: %w", path, err)
 	}
 	return l, nil
+}
+
+// OpenLedgerRead opens the ledger for a command that only reads it. Where
+// it cannot be opened for writing (a read-only directory or file system,
+// someone else's file), it is opened read-only instead (ledger.OpenReadOnly),
+// so that show, table, plot, runs, trace and diff work on a ledger the
+// user may read but not write.
+func (e *Env) OpenLedgerRead(g *Globals) (*ledger.Ledger, error) {
+	path := e.LedgerPath(g)
+	l, err := ledger.Open(path, ledger.WithClock(e.Now))
+	if err == nil {
+		return l, nil
+	}
+	if _, serr := os.Stat(path); serr != nil || !cannotWrite(err) {
+		return nil, fmt.Errorf("open ledger %s: %w", path, err)
+	}
+	ro, rerr := ledger.OpenReadOnly(path, ledger.WithClock(e.Now))
+	if rerr != nil {
+		return nil, fmt.Errorf("open ledger %s: %w (and read-only: %v)", path, err, rerr)
+	}
+	return ro, nil
+}
+
+// cannotWrite reports whether an open failed for want of write access.
+func cannotWrite(err error) bool {
+	if errors.Is(err, fs.ErrPermission) || errors.Is(err, syscall.EROFS) || errors.Is(err, syscall.EACCES) {
+		return true
+	}
+	msg := err.Error()
+	return strings.Contains(msg, "readonly database") || strings.Contains(msg, "read-only file system") ||
+		strings.Contains(msg, "unable to open database file") || strings.Contains(msg, "permission denied")
 }
 
 // NewRunID returns a run id: the UTC start time and 6 random hex digits,

@@ -126,7 +126,7 @@ func load(ctx context.Context, l *ledger.Ledger, ref string) (revision.Run, stri
 
 // Run compares the runs.
 func Run(ctx context.Context, o *Options) error {
-	l, err := o.Env.OpenLedger(o.Globals)
+	l, err := o.Env.OpenLedgerRead(o.Globals)
 	if err != nil {
 		return err
 	}

@@ -96,7 +96,7 @@ func Run(ctx context.Context, o *Options, png func([]byte, io.Writer) error) err
 	default:
 		return app.Usage(fmt.Errorf("--format %q: want dot, svg or png", o.Format))
 	}
-	l, err := o.Env.OpenLedger(o.Globals)
+	l, err := o.Env.OpenLedgerRead(o.Globals)
 	if err != nil {
 		return err
 	}

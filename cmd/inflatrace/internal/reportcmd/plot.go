@@ -104,7 +104,7 @@ func Plot(ctx context.Context, o *PlotOptions) error {
 	if err != nil {
 		return err
 	}
-	l, err := o.Env.OpenLedger(o.Globals)
+	l, err := o.Env.OpenLedgerRead(o.Globals)
 	if err != nil {
 		return err
 	}

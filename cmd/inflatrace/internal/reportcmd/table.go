@@ -62,7 +62,7 @@ func NewTableCmd(env *app.Env, g *app.Globals) *cobra.Command {
 // Table writes the table. The whole table is made before --out is
 // created, so that a bad option leaves no file behind.
 func Table(ctx context.Context, o *TableOptions) error {
-	l, err := o.Env.OpenLedger(o.Globals)
+	l, err := o.Env.OpenLedgerRead(o.Globals)
 	if err != nil {
 		return err
 	}

@@ -98,7 +98,7 @@ func Run(ctx context.Context, o *Options) error {
 	default:
 		return app.Usage(fmt.Errorf("--kind %q: want %s, %s, %s or %s", o.Kind, KindStudy, KindShard, KindPredict, KindAll))
 	}
-	l, err := o.Env.OpenLedger(o.Globals)
+	l, err := o.Env.OpenLedgerRead(o.Globals)
 	if err != nil {
 		return err
 	}

@@ -115,7 +115,7 @@ func paramSummary(vs pipeline.Values) string {
 
 // Run shows the run.
 func Run(ctx context.Context, o *Options) error {
-	l, err := o.Env.OpenLedger(o.Globals)
+	l, err := o.Env.OpenLedgerRead(o.Globals)
 	if err != nil {
 		return err
 	}

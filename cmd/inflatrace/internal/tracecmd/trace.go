@@ -120,7 +120,7 @@ func ResolveResult(ctx context.Context, l *ledger.Ledger, ref string) (pipeline.
 
 // Run prints the lineage.
 func Run(ctx context.Context, o *Options) error {
-	l, err := o.Env.OpenLedger(o.Globals)
+	l, err := o.Env.OpenLedgerRead(o.Globals)
 	if err != nil {
 		return err
 	}
