@@ -539,7 +539,10 @@ func (l *Ledger) finishRun(ctx context.Context, run pipeline.RunID, status pipel
 		}
 		_, err := tx.ExecContext(ctx, "UPDATE runs SET status = ?, finished_at = ?, error = ? WHERE id = ?",
 			string(status), formatTime(finished), errText, string(run))
-		return err
+		if err != nil {
+			return err
+		}
+		return writeSeal(ctx, tx, run)
 	})
 }
 
@@ -574,6 +577,9 @@ func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bo
 			}
 			if _, err := tx.ExecContext(ctx, "UPDATE runs SET status = 'failed', finished_at = ?, error = ? WHERE id = ?",
 				formatTime(l.now()), "interrupted: its process ("+c.owner+") is gone", c.id); err != nil {
+				return err
+			}
+			if err := writeSeal(ctx, tx, pipeline.RunID(c.id)); err != nil {
 				return err
 			}
 			closed = append(closed, pipeline.RunID(c.id))

@@ -153,6 +153,20 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 					return fmt.Errorf("run %s result %d: %w", run.ID, r.Ordinal, err)
 				}
 			}
+			// The incoming run's rows must give the seal it carries; a run
+			// without one (finished before seals) stays unsealed here.
+			if run.Seal != "" {
+				got, err := sealOf(ctx, tx, run.ID)
+				if err != nil {
+					return err
+				}
+				if got != run.Seal {
+					return fmt.Errorf("%w: run %s: its rows seal to %s, but it was sealed %s: a row was edited after the run finished", ErrIntegrity, run.ID, got, run.Seal)
+				}
+				if _, err := tx.ExecContext(ctx, "UPDATE runs SET seal = ? WHERE id = ?", run.Seal, string(run.ID)); err != nil {
+					return err
+				}
+			}
 			rep.Runs++
 		}
 		names := make([]string, 0, len(s.tags))

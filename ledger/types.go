@@ -27,6 +27,9 @@ type RunDetail struct {
 	Status   pipeline.RunStatus
 	Finished time.Time // zero while the run is running
 	Error    string
+	// Seal is the hash of the run's account written when it finished
+	// (see sealOf); empty while running and for runs finished before seals.
+	Seal string
 }
 
 // RunNode is a node as one run saw it: the stored node together with what

@@ -88,6 +88,14 @@ func Run(ctx context.Context, o *Options) error {
 		if err != nil {
 			return err
 		}
+		sealProbs, unsealed, err := l.SealProblems(ctx)
+		if err != nil {
+			return err
+		}
+		probs = append(probs, sealProbs...)
+		if len(unsealed) > 0 {
+			fmt.Fprintf(o.Env.Stderr, "%d finished run(s) carry no seal (finished before seals): their node rows are checked, their run rows cannot be\n", len(unsealed))
+		}
 		if o.JSON {
 			if err := app.JSON(o.Env.Stdout, map[string]any{"problems": probs}); err != nil {
 				return err
@@ -169,8 +177,19 @@ func Run(ctx context.Context, o *Options) error {
 		counts[rep.Verdict]++
 		reports = append(reports, rep)
 	}
+	sealed, sealProblem, err := l.CheckSeal(ctx, id)
+	if err != nil {
+		return err
+	}
+	sealText := "intact"
+	switch {
+	case !sealed:
+		sealText = "none (finished before seals, or still running)"
+	case sealProblem != nil:
+		sealText = "broken: " + sealProblem.What
+	}
 	if o.JSON {
-		if err := app.JSON(o.Env.Stdout, map[string]any{"run": id, "tolerance": o.Tolerance, "counts": counts, "nodes": reports}); err != nil {
+		if err := app.JSON(o.Env.Stdout, map[string]any{"run": id, "tolerance": o.Tolerance, "counts": counts, "nodes": reports, "seal": sealText}); err != nil {
 			return err
 		}
 	} else {
@@ -188,6 +207,10 @@ func Run(ctx context.Context, o *Options) error {
 	}
 	fmt.Fprintf(o.Env.Stderr, "verify %s: %d identical, %d within tolerance %g, %d different, %d skipped\n",
 		id, counts[Identical], counts[Within], o.Tolerance, counts[Different], counts[Skipped])
+	fmt.Fprintf(o.Env.Stderr, "verify %s: seal %s\n", id, sealText)
+	if sealProblem != nil {
+		return &app.RunFailedError{Run: id, Failed: 1, First: fmt.Errorf("run %s: %s", id, sealProblem.What)}
+	}
 	if counts[Different] > 0 {
 		return &app.RunFailedError{Run: id, Failed: counts[Different], First: fmt.Errorf("recomputed outputs differ")}
 	}

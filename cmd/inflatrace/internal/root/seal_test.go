@@ -1,0 +1,84 @@
+package root
+
+import (
+	"database/sql"
+	"strings"
+	"testing"
+
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// Every finished run is sealed, and the edits the trust issue quotes —
+// an ok node's link turned failed, a result row or node link edited, a
+// run's configuration edited together with its hash — are each reported
+// by verify --all and verify RUN (exit 3), where before seals they passed;
+// an untouched ledger verifies clean, and merging a ledger whose rows were
+// edited after sealing is refused.
+func TestSealsCatchEditsOfRunRows(t *testing.T) {
+	edits := []struct {
+		name string
+		sql  []string
+	}{
+		{"node link turned failed", []string{"UPDATE run_nodes SET action = 'failed', error = 'edited' WHERE ordinal = (SELECT max(ordinal) FROM run_nodes)"}},
+		{"result dropped", []string{"DELETE FROM run_results WHERE ordinal = 0"}},
+		{"result relabelled", []string{"UPDATE run_results SET label = 'edited' WHERE ordinal = 1"}},
+		{"configuration and its hash", []string{"UPDATE runs SET config_text = config_text || '# edited', config_hash = 'x'"}},
+		{"status", []string{"UPDATE runs SET error = 'was fine'"}},
+	}
+	for _, e := range edits {
+		t.Run(e.name, func(t *testing.T) {
+			h := newHarness(t)
+			h.mustRun("run", h.write("a.toml", studyA))
+			h.mustRun("verify", "--all")
+			h.mustRun("verify", "latest")
+			db, err := sql.Open("sqlite3", h.ledger)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, q := range e.sql {
+				if strings.Contains(q, "config_hash = 'x'") {
+					// A consistent edit: the configuration hash recomputed.
+					var text string
+					db.QueryRow("SELECT config_text FROM runs").Scan(&text)
+					q = "UPDATE runs SET config_text = ?, config_hash = ?"
+					if _, err := db.Exec(q, text+"# edited", pipeline.Sum([]byte(text+"# edited"))); err != nil {
+						t.Fatal(err)
+					}
+					continue
+				}
+				if _, err := db.Exec(q); err != nil {
+					t.Fatal(err)
+				}
+			}
+			db.Close()
+			_, errs, code := h.run("verify", "--all")
+			if code != app.ExitRunFailed || !strings.Contains(errs, "edited after the run finished") {
+				t.Errorf("verify --all after %s: exit %d, %q; want 3 naming the sealed run", e.name, code, errs)
+			}
+		})
+	}
+}
+
+// A ledger whose run rows were edited after sealing is refused by merge,
+// and verify RUN reports the broken seal (exit 3).
+func TestSealRefusesEditedMergeAndVerifyRun(t *testing.T) {
+	h := newHarness(t)
+	h.mustRun("run", h.write("a.toml", studyA))
+	db, err := sql.Open("sqlite3", h.ledger)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := db.Exec("UPDATE run_results SET label = 'edited' WHERE ordinal = 0"); err != nil {
+		t.Fatal(err)
+	}
+	db.Close()
+	if _, errs, code := h.run("verify", "latest"); code != app.ExitRunFailed || !strings.Contains(errs, "seal broken") {
+		t.Errorf("verify RUN after an edit: exit %d, %q", code, errs)
+	}
+	other := h.dir + "/other.db"
+	_, errs, code := h.run("--ledger", other, "merge", h.ledger)
+	if code == 0 || !strings.Contains(errs, "edited after the run finished") {
+		t.Errorf("merge of an edited ledger: exit %d, %q; want a refusal", code, errs)
+	}
+}

@@ -1,0 +1,189 @@
+package ledger
+
+import (
+	"context"
+	"crypto/sha256"
+	"database/sql"
+	"encoding/binary"
+	"encoding/hex"
+	"fmt"
+	"strconv"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// SealVersion names the layout of the text a seal is the hash of.
+const SealVersion = "inflatrace-seal/1"
+
+// sealOf computes the seal of a finished run from its rows: the SHA-256
+// of a text that writes, one line each, the seal version, the run's id,
+// tool version, configuration hash, status and error, the run it was
+// derived from and the runs it assembles, every result in order (ordinal,
+// node key, label) and every node it linked in order (ordinal, key, what
+// the run did, the output hash as the run saw it, the run's error for the
+// node; these lines in binary, see sealOf's loop). Any edit to one of these rows after the seal was written changes
+// it. A node row that later changes legitimately (a failed node computed
+// again by another run) does not: the run's own account is sealed.
+func sealOf(ctx context.Context, tx *qtx, id pipeline.RunID) (string, error) {
+	h := sha256.New()
+	line := func(parts ...string) {
+		for i, p := range parts {
+			if i > 0 {
+				h.Write([]byte{' '})
+			}
+			h.Write([]byte(p))
+		}
+		h.Write([]byte{'\n'})
+	}
+	d, err := readRun(ctx, tx, id)
+	if err != nil {
+		return "", err
+	}
+	line(SealVersion)
+	line("run", strconv.Quote(string(d.ID)))
+	line("tool", strconv.Quote(d.ToolVersion))
+	line("config", d.ConfigHash)
+	line("status", string(d.Status), strconv.Quote(d.Error))
+	line("derived_from", strconv.Quote(string(d.DerivedFrom)))
+	for i, p := range d.Parts {
+		line("part", strconv.Itoa(i), strconv.Quote(string(p)))
+	}
+	res, err := tx.QueryContext(ctx, `SELECT rr.ordinal, n.key, rr.label FROM run_results rr JOIN nodes n ON n.id = rr.node
+		WHERE rr.run_id = ? ORDER BY rr.ordinal`, string(id))
+	if err != nil {
+		return "", err
+	}
+	for res.Next() {
+		var ord int
+		var key []byte
+		var label string
+		if err := res.Scan(&ord, &key, &label); err != nil {
+			res.Close()
+			return "", err
+		}
+		line("result", strconv.Itoa(ord), hex.EncodeToString(key), strconv.Quote(label))
+	}
+	if err := res.Close(); err != nil {
+		return "", err
+	}
+	ns, err := tx.QueryContext(ctx, `SELECT rn.ordinal, n.key, rn.action, n.output_hash, rn.error FROM run_nodes rn JOIN nodes n ON n.id = rn.node
+		WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
+	if err != nil {
+		return "", err
+	}
+	defer ns.Close()
+	// Node lines are many (five a point): written in binary, the key and
+	// output hash as their 32 bytes, the ordinal and lengths as varints.
+	buf := make([]byte, 0, 128)
+	for ns.Next() {
+		var ord int64
+		var key, hash, action, errText sql.RawBytes
+		if err := ns.Scan(&ord, &key, &action, &hash, &errText); err != nil {
+			return "", err
+		}
+		buf = append(buf[:0], "node "...)
+		buf = binary.AppendUvarint(buf, uint64(ord))
+		buf = append(buf, key...)
+		buf = binary.AppendUvarint(buf, uint64(len(action)))
+		buf = append(buf, action...)
+		if string(action) == string(pipeline.Failed) {
+			buf = append(buf, 0)
+		} else {
+			buf = append(buf, byte(len(hash)))
+			buf = append(buf, hash...)
+		}
+		buf = binary.AppendUvarint(buf, uint64(len(errText)))
+		buf = append(buf, errText...)
+		h.Write(buf)
+	}
+	if err := ns.Err(); err != nil {
+		return "", err
+	}
+	return "sha256:" + hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// writeSeal seals a finished run.
+func writeSeal(ctx context.Context, tx *qtx, id pipeline.RunID) error {
+	seal, err := sealOf(ctx, tx, id)
+	if err != nil {
+		return fmt.Errorf("seal run %s: %w", id, err)
+	}
+	_, err = tx.ExecContext(ctx, "UPDATE runs SET seal = ? WHERE id = ?", seal, string(id))
+	return err
+}
+
+// SealProblems recomputes the seal of every finished run and reports the
+// runs whose rows were edited after they were sealed, and lists the
+// finished runs that carry no seal (finished before seals existed).
+func (l *Ledger) SealProblems(ctx context.Context) (problems []Problem, unsealed []pipeline.RunID, err error) {
+	err = l.inReadTx(ctx, func(tx *qtx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT id, seal FROM runs WHERE status <> 'running' ORDER BY id")
+		if err != nil {
+			return err
+		}
+		type run struct {
+			id   string
+			seal sql.NullString
+		}
+		var runs []run
+		for rows.Next() {
+			var r run
+			if err := rows.Scan(&r.id, &r.seal); err != nil {
+				rows.Close()
+				return err
+			}
+			runs = append(runs, r)
+		}
+		if err := rows.Close(); err != nil {
+			return err
+		}
+		for _, r := range runs {
+			if !r.seal.Valid {
+				unsealed = append(unsealed, pipeline.RunID(r.id))
+				continue
+			}
+			got, err := sealOf(ctx, tx, pipeline.RunID(r.id))
+			if err != nil {
+				return err
+			}
+			if got != r.seal.String {
+				problems = append(problems, Problem{Table: "runs", ID: r.id,
+					What: fmt.Sprintf("the run's rows (configuration hash, status, results, node links) seal to %s, the seal written at its end is %s: a row was edited after the run finished", got, r.seal.String)})
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, nil, fmt.Errorf("ledger: check seals: %w", err)
+	}
+	return problems, unsealed, nil
+}
+
+// CheckSeal recomputes one run's seal: sealed is false for a run without
+// one (running, or finished before seals); a seal that no longer matches
+// the run's rows is returned as a Problem.
+func (l *Ledger) CheckSeal(ctx context.Context, id pipeline.RunID) (sealed bool, problem *Problem, err error) {
+	err = l.inReadTx(ctx, func(tx *qtx) error {
+		d, err := readRun(ctx, tx, id)
+		if err != nil {
+			return err
+		}
+		if d.Seal == "" {
+			return nil
+		}
+		sealed = true
+		got, err := sealOf(ctx, tx, id)
+		if err != nil {
+			return err
+		}
+		if got != d.Seal {
+			problem = &Problem{Table: "runs", ID: string(id),
+				What: fmt.Sprintf("the run's rows seal to %s, the seal written at its end is %s: a row was edited after the run finished", got, d.Seal)}
+		}
+		return nil
+	})
+	if err != nil {
+		return false, nil, fmt.Errorf("ledger: check the seal of run %s: %w", id, err)
+	}
+	return sealed, problem, nil
+}
