@@ -1,21 +1,25 @@
 // Package archive writes and reads release archives of a run: a folder or
 // a .tar.gz holding the configuration, the results, a self-contained
-// ledger with exactly that run's nodes, and a manifest with the SHA-256 of
-// every file and the tool version. Reading checks every file against the
-// manifest before anything is used.
+// ledger with exactly that run's nodes, and a manifest with the SHA-256 and
+// size of every file and the tool version.
+//
+// Reading (verify.go) checks every file against the manifest before
+// anything is used, streaming: sizes are checked against the manifest and a
+// total cap before a byte of content is read, no file is held whole in
+// memory, and a folder and a .tar.gz are held to the same rules.
 package archive
 
 import (
 	"archive/tar"
 	"compress/gzip"
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"sort"
-	"strings"
 	"time"
 
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -46,30 +50,24 @@ type Manifest struct {
 // FormatName identifies the manifest format.
 const FormatName = "inflatrace-archive/1"
 
-// WriteManifest hashes every file in dir (except the manifest) and writes
-// the manifest.
+// WriteManifest hashes every file in dir (except the manifest), streaming,
+// and writes the manifest.
 func WriteManifest(dir, toolVersion string, run pipeline.RunID, created time.Time) (Manifest, error) {
 	m := Manifest{Format: FormatName, ToolVersion: toolVersion, Run: string(run), Created: created.UTC().Format(time.RFC3339)}
-	err := filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
-		if err != nil || d.IsDir() {
-			return err
-		}
-		rel, _ := filepath.Rel(dir, p)
-		rel = filepath.ToSlash(rel)
-		if rel == ManifestName {
-			return nil
-		}
-		data, err := os.ReadFile(p)
-		if err != nil {
-			return err
-		}
-		m.Files = append(m.Files, Entry{Path: rel, SHA256: pipeline.Sum(data), Bytes: int64(len(data))})
-		return nil
-	})
+	files, err := regularFiles(dir)
 	if err != nil {
 		return m, err
 	}
-	sort.Slice(m.Files, func(i, j int) bool { return m.Files[i].Path < m.Files[j].Path })
+	for _, rel := range files {
+		if rel == ManifestName {
+			continue
+		}
+		sum, n, err := hashFile(filepath.Join(dir, filepath.FromSlash(rel)))
+		if err != nil {
+			return m, err
+		}
+		m.Files = append(m.Files, Entry{Path: rel, SHA256: sum, Bytes: n})
+	}
 	data, err := json.MarshalIndent(m, "", "  ")
 	if err != nil {
 		return m, err
@@ -77,100 +75,66 @@ func WriteManifest(dir, toolVersion string, run pipeline.RunID, created time.Tim
 	return m, os.WriteFile(filepath.Join(dir, ManifestName), append(data, '\n'), 0o644)
 }
 
-// TamperError reports an archive whose content no longer matches its
-// manifest.
-type TamperError struct {
-	Archive, File, Msg string
-}
-
-func (e *TamperError) Error() string {
-	return fmt.Sprintf("archive %s refused: %s: %s (the archive was changed after it was written; ask its author for an intact copy)", e.Archive, e.File, e.Msg)
-}
-
-// Check verifies every file of an unpacked archive against its manifest:
-// no file missing, none extra, every SHA-256 and size as listed.
-func Check(name, dir string) (Manifest, error) {
-	var m Manifest
-	data, err := os.ReadFile(filepath.Join(dir, ManifestName))
-	if err != nil {
-		return m, &TamperError{name, ManifestName, "missing or unreadable: " + err.Error()}
-	}
-	if err := json.Unmarshal(data, &m); err != nil {
-		return m, &TamperError{name, ManifestName, "not a manifest: " + err.Error()}
-	}
-	if m.Format != FormatName {
-		return m, &TamperError{name, ManifestName, fmt.Sprintf("format %q, want %q", m.Format, FormatName)}
-	}
-	listed := map[string]Entry{}
-	for _, e := range m.Files {
-		listed[e.Path] = e
-	}
-	seen := map[string]bool{}
-	err = filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
+// regularFiles lists dir's files as sorted slash-separated relative paths,
+// refusing anything but folders and regular files.
+func regularFiles(dir string) ([]string, error) {
+	var files []string
+	err := filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
 		if err != nil || d.IsDir() {
 			return err
 		}
-		rel, _ := filepath.Rel(dir, p)
-		rel = filepath.ToSlash(rel)
-		if rel == ManifestName {
-			return nil
+		if !d.Type().IsRegular() {
+			return fmt.Errorf("archive folder %s: %s is not a regular file", dir, p)
 		}
-		e, ok := listed[rel]
-		if !ok {
-			return &TamperError{name, rel, "not listed in the manifest"}
-		}
-		data, err := os.ReadFile(p)
-		if err != nil {
-			return err
-		}
-		if got := pipeline.Sum(data); got != e.SHA256 || int64(len(data)) != e.Bytes {
-			return &TamperError{name, rel, fmt.Sprintf("expected %s (%d bytes), found %s (%d bytes)", e.SHA256, e.Bytes, got, len(data))}
-		}
-		seen[rel] = true
-		return nil
+		rel, err := filepath.Rel(dir, p)
+		files = append(files, filepath.ToSlash(rel))
+		return err
 	})
-	if err != nil {
-		return m, err
-	}
-	for _, e := range m.Files {
-		if !seen[e.Path] {
-			return m, &TamperError{name, e.Path, "listed in the manifest but missing"}
-		}
-	}
-	return m, nil
+	sort.Strings(files)
+	return files, err
 }
 
-// Pack writes dir's files as a gzip-compressed tar at path, in sorted
-// order with fixed modes and times, so the same files give the same bytes.
+// hashFile returns the prefixed SHA-256 and the size of a file, reading it
+// in pieces.
+func hashFile(p string) (string, int64, error) {
+	f, err := os.Open(p)
+	if err != nil {
+		return "", 0, err
+	}
+	defer f.Close()
+	h := sha256.New()
+	n, err := io.Copy(h, f)
+	if err != nil {
+		return "", 0, fmt.Errorf("hash %s: %w", p, err)
+	}
+	return pipeline.HashPrefix + hex.EncodeToString(h.Sum(nil)), n, nil
+}
+
+// Pack writes dir's files as a gzip-compressed tar at path: the manifest
+// first (so that a reader can check every later entry against it before
+// writing any of it), then the other files in sorted order, with fixed
+// modes and times, so the same files give the same bytes. Files are copied
+// in pieces, never held whole in memory.
 func Pack(dir, path string, modTime time.Time) error {
+	files, err := regularFiles(dir)
+	if err != nil {
+		return err
+	}
+	ordered := []string{ManifestName}
+	for _, rel := range files {
+		if rel != ManifestName {
+			ordered = append(ordered, rel)
+		}
+	}
 	f, err := os.OpenFile(path, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
 	if err != nil {
 		return err
 	}
 	gz := gzip.NewWriter(f)
 	tw := tar.NewWriter(gz)
-	var files []string
-	err = filepath.WalkDir(dir, func(p string, d os.DirEntry, err error) error {
-		if err == nil && !d.IsDir() {
-			files = append(files, p)
-		}
-		return err
-	})
-	if err == nil {
-		sort.Strings(files)
-		for _, p := range files {
-			rel, _ := filepath.Rel(dir, p)
-			var data []byte
-			if data, err = os.ReadFile(p); err != nil {
-				break
-			}
-			hdr := &tar.Header{Name: filepath.ToSlash(rel), Mode: 0o644, Size: int64(len(data)), ModTime: modTime.UTC().Truncate(time.Second), Format: tar.FormatPAX}
-			if err = tw.WriteHeader(hdr); err != nil {
-				break
-			}
-			if _, err = tw.Write(data); err != nil {
-				break
-			}
+	for _, rel := range ordered {
+		if err = packFile(tw, filepath.Join(dir, filepath.FromSlash(rel)), rel, modTime); err != nil {
+			break
 		}
 	}
 	for _, c := range []io.Closer{tw, gz, f} {
@@ -184,52 +148,49 @@ func Pack(dir, path string, modTime time.Time) error {
 	return err
 }
 
-// Unpack extracts a .tar.gz into dir, refusing absolute paths, ".."
-// components, links and special files.
-func Unpack(path, dir string) error {
-	f, err := os.Open(path)
+// packFile appends one file to tw as entry name.
+func packFile(tw *tar.Writer, p, name string, modTime time.Time) error {
+	in, err := os.Open(p)
 	if err != nil {
 		return err
 	}
-	defer f.Close()
-	gz, err := gzip.NewReader(f)
+	defer in.Close()
+	info, err := in.Stat()
 	if err != nil {
-		return fmt.Errorf("archive %s: not gzip: %w", path, err)
+		return err
 	}
-	tr := tar.NewReader(gz)
-	for {
-		hdr, err := tr.Next()
-		if errors.Is(err, io.EOF) {
-			return nil
-		}
-		if err != nil {
-			return fmt.Errorf("archive %s: %w", path, err)
-		}
-		name := filepath.FromSlash(hdr.Name)
-		if filepath.IsAbs(name) || strings.HasPrefix(filepath.Clean(name), "..") {
-			return &TamperError{path, hdr.Name, "path leaves the archive"}
-		}
-		switch hdr.Typeflag {
-		case tar.TypeDir:
-			continue
-		case tar.TypeReg:
-		default:
-			return &TamperError{path, hdr.Name, "not a regular file"}
-		}
-		dst := filepath.Join(dir, name)
-		if err := os.MkdirAll(filepath.Dir(dst), 0o755); err != nil {
-			return err
-		}
-		out, err := os.OpenFile(dst, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
-		if err != nil {
-			return err
-		}
-		_, err = io.Copy(out, io.LimitReader(tr, 1<<31))
-		if cerr := out.Close(); err == nil {
-			err = cerr
-		}
-		if err != nil {
-			return err
-		}
+	hdr := &tar.Header{Name: name, Mode: 0o644, Size: info.Size(), ModTime: modTime.UTC().Truncate(time.Second), Format: tar.FormatPAX}
+	if err := tw.WriteHeader(hdr); err != nil {
+		return fmt.Errorf("pack %s: %w", name, err)
 	}
+	if _, err := io.CopyN(tw, in, info.Size()); err != nil {
+		return fmt.Errorf("pack %s: %w", name, err)
+	}
+	return nil
+}
+
+// TamperError reports an archive whose content does not match its
+// manifest, or that holds something no archive inflatrace writes holds
+// (a link, a device, a path leaving the archive).
+type TamperError struct {
+	Archive, File, Msg string
+}
+
+func (e *TamperError) Error() string {
+	return fmt.Sprintf("archive %s refused: %s: %s (the archive was changed after it was written; ask its author for an intact copy)", e.Archive, e.File, e.Msg)
+}
+
+// TooLargeError reports an archive refused because it exceeds the total
+// size a reader accepts (Limits.MaxBytes).
+type TooLargeError struct {
+	Archive, File string
+	// Bytes is the size that would be reached, Limit the cap.
+	Bytes, Limit int64
+	// What says what was measured ("the manifest lists 3 files").
+	What string
+}
+
+func (e *TooLargeError) Error() string {
+	return fmt.Sprintf("archive %s refused: %s: %s totalling %s (%d bytes), more than the import limit of %s (%d bytes)",
+		e.Archive, e.File, e.What, FormatSize(e.Bytes), e.Bytes, FormatSize(e.Limit), e.Limit)
 }

@@ -27,6 +27,8 @@ type Options struct {
 	Run     string
 	Out     string
 	From    string
+	// MaxSize caps the total size of an imported archive's files.
+	MaxSize Size
 }
 
 // Extra writes further files (tables, figures) of a run into an archive
@@ -55,9 +57,9 @@ func NewExportCmd(env *app.Env, g *app.Globals, extra Extra) *cobra.Command {
 
 // NewImportCmd returns the import command.
 func NewImportCmd(env *app.Env, g *app.Globals) *cobra.Command {
-	opts := &Options{Env: env, Globals: g}
-	return &cobra.Command{
-		Use:   "import FILE.tar.gz|DIR",
+	opts := &Options{Env: env, Globals: g, MaxSize: Size(archive.DefaultMaxBytes)}
+	cmd := &cobra.Command{
+		Use:   "import FILE.tar.gz|DIR [--max-size SIZE]",
 		Short: "Check an archive against its manifest and merge its ledger into this one",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
@@ -65,6 +67,8 @@ func NewImportCmd(env *app.Env, g *app.Globals) *cobra.Command {
 			return Import(c.Context(), opts)
 		},
 	}
+	cmd.Flags().Var(&opts.MaxSize, "max-size", "refuse an archive whose files total more than SIZE (bytes, or with a unit: 500MB, 2GiB)")
+	return cmd
 }
 
 func isTarball(p string) bool { return strings.HasSuffix(p, ".tar.gz") || strings.HasSuffix(p, ".tgz") }
@@ -138,44 +142,40 @@ func Export(ctx context.Context, o *Options, extra Extra) error {
 	return nil
 }
 
-// Import checks and merges an archive.
+// Import checks an archive and merges its ledger. Only the archive's
+// ledger is written to disk (into a private temporary folder, removed
+// whatever happens); every other file is hashed as it streams by. Nothing
+// is merged unless every file matches the manifest.
 func Import(ctx context.Context, o *Options) error {
-	dir := o.From
-	if isTarball(o.From) {
-		tmp, err := os.MkdirTemp("", "inflatrace-import-")
-		if err != nil {
-			return err
-		}
-		defer os.RemoveAll(tmp)
-		if err := archive.Unpack(o.From, tmp); err != nil {
-			return refuse(err)
-		}
-		dir = tmp
+	info, err := os.Stat(o.From)
+	switch {
+	case err != nil:
+		return app.Usage(fmt.Errorf("import %s: %w", o.From, err))
+	case !info.IsDir() && !isTarball(o.From):
+		return app.Usage(fmt.Errorf("import %s: neither a folder nor a .tar.gz or .tgz file", o.From))
 	}
-	m, err := archive.Check(o.From, dir)
-	if err != nil {
-		return refuse(err)
-	}
-	// Merge from a private copy: opening a ledger may write side files.
-	tmp, err := os.MkdirTemp("", "inflatrace-import-ledger-")
+	tmp, err := os.MkdirTemp("", "inflatrace-import-")
 	if err != nil {
 		return err
 	}
 	defer os.RemoveAll(tmp)
-	data, err := os.ReadFile(filepath.Join(dir, archive.LedgerName))
-	if err != nil {
-		return err
+	lim := archive.Limits{MaxBytes: o.MaxSize.bytes()}
+	keep := []string{archive.LedgerName}
+	var m archive.Manifest
+	if info.IsDir() {
+		m, err = archive.VerifyDir(o.From, tmp, keep, lim)
+	} else {
+		m, err = archive.VerifyTar(o.From, tmp, keep, lim)
 	}
-	copyPath := filepath.Join(tmp, archive.LedgerName)
-	if err := os.WriteFile(copyPath, data, 0o644); err != nil {
-		return err
+	if err != nil {
+		return refuse(err)
 	}
 	l, err := o.Env.OpenLedger(o.Globals)
 	if err != nil {
 		return err
 	}
 	defer l.Close()
-	rep, err := l.Merge(ctx, copyPath)
+	rep, err := l.Merge(ctx, filepath.Join(tmp, archive.LedgerName))
 	if err != nil {
 		return refuse(err)
 	}
@@ -184,10 +184,61 @@ func Import(ctx context.Context, o *Options) error {
 	return nil
 }
 
+// refuse marks an archive refused on integrity or size as a refusal
+// (exit 3), keeping its own message; a size refusal names the flag that
+// raises the limit. Other errors (I/O, a full disk) pass unchanged.
 func refuse(err error) error {
 	var te *archive.TamperError
-	if errors.As(err, &te) || errors.Is(err, ledger.ErrIntegrity) {
-		return &app.RunFailedError{Run: pipeline.RunID("import"), Failed: 1, First: err}
+	var tl *archive.TooLargeError
+	switch {
+	case errors.As(err, &tl):
+		return &refusal{fmt.Errorf("%w; import --max-size SIZE raises the limit", err)}
+	case errors.As(err, &te) || errors.Is(err, ledger.ErrIntegrity):
+		return &refusal{err}
 	}
 	return err
+}
+
+// refusal is an archive refused. Its message is the refusal's own; to
+// app.ExitCode it is an *app.RunFailedError (exit 3), through the As
+// method errors.As consults.
+type refusal struct{ err error }
+
+func (r *refusal) Error() string { return r.err.Error() }
+func (r *refusal) Unwrap() error { return r.err }
+
+// As lets errors.As see a refusal as the *app.RunFailedError of exit 3.
+func (r *refusal) As(target any) bool {
+	if p, ok := target.(**app.RunFailedError); ok {
+		*p = &app.RunFailedError{Run: pipeline.RunID("import"), Failed: 1, First: r.err}
+		return true
+	}
+	return false
+}
+
+// Size is a byte count given as a flag: plain bytes, or with a decimal
+// (MB) or binary (MiB) unit (archive.ParseSize).
+type Size int64
+
+// String writes the size as it is shown in help.
+func (s *Size) String() string { return archive.FormatSize(s.bytes()) }
+
+// Set parses a flag value.
+func (s *Size) Set(v string) error {
+	n, err := archive.ParseSize(v)
+	if err != nil {
+		return err
+	}
+	*s = Size(n)
+	return nil
+}
+
+// Type names the value in help.
+func (s *Size) Type() string { return "SIZE" }
+
+func (s *Size) bytes() int64 {
+	if s == nil || *s <= 0 {
+		return archive.DefaultMaxBytes
+	}
+	return int64(*s)
 }
