@@ -47,10 +47,10 @@ func (l *Ledger) beginRun(ctx context.Context, info pipeline.RunInfo) error {
 			}
 		}
 		_, err := tx.ExecContext(ctx, `INSERT INTO runs
-			(id, started_at, tool_version, config_path, config_text, config_hash, status, owner)
-			VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
+			(id, started_at, tool_version, config_path, config_text, config_hash, status, owner, heartbeat_at)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)`,
 			string(info.ID), formatTime(info.Started), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash,
-			string(pipeline.RunRunning), info.Owner)
+			string(pipeline.RunRunning), info.Owner, formatTime(l.now()))
 		if err != nil {
 			return err
 		}
@@ -546,22 +546,44 @@ func (l *Ledger) finishRun(ctx context.Context, run pipeline.RunID, status pipel
 	})
 }
 
+// HeartbeatEvery is how often a running run records that it is alive;
+// StaleAfter is how long a run may go without a heartbeat before it is
+// taken for dead (a killed process on another host, a reused PID, a hung
+// machine): many heartbeats, so that a busy machine is not mistaken.
+const (
+	HeartbeatEvery = 30 * time.Second
+	StaleAfter     = 10 * time.Minute
+)
+
+// Heartbeat records that run is alive now.
+func (l *Ledger) Heartbeat(ctx context.Context, run pipeline.RunID) error {
+	err := l.inTx(ctx, func(tx *qtx) error {
+		_, err := tx.ExecContext(ctx, "UPDATE runs SET heartbeat_at = ? WHERE id = ? AND status = 'running'", formatTime(l.now()), string(run))
+		return err
+	})
+	if err != nil {
+		return fmt.Errorf("ledger: heartbeat of run %s: %w", run, err)
+	}
+	return nil
+}
+
 // CloseAbandoned marks as failed ("interrupted") every run still recorded
-// as running whose owner alive says is gone (a process killed mid-run),
-// and returns their ids. The nodes such a run recorded stay in the ledger:
+// as running that is gone: its owner's process, by alive, or, wherever it
+// ran, its heartbeat (its start when it has none) older than staleAfter.
+// It returns their ids. The nodes such a run recorded stay in the ledger:
 // a re-run reuses them.
-func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bool) ([]pipeline.RunID, error) {
+func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bool, staleAfter time.Duration) ([]pipeline.RunID, error) {
 	var closed []pipeline.RunID
 	err := l.inTx(ctx, func(tx *qtx) error {
-		rows, err := tx.QueryContext(ctx, "SELECT id, owner FROM runs WHERE status = 'running'")
+		rows, err := tx.QueryContext(ctx, "SELECT id, owner, coalesce(heartbeat_at, started_at) FROM runs WHERE status = 'running'")
 		if err != nil {
 			return err
 		}
-		type cand struct{ id, owner string }
+		type cand struct{ id, owner, beat string }
 		var cs []cand
 		for rows.Next() {
 			var c cand
-			if err := rows.Scan(&c.id, &c.owner); err != nil {
+			if err := rows.Scan(&c.id, &c.owner, &c.beat); err != nil {
 				rows.Close()
 				return err
 			}
@@ -571,12 +593,23 @@ func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bo
 		if err := rows.Err(); err != nil {
 			return err
 		}
+		now := l.now()
 		for _, c := range cs {
-			if c.owner == "" || alive(c.owner) {
+			beat, err := parseTime(c.beat)
+			if err != nil {
+				return fmt.Errorf("%w: run %s: heartbeat %q: %v", ErrIntegrity, c.id, c.beat, err)
+			}
+			why := ""
+			switch {
+			case c.owner != "" && !alive(c.owner):
+				why = "interrupted: its process (" + c.owner + ") is gone"
+			case staleAfter > 0 && now.Sub(beat) > staleAfter:
+				why = fmt.Sprintf("interrupted: no sign of life from %s for %s (last at %s)", c.owner, now.Sub(beat).Round(time.Second), c.beat)
+			default:
 				continue
 			}
 			if _, err := tx.ExecContext(ctx, "UPDATE runs SET status = 'failed', finished_at = ?, error = ? WHERE id = ?",
-				formatTime(l.now()), "interrupted: its process ("+c.owner+") is gone", c.id); err != nil {
+				formatTime(now), why, c.id); err != nil {
 				return err
 			}
 			if err := writeSeal(ctx, tx, pipeline.RunID(c.id)); err != nil {

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"github.com/inflatrace/inflatrace/ledger"
+	"time"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/reheat"
@@ -85,7 +86,7 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 		ConfigPath: s.File, ConfigText: string(s.Text), ConfigHash: s.Hash(), Owner: e.Owner(),
 		DerivedFrom: o.DerivedFrom, Parts: o.Parts,
 	}
-	if closed, err := l.CloseAbandoned(ctx, e.Alive); err != nil {
+	if closed, err := l.CloseAbandoned(ctx, e.Alive, ledger.StaleAfter); err != nil {
 		return nil, err
 	} else {
 		for _, c := range closed {
@@ -101,6 +102,31 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 		endProgress()
 		return nil, err
 	}
+	// The run says it is alive while it runs, so that a later run can
+	// tell it from one whose process died on another host.
+	beat := make(chan struct{})
+	beatDone := make(chan struct{})
+	go func() {
+		defer close(beatDone)
+		t := time.NewTicker(ledger.HeartbeatEvery)
+		defer t.Stop()
+		for {
+			select {
+			case <-beat:
+				return
+			case <-t.C:
+				l.Heartbeat(context.WithoutCancel(ctx), id) // a missed beat only ages the run
+			}
+		}
+	}()
+	stopBeat := func() {
+		if beat != nil {
+			close(beat)
+			<-beatDone
+			beat = nil
+		}
+	}
+	defer stopBeat()
 	out := &Outcome{Ledger: l.Path()}
 	var firstErr error
 	nodes := 0
@@ -158,6 +184,7 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 		first = nil
 	}
 	endProgress()
+	stopBeat()
 	status, ferr := sess.Finish(ctx, runErr)
 	if runErr == nil {
 		runErr = ferr

@@ -82,3 +82,29 @@ func TestSealRefusesEditedMergeAndVerifyRun(t *testing.T) {
 		t.Errorf("merge of an edited ledger: exit %d, %q; want a refusal", code, errs)
 	}
 }
+
+// runs --close-stale closes a run left running by a process on another
+// host once its heartbeat is older than --stale-after, and keeps one that
+// beat recently.
+func TestRunsCloseStale(t *testing.T) {
+	h := newHarness(t)
+	h.mustRun("run", h.write("a.toml", studyA))
+	db, err := sql.Open("sqlite3", h.ledger)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for id, beat := range map[string]string{"20261201T000000Z-aaaaaa": "2026-12-01T00:00:00Z", "20261202T045959Z-bbbbbb": "2026-12-02T04:59:59Z"} {
+		if _, err := db.Exec(`INSERT INTO runs (id, started_at, tool_version, config_path, config_text, config_hash, status, owner, heartbeat_at)
+			SELECT ?, ?, tool_version, config_path, config_text, config_hash, 'running', 'far-away-host:42', ? FROM runs LIMIT 1`, id, beat, beat); err != nil {
+			t.Fatal(err)
+		}
+	}
+	db.Close()
+	_, errs, code := h.run("runs", "--close-stale")
+	if code != 0 || !strings.Contains(errs, "closed run 20261201T000000Z-aaaaaa") || strings.Contains(errs, "bbbbbb") {
+		t.Errorf("runs --close-stale: exit %d, %q; want the day-old run closed and the recent one kept", code, errs)
+	}
+	if _, errs, code := h.run("runs", "--close-stale", "--stale-after", "0s"); code != 2 || !strings.Contains(errs, "--stale-after") {
+		t.Errorf("--stale-after 0s: exit %d, %q", code, errs)
+	}
+}

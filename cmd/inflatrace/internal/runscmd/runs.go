@@ -32,6 +32,10 @@ type Options struct {
 	Globals *app.Globals
 	JSON    bool
 	Kind    string // KindAll, KindStudy, KindShard or KindPredict
+	// CloseStale closes, before listing, the runs left running whose
+	// process is gone or that have not shown a sign of life for StaleAfter.
+	CloseStale bool
+	StaleAfter time.Duration
 }
 
 // NewCmd returns the runs command.
@@ -47,6 +51,8 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 		RunE:  func(c *cobra.Command, _ []string) error { return run(c.Context(), opts) },
 	}
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print the list as JSON")
+	cmd.Flags().BoolVar(&opts.CloseStale, "close-stale", false, "first close as interrupted the runs left running whose process is gone or that have sent no heartbeat for --stale-after")
+	cmd.Flags().DurationVar(&opts.StaleAfter, "stale-after", ledger.StaleAfter, "how long a running run may go without a heartbeat (one every "+ledger.HeartbeatEvery.String()+") before --close-stale takes it for dead")
 	cmd.Flags().StringVar(&opts.Kind, "kind", KindAll, "which runs to list: study (inflatrace run, and runs merge assembled from shards), shard (run --shard), predict (inflatrace predict) or all")
 	return cmd
 }
@@ -97,6 +103,23 @@ func Run(ctx context.Context, o *Options) error {
 	case KindAll, KindStudy, KindShard, KindPredict:
 	default:
 		return app.Usage(fmt.Errorf("--kind %q: want %s, %s, %s or %s", o.Kind, KindStudy, KindShard, KindPredict, KindAll))
+	}
+	if o.CloseStale {
+		if o.StaleAfter <= 0 {
+			return app.Usage(fmt.Errorf("--stale-after %s: want a positive duration", o.StaleAfter))
+		}
+		l, err := o.Env.OpenLedger(o.Globals)
+		if err != nil {
+			return err
+		}
+		closed, err := l.CloseAbandoned(ctx, o.Env.Alive, o.StaleAfter)
+		l.Close()
+		if err != nil {
+			return err
+		}
+		for _, c := range closed {
+			fmt.Fprintf(o.Env.Stderr, "closed run %s as interrupted (its nodes stay and are reused)\n", c)
+		}
 	}
 	l, err := o.Env.OpenLedgerRead(o.Globals)
 	if err != nil {
