@@ -378,6 +378,9 @@ func grid(t map[string]any) ([]float64, []string, error) {
 	if !ok || n < 1 || n > MaxGridPoints {
 		return nil, nil, fmt.Errorf("points: want an integer from 1 to %d", MaxGridPoints)
 	}
+	if math.IsNaN(a) || math.IsInf(a, 0) || math.IsNaN(b) || math.IsInf(b, 0) {
+		return nil, nil, fmt.Errorf("a range needs finite ends, got [%g, %g]", a, b)
+	}
 	if kind == "log" && !(a > 0 && b > 0) {
 		return nil, nil, fmt.Errorf("a log range needs positive ends, got [%g, %g]", a, b)
 	}
@@ -397,6 +400,9 @@ func grid(t map[string]any) ([]float64, []string, error) {
 			xs[i] = a + (b-a)*f
 		default:
 			xs[i] = math.Exp(math.Log(a) + (math.Log(b)-math.Log(a))*f)
+		}
+		if math.IsNaN(xs[i]) || math.IsInf(xs[i], 0) {
+			return nil, nil, fmt.Errorf("the range [%g, %g] overflows double precision (point %d is %g)", a, b, i+1, xs[i])
 		}
 		ts[i] = strconv.FormatFloat(xs[i], 'g', 6, 64)
 	}
@@ -910,6 +916,9 @@ func (c *parser) customModels(path string, t map[string]any) (*modelGroup, error
 		x, _, err := number(o)
 		if err != nil {
 			return nil, c.errAt(path+".origin", "%v", err)
+		}
+		if math.IsNaN(x) || math.IsInf(x, 0) {
+			return nil, c.errAt(path+".origin", "origin = %g, want a finite value of %s", x, base.Field)
 		}
 		base.Origin = x
 	}
