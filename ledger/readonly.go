@@ -3,8 +3,10 @@ package ledger
 import (
 	"context"
 	"database/sql"
+	"encoding/binary"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"net/url"
 	"os"
@@ -81,4 +83,25 @@ func (l *Ledger) checkCurrentSchema(ctx context.Context) error {
 		return fmt.Errorf("its schema is at version %d of %d: open it once with write access to migrate it", latest.Int64, want)
 	}
 	return nil
+}
+
+// LooksLikeLedger reports whether the file at path starts as an
+// inflatrace ledger does: the SQLite 3 header, with inflatrace's
+// application id at offset 68 of it (SQLite file format, "The Database
+// Header"). It reads 100 bytes and opens nothing, for a file received
+// from elsewhere (an archive's) before any SQLite code touches it.
+func LooksLikeLedger(path string) (bool, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return false, err
+	}
+	defer f.Close()
+	var h [100]byte
+	if _, err := io.ReadFull(f, h[:]); err != nil {
+		return false, nil
+	}
+	if string(h[:16]) != "SQLite format 3\x00" {
+		return false, nil
+	}
+	return binary.BigEndian.Uint32(h[68:72]) == applicationID, nil
 }

@@ -175,7 +175,15 @@ func Import(ctx context.Context, o *Options) error {
 		return err
 	}
 	defer l.Close()
-	rep, err := l.Merge(ctx, filepath.Join(tmp, archive.LedgerName))
+	// An archive whose ledger is not one (the manifest can vouch only for
+	// its bytes) is refused before any SQLite code reads it.
+	copyPath := filepath.Join(tmp, archive.LedgerName)
+	if ok, err := ledger.LooksLikeLedger(copyPath); err != nil {
+		return err
+	} else if !ok {
+		return refuse(&archive.TamperError{Archive: o.From, File: archive.LedgerName, Msg: "not an inflatrace ledger (no SQLite header with inflatrace's application id)"})
+	}
+	rep, err := l.Merge(ctx, copyPath)
 	if err != nil {
 		return refuse(err)
 	}
