@@ -223,8 +223,15 @@ func (e *Env) flagBBN(results []study.Result) {
 // without recomputing anything (ledger.RunLineages: a few queries,
 // whatever the run's size).
 func RecordedResults(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) ([]study.Result, error) {
+	return RecordedResultsWith(ctx, l, id, study.AssemblyNeeds)
+}
+
+// RecordedResultsWith is RecordedResults decoding only what need names of
+// each stage's nodes (a figure needs no comparison figures, say); what it
+// leaves out is missing from the results.
+func RecordedResultsWith(ctx context.Context, l *ledger.Ledger, id pipeline.RunID, need func(stage string) (params, outputs bool)) ([]study.Result, error) {
 	var out []study.Result
-	err := l.EachLineage(ctx, id, study.AssemblyNeeds, func(rl ledger.ResultLineage) error {
+	err := l.EachLineage(ctx, id, need, func(rl ledger.ResultLineage) error {
 		so := make([]study.StageOutputs, 0, len(rl.Nodes))
 		firstErr := ""
 		for _, n := range rl.Nodes {

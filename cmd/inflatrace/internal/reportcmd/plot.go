@@ -109,7 +109,18 @@ func Plot(ctx context.Context, o *PlotOptions) error {
 		return err
 	}
 	defer l.Close()
-	run, results, err := app.LoadRun(ctx, l, o.Run)
+	id, err := l.ResolveRun(ctx, o.Run)
+	if err != nil {
+		return err
+	}
+	run, err := l.Run(ctx, id)
+	if err != nil {
+		return err
+	}
+	// The figures draw predictions and bands; the comparison nodes'
+	// figures are not decoded (the constraint sets come from their
+	// parameters, read once per set).
+	results, err := app.RecordedResultsWith(ctx, l, id, figureNeeds)
 	if err != nil {
 		return err
 	}
@@ -128,6 +139,16 @@ func Plot(ctx context.Context, o *PlotOptions) error {
 		fmt.Fprintf(o.Env.Stderr, "note: %s\n", n)
 	}
 	return nil
+}
+
+// figureNeeds is what the figures read of a result's lineage: the outputs
+// of the model, slow-roll and reheat stages.
+func figureNeeds(stage string) (params, outputs bool) {
+	switch stage {
+	case nodes.ModelStage, nodes.SlowRollStage, nodes.ReheatStage:
+		return false, true
+	}
+	return false, false
 }
 
 // figureOptions checks the flags.
