@@ -81,32 +81,15 @@ func NsR(spec NsRSpec) (*Figure, error) {
 		}
 	}
 	p.Add(outlines...)
-	var levels []float64
-	for _, fl := range spec.Forecasts {
-		y, entry, line, err := forecastLevel(fl)
-		if err != nil {
-			return nil, err
-		}
-		p.Add(&hline{y: y, line: line})
-		f.Key = append(f.Key, entry)
-		levels = append(levels, y)
+	levels, err := f.addForecasts(spec.Forecasts)
+	if err != nil {
+		return nil, err
 	}
 	var all [][]xy
 	for _, cv := range spec.Curves {
-		if cv.Markers != nil && len(cv.Markers) != len(cv.Points) {
-			return nil, fmt.Errorf("figures: curve %q: %d markers for %d points", cv.Label, len(cv.Markers), len(cv.Points))
-		}
 		pts := fromPoints(cv.Points)
-		if err := finite(cv.Label, pts); err != nil {
+		if err := f.addCurve(cv.Label, pts, cv.Markers, cv.Marker, cv.Join, cv.Style, cv.Color); err != nil {
 			return nil, err
-		}
-		line := curveStyle(cv.Style)
-		if cv.Color != nil {
-			line.Color = cv.Color
-		}
-		p.Add(newCurve(pts, cv.Markers, cv.Marker, cv.Join, line))
-		if cv.Label != "" {
-			f.Key = append(f.Key, KeyEntry{cv.Label, Swatch{Kind: SwatchLine, Line: line}})
 		}
 		for _, q := range pts {
 			points.add(q.X, q.Y)
@@ -149,6 +132,43 @@ func NsR(spec NsRSpec) (*Figure, error) {
 	}
 	f.Clipped = countOutside(all, p.X.Min, p.X.Max, p.Y.Min, p.Y.Max, spec.RScale == Log)
 	return f, nil
+}
+
+// addCurve checks a curve's points and markers, draws it in its style
+// (the Style-th, its colour replaced by col when set) and names it in the
+// key when it has a label.
+func (f *Figure) addCurve(label string, pts []xy, markers []Marker, m Marker, join bool, style int, col color.Color) error {
+	if markers != nil && len(markers) != len(pts) {
+		return fmt.Errorf("figures: curve %q: %d markers for %d points", label, len(markers), len(pts))
+	}
+	if err := finite(label, pts); err != nil {
+		return err
+	}
+	line := curveStyle(style)
+	if col != nil {
+		line.Color = col
+	}
+	f.Plot.Add(newCurve(pts, markers, m, join, line))
+	if label != "" {
+		f.Key = append(f.Key, KeyEntry{label, Swatch{Kind: SwatchLine, Line: line}})
+	}
+	return nil
+}
+
+// addForecasts draws each forecast's detection level, names it in the
+// key, and returns the levels (what the r axis must reach).
+func (f *Figure) addForecasts(fls []ForecastLine) ([]float64, error) {
+	var levels []float64
+	for _, fl := range fls {
+		y, entry, line, err := forecastLevel(fl)
+		if err != nil {
+			return nil, err
+		}
+		f.Plot.Add(&hline{y: y, line: line})
+		f.Key = append(f.Key, entry)
+		levels = append(levels, y)
+	}
+	return levels, nil
 }
 
 // logSpan is the span of a log axis holding every point with y > 0 and

@@ -35,23 +35,12 @@ func RAlpha(spec RAlphaSpec) (*Figure, error) {
 		if len(cv.X) != len(cv.R) {
 			return nil, fmt.Errorf("figures: curve %q: %d x values for %d r values", cv.Label, len(cv.X), len(cv.R))
 		}
-		if cv.Markers != nil && len(cv.Markers) != len(cv.X) {
-			return nil, fmt.Errorf("figures: curve %q: %d markers for %d points", cv.Label, len(cv.Markers), len(cv.X))
-		}
 		pts := make([]xy, len(cv.X))
 		for k := range cv.X {
 			pts[k] = xy{cv.X[k], cv.R[k]}
 		}
-		if err := finite(cv.Label, pts); err != nil {
+		if err := f.addCurve(cv.Label, pts, cv.Markers, cv.Marker, cv.Join, cv.Style, cv.Color); err != nil {
 			return nil, err
-		}
-		line := curveStyle(cv.Style)
-		if cv.Color != nil {
-			line.Color = cv.Color
-		}
-		p.Add(newCurve(pts, cv.Markers, cv.Marker, cv.Join, line))
-		if cv.Label != "" {
-			f.Key = append(f.Key, KeyEntry{cv.Label, Swatch{Kind: SwatchLine, Line: line}})
 		}
 		for _, q := range pts {
 			if spec.XScale == Log && q.X <= 0 {
@@ -61,15 +50,9 @@ func RAlpha(spec RAlphaSpec) (*Figure, error) {
 		}
 		all = append(all, pts)
 	}
-	var levels []float64
-	for _, fl := range spec.Forecasts {
-		y, entry, line, err := forecastLevel(fl)
-		if err != nil {
-			return nil, err
-		}
-		p.Add(&hline{y: y, line: line})
-		f.Key = append(f.Key, entry)
-		levels = append(levels, y)
+	levels, err := f.addForecasts(spec.Forecasts)
+	if err != nil {
+		return nil, err
 	}
 	f.Key = append(capKey(f.Key), markerKey(spec.Markers)...)
 	switch {
