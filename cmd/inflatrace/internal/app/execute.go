@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"github.com/inflatrace/inflatrace/ledger"
+	"strings"
 	"time"
 
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -246,6 +247,17 @@ func RecordedResultsWith(ctx context.Context, l *ledger.Ledger, id pipeline.RunI
 		return nil
 	})
 	return out, err
+}
+
+// RecordedFile is the study file a run's recorded configuration path
+// names, without the suffix a run may add to it (" [shard 1/4]",
+// " [from RUN]", " [assembled from 4 shards]"): its directory resolves the
+// configuration's relative constraint files.
+func RecordedFile(configPath string) string {
+	if i := strings.Index(configPath, " ["); i >= 0 {
+		return configPath[:i]
+	}
+	return configPath
 }
 
 // LoadRun resolves a run reference (id, prefix, tag or "latest") and reads

@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -77,11 +78,11 @@ whole report.`,
 				}
 				opts.Format = tables.JSON
 			}
-			if !contains(Formats, opts.Format) {
+			if !slices.Contains(Formats, opts.Format) {
 				return app.Usage(fmt.Errorf("--format %q: want one of %s", opts.Format, strings.Join(Formats, ", ")))
 			}
 			for _, q := range opts.Quantities {
-				if !contains(revision.Quantities, q) {
+				if !slices.Contains(revision.Quantities, q) {
 					return app.Usage(fmt.Errorf("--quantities: unknown quantity %q (want %s)", q, strings.Join(revision.Quantities, ", ")))
 				}
 			}
@@ -97,15 +98,6 @@ whole report.`,
 	cmd.Flags().StringSliceVar(&opts.Quantities, "quantities", nil, "write only these quantities (comma-separated: "+strings.Join(revision.Quantities, ", ")+")")
 	cmd.Flags().IntVar(&opts.Digits, "digits", tables.DefaultDigits, "significant digits of the table formats")
 	return cmd
-}
-
-func contains(xs []string, x string) bool {
-	for _, y := range xs {
-		if x == y {
-			return true
-		}
-	}
-	return false
 }
 
 func load(ctx context.Context, l *ledger.Ledger, ref string) (revision.Run, string, error) {
@@ -139,7 +131,7 @@ func Run(ctx context.Context, o *Options) error {
 	if err != nil {
 		return err
 	}
-	eval := revision.Evaluator(&revision.ReadThrough{L: l}, filepath.Dir(pathA), app.ToolIdentity, o.Env.CPUs, o.Env.Now)
+	eval := revision.Evaluator(&revision.ReadThrough{L: l}, filepath.Dir(app.RecordedFile(pathA)), app.ToolIdentity, o.Env.CPUs, o.Env.Now)
 	rep, err := revision.Compare(ctx, a, b, eval)
 	if err != nil {
 		return err

@@ -27,7 +27,7 @@ type Figure struct {
 
 // KeyEntry is one line of a figure's key: a swatch and its text.
 type KeyEntry struct {
-	Label  string // typeset markup (see Typeset); user text through plainText
+	Label  string // typeset markup (see Typeset); user text through PlainText
 	Swatch Swatch
 }
 

@@ -57,7 +57,7 @@ func NsR(spec NsRSpec) (*Figure, error) {
 		if label == "" {
 			label = layer.Set.Label()
 		}
-		label = plainText(label)
+		label = PlainText(label)
 		f.Key = append(f.Key,
 			KeyEntry{label + " 68%", Swatch{Kind: SwatchFilled, Line: line68, Fill: fill}},
 			KeyEntry{label + " 95%", Swatch{Kind: SwatchOutline, Line: line95}})
@@ -276,7 +276,7 @@ func forecastLevel(fl ForecastLine) (float64, KeyEntry, draw.LineStyle, error) {
 // 3σ(r) = 0.003".
 func forecastLabel(name string, k, y float64) string {
 	ks := strconv.FormatFloat(k, 'g', -1, 64)
-	return plainText(name) + ": detects $r$ at " + ks + `$\sigma$ above $r$ = ` + ks + `$\sigma(r)$ = ` + strconv.FormatFloat(y, 'g', 3, 64)
+	return PlainText(name) + ": detects $r$ at " + ks + `$\sigma$ above $r$ = ` + ks + `$\sigma(r)$ = ` + strconv.FormatFloat(y, 'g', 3, 64)
 }
 
 // newPlot returns a plot with the title and typeset axis labels.

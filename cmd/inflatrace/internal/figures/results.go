@@ -130,7 +130,7 @@ func historyMarkers(groups []curveGroup) (map[string]Marker, []MarkerLabel) {
 // written.
 func historyText(h string) string {
 	if v, ok := strings.CutPrefix(h, "N*="); ok {
-		return "$N_*$ = " + plainText(v)
+		return "$N_*$ = " + PlainText(v)
 	}
 	if h == "instantaneous" {
 		return "instantaneous reheating"
@@ -145,7 +145,7 @@ func historyText(h string) string {
 			b.WriteString(" ")
 		}
 		if !ok || !known {
-			b.WriteString(plainText(f))
+			b.WriteString(PlainText(f))
 			continue
 		}
 		b.WriteString(sym + " = " + typesetNumber(value))
@@ -164,17 +164,17 @@ var historySymbols = map[string]string{"w": "$w$", "T_reh": "$T_{reh}$", "N_reh"
 func typesetNumber(v string) string {
 	mant, exp, ok := strings.Cut(v, "e")
 	if !ok {
-		return plainText(v)
+		return PlainText(v)
 	}
 	e, err := strconv.Atoi(exp)
 	if err != nil {
-		return plainText(v)
+		return PlainText(v)
 	}
 	pow := "$10^{" + strconv.Itoa(e) + "}$"
 	if mant == "1" {
 		return pow
 	}
-	return plainText(mant) + "$\\times$" + pow
+	return PlainText(mant) + "$\\times$" + pow
 }
 
 // StripeFromResults builds the stripe of a model scanned over param from
@@ -276,9 +276,9 @@ func group(rows []study.Result, along string) ([]curveGroup, error) {
 			}
 			g = &curveGroup{style: style}
 			if !named {
-				g.label = plainText(name)
+				g.label = PlainText(name)
 				if len(methods) > 1 {
-					g.label += " [" + plainText(r.Method) + "]"
+					g.label += " [" + PlainText(r.Method) + "]"
 				}
 			}
 			byKey[key] = g

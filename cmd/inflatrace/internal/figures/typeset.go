@@ -301,8 +301,9 @@ func (h Typeset) Draw(c vg.Canvas, txt string, sty text.Style, pt vg.Point) {
 	}
 }
 
-// Plain text for what the user wrote: a model label is written as given.
-func plainText(s string) string {
+// PlainText makes what the user wrote (a title, a model label) safe for
+// the typeset labels: it is written as given.
+func PlainText(s string) string {
 	r := strings.NewReplacer(`\`, `\\`, `$`, `\$`)
 	return r.Replace(s)
 }

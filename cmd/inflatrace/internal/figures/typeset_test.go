@@ -26,7 +26,7 @@ func TestParseMarkup(t *testing.T) {
 		{`$V_*^{1/4}$`, []span{{"V", true, 0}, {"*", false, -1}, {"1/4", false, 1}}},
 		{`$\Delta\chi^2$`, []span{{"Δχ", false, 0}, {"2", false, 1}}},
 		{`phi^2 (a_b)`, []span{{"phi^2 (a_b)", false, 0}}},
-		{plainText(`cost $5 \o/`), []span{{`cost $5 \o/`, false, 0}}},
+		{PlainText(`cost $5 \o/`), []span{{`cost $5 \o/`, false, 0}}},
 		{`$\unknown$`, []span{{`\unknown`, false, 0}}},
 	}
 	for _, tc := range tests {

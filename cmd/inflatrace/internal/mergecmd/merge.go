@@ -196,14 +196,8 @@ func assemble(ctx context.Context, o *Options, set ShardSet) error {
 	if err != nil {
 		return err
 	}
-	// The recorded path may carry a suffix (" [from …]"); its directory
-	// still resolves relative constraint files.
-	dir := set.Base
-	if i := strings.Index(dir, " ["); i >= 0 {
-		dir = dir[:i]
-	}
 	file := fmt.Sprintf("%s [assembled from %d shards]", set.Base, len(set.Parts))
-	s, err := study.Parse(file, []byte(first.ConfigText), filepath.Dir(dir))
+	s, err := study.Parse(file, []byte(first.ConfigText), filepath.Dir(app.RecordedFile(set.Base)))
 	if err != nil {
 		return fmt.Errorf("assemble %s: the shards' configuration: %w", set.Base, err)
 	}

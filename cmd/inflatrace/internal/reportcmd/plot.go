@@ -206,13 +206,11 @@ func title(run ledger.RunDetail) string {
 		Title string `toml:"title"`
 	}
 	if err := toml.Unmarshal([]byte(run.ConfigText), &t); err == nil && t.Title != "" {
-		return plain(t.Title)
+		return figures.PlainText(t.Title)
 	}
 	return "inflatrace run " + string(run.ID)
 }
 
-// plain makes user text safe for the typeset labels.
-func plain(s string) string { return strings.NewReplacer(`\`, `\\`, `$`, `\$`).Replace(s) }
 
 // constraints returns the constraint sets and forecasts the run's
 // comparisons used, in the order the run met them.
@@ -270,7 +268,7 @@ func stripes(results []study.Result) []figures.Stripe {
 	var out []figures.Stripe
 	for i, k := range order {
 		g := groups[k]
-		s := figures.Stripe{Label: plain(k.model + " " + k.history), Style: i}
+		s := figures.Stripe{Label: figures.PlainText(k.model + " " + k.history), Style: i}
 		for _, r := range g {
 			lo := compare.Point{Ns: r.Band.NsAtNStar[0], R: r.Band.RAtNStar[0]}
 			hi := compare.Point{Ns: r.Band.NsAtNStar[1], R: r.Band.RAtNStar[1]}
@@ -325,7 +323,7 @@ func paramAxis(param string) (float64, string) {
 	case greekParams[param]:
 		return 1, `$\` + param + `$`
 	}
-	return 1, plain(param)
+	return 1, figures.PlainText(param)
 }
 
 // logSpaced reports whether a scan's values are log-spaced: all positive,

@@ -82,10 +82,7 @@ func load(ctx context.Context, o *Options) (*study.Study, pipeline.RunID, error)
 		text, from = []byte(run.ConfigText), id
 		// The recorded path may carry a suffix (" [shard 1/4]", " [from …]");
 		// its directory still resolves relative constraint files.
-		orig := run.ConfigPath
-		if i := strings.Index(orig, " ["); i >= 0 {
-			orig = orig[:i]
-		}
+		orig := app.RecordedFile(run.ConfigPath)
 		dir = filepath.Dir(orig)
 		file = orig + " [from " + string(id) + "]"
 	} else {
