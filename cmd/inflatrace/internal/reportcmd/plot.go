@@ -211,7 +211,6 @@ func title(run ledger.RunDetail) string {
 	return "inflatrace run " + string(run.ID)
 }
 
-
 // constraints returns the constraint sets and forecasts the run's
 // comparisons used, in the order the run met them.
 func constraints(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) ([]figures.ConstraintLayer, []compare.Forecast, error) {
