@@ -531,10 +531,18 @@ func archiveFigures(ctx context.Context, led *ledger.Ledger, dir string, run led
 	if err := os.MkdirAll(figDir, 0o755); err != nil {
 		return err
 	}
+	// Drawn once, written in each format.
+	built, err := BuildFigures(ctx, led, run, results, FigureOptions{})
+	if err != nil {
+		os.RemoveAll(figDir)
+		return nil
+	}
 	for _, format := range figures.Formats {
-		if _, err := Figures(ctx, led, run, results, FigureOptions{Dir: figDir, Format: format}); err != nil {
-			os.RemoveAll(figDir)
-			return nil
+		for _, b := range built {
+			if err := figures.Save(b.Figure, filepath.Join(figDir, b.Name+"."+format)); err != nil {
+				os.RemoveAll(figDir)
+				return nil
+			}
 		}
 	}
 	return nil
