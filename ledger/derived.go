@@ -13,28 +13,6 @@ const (
 	linkPart        = "part"
 )
 
-// SetDerivedFrom records that run was derived from the recorded run from
-// (its configuration is from's, edited). Both runs must exist; an unknown
-// one wraps ErrNotFound. A new run records it with its row instead
-// (pipeline.RunInfo.DerivedFrom).
-func (l *Ledger) SetDerivedFrom(ctx context.Context, run, from pipeline.RunID) error {
-	err := l.inTx(ctx, func(tx *qtx) error {
-		for _, id := range []pipeline.RunID{run, from} {
-			if _, err := readRun(ctx, tx, id); err != nil {
-				return err
-			}
-		}
-		if _, err := tx.ExecContext(ctx, "DELETE FROM run_links WHERE run_id = ? AND kind = ?", string(run), linkDerivedFrom); err != nil {
-			return err
-		}
-		return insertLinks(ctx, tx, run, from, nil)
-	})
-	if err != nil {
-		return fmt.Errorf("ledger: record run %s as derived from %s: %w", run, from, err)
-	}
-	return nil
-}
-
 // DerivedFrom returns the run that run was derived from, or "" for a run
 // of a configuration given directly. An unknown run wraps ErrNotFound.
 // The run named need not be in this ledger (an imported run names the

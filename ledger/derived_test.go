@@ -11,16 +11,24 @@ import (
 	"github.com/inflatrace/inflatrace/pipeline"
 )
 
-// derived_from round-trips; a run given directly has none; unknown runs on
-// either side are refused with ErrNotFound and change nothing.
+// beginDerived begins run id derived from the run from.
+func beginDerived(t *testing.T, l *Ledger, id string, from pipeline.RunID, started time.Time) pipeline.RunID {
+	t.Helper()
+	info := runInfo(id, started)
+	info.DerivedFrom = from
+	if err := l.BeginRun(context.Background(), info); err != nil {
+		t.Fatal(err)
+	}
+	return info.ID
+}
+
+// derived_from round-trips; a run given directly has none; a run derived
+// from an unknown run is refused with ErrNotFound and not written.
 func TestDerivedFrom(t *testing.T) {
 	l, _ := openTest(t)
 	ctx := context.Background()
 	a := beginRun(t, l, "20261202T050000Z-aaaaaa", testClock)
-	b := beginRun(t, l, "20261202T050001Z-bbbbbb", testClock.Add(time.Second))
-	if err := l.SetDerivedFrom(ctx, b, a); err != nil {
-		t.Fatal(err)
-	}
+	b := beginDerived(t, l, "20261202T050001Z-bbbbbb", a, testClock.Add(time.Second))
 	tests := []struct {
 		run, want string
 	}{
@@ -33,17 +41,13 @@ func TestDerivedFrom(t *testing.T) {
 			t.Errorf("DerivedFrom(%s) = %q, %v; want %q", tc.run, got, err, tc.want)
 		}
 	}
-	bad := []struct{ run, from string }{
-		{string(a), "20261202T050002Z-nosuch"},
-		{"20261202T050002Z-nosuch", string(a)},
+	info := runInfo("20261202T050003Z-cccccc", testClock)
+	info.DerivedFrom = "20261202T050002Z-nosuch"
+	if err := l.BeginRun(ctx, info); !errors.Is(err, ErrNotFound) {
+		t.Errorf("BeginRun derived from an unknown run: %v, want ErrNotFound", err)
 	}
-	for _, tc := range bad {
-		if err := l.SetDerivedFrom(ctx, pipeline.RunID(tc.run), pipeline.RunID(tc.from)); !errors.Is(err, ErrNotFound) {
-			t.Errorf("SetDerivedFrom(%s, %s): %v, want ErrNotFound", tc.run, tc.from, err)
-		}
-	}
-	if got, _ := l.DerivedFrom(ctx, a); got != "" {
-		t.Errorf("a refused SetDerivedFrom changed run %s: derived from %q", a, got)
+	if _, err := l.DerivedFrom(ctx, info.ID); !errors.Is(err, ErrNotFound) {
+		t.Errorf("the refused run was written: %v", err)
 	}
 	if _, err := l.DerivedFrom(ctx, "20261202T050002Z-nosuch"); !errors.Is(err, ErrNotFound) {
 		t.Errorf("DerivedFrom of an unknown run: %v, want ErrNotFound", err)
@@ -56,14 +60,8 @@ func TestAllDerivedFrom(t *testing.T) {
 	l, _ := openTest(t)
 	ctx := context.Background()
 	a := beginRun(t, l, "20261202T050000Z-aaaaaa", testClock)
-	b := beginRun(t, l, "20261202T050001Z-bbbbbb", testClock.Add(time.Second))
-	c := beginRun(t, l, "20261202T050002Z-cccccc", testClock.Add(2*time.Second))
-	if err := l.SetDerivedFrom(ctx, b, a); err != nil {
-		t.Fatal(err)
-	}
-	if err := l.SetDerivedFrom(ctx, c, b); err != nil {
-		t.Fatal(err)
-	}
+	b := beginDerived(t, l, "20261202T050001Z-bbbbbb", a, testClock.Add(time.Second))
+	c := beginDerived(t, l, "20261202T050002Z-cccccc", b, testClock.Add(2*time.Second))
 	all, err := l.AllDerivedFrom(ctx)
 	if err != nil {
 		t.Fatal(err)
