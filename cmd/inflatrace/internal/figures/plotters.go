@@ -63,24 +63,6 @@ func (r *region) Plot(c draw.Canvas, plt *plot.Plot) {
 	}
 }
 
-// Thumbnail implements plot.Thumbnailer: a filled box with its outline,
-// or for an unfilled region (a band along a path) a line in its style.
-func (r *region) Thumbnail(c *draw.Canvas) {
-	if r.fill == nil {
-		y := c.Center().Y
-		c.StrokeLine2(r.line, c.Min.X, y, c.Max.X, y)
-		return
-	}
-	pts := []vg.Point{
-		{X: c.Min.X, Y: c.Min.Y}, {X: c.Min.X, Y: c.Max.Y},
-		{X: c.Max.X, Y: c.Max.Y}, {X: c.Max.X, Y: c.Min.Y},
-	}
-	c.FillPolygon(r.fill, pts)
-	if r.line.Width > 0 {
-		c.StrokeLines(r.line, append(pts, pts[0]))
-	}
-}
-
 // curve draws points with glyphs, optionally joined. A curve of many
 // points (a scan) draws its glyphs at about maxGlyphs of them, evenly
 // spread and always at both ends, so that the shapes stay readable.
