@@ -20,7 +20,8 @@ type Problem struct {
 // Audit re-derives every stored hash — each node's key from its
 // description, the description from its stage, version, parameters and
 // inputs, each output hash from the stored outputs, each run's
-// configuration hash from its text — and reports the rows edited after they
+// configuration hash from its text, each work's checksum and digest
+// (WorkProblems) — and reports the rows edited after they
 // were written. It changes nothing.
 func (l *Ledger) Audit(ctx context.Context) ([]Problem, error) {
 	var out []Problem
@@ -70,5 +71,9 @@ func (l *Ledger) Audit(ctx context.Context) ([]Problem, error) {
 	if err != nil {
 		return nil, fmt.Errorf("ledger: audit: %w", err)
 	}
-	return out, nil
+	works, err := l.WorkProblems(ctx)
+	if err != nil {
+		return nil, err
+	}
+	return append(out, works...), nil
 }

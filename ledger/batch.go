@@ -36,6 +36,12 @@ func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pi
 // LookupMany found absent moments ago are taken as absent without reading
 // them again; used reports whether any was.
 func (l *Ledger) recordBatch(ctx context.Context, run pipeline.RunID, batch []pipeline.Recorded, texts []rowText, missing bool) (used bool, err error) {
+	return l.recordBatchWith(ctx, run, batch, texts, missing, nil)
+}
+
+// recordBatchWith is recordBatch calling after, when not nil, in the same
+// transaction once the batch's rows are inserted.
+func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch []pipeline.Recorded, texts []rowText, missing bool, after func(*qtx, *batchState) error) (used bool, err error) {
 	err = l.inTx(ctx, func(tx *qtx) error {
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
@@ -54,6 +60,7 @@ func (l *Ledger) recordBatch(ctx context.Context, run pipeline.RunID, batch []pi
 			return err
 		}
 		for i, b := range batch {
+			bs.noLink = b.InWork
 			if err := l.recordNodeIn(ctx, tx, run, b.Node, texts[i], b.Action, bs); err != nil {
 				return fmt.Errorf("node %s (%s): %w", b.Node.Key, b.Action, err)
 			}
@@ -67,11 +74,14 @@ func (l *Ledger) recordBatch(ctx context.Context, run pipeline.RunID, batch []pi
 			{"INSERT INTO node_inputs (node, position, input) VALUES ", "", 3, bs.inputRows},
 			// A run executed in chunks may reuse one node in several: it is
 			// linked once.
-			{"INSERT INTO run_nodes (run_id, ordinal, node, action, duration_ns, error) VALUES ", " ON CONFLICT (run_id, node) DO NOTHING", 6, bs.linkRows},
+			{"INSERT INTO run_node_links (run_id, ordinal, node, action, duration_ns, error) VALUES ", " ON CONFLICT (run_id, node) DO NOTHING", 6, bs.linkRows},
 		} {
 			if err := insertRows(ctx, tx, t.head, t.tail, t.cols, t.rows); err != nil {
 				return err
 			}
+		}
+		if after != nil {
+			return after(tx, bs)
 		}
 		return nil
 	})

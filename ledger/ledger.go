@@ -44,6 +44,9 @@ type Ledger struct {
 	// reading every key).
 	seen    keyMemo[storedNode]
 	missing keyMemo[struct{}]
+	// ids holds the row ids of nodes recent batches wrote (committed), for
+	// the works that name them a moment later.
+	ids keyMemo[int64]
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)

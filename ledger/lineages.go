@@ -56,17 +56,21 @@ func (l *Ledger) EachLineage(ctx context.Context, id pipeline.RunID, need func(s
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
-		rows, err := tx.QueryContext(ctx, `WITH RECURSIVE up(ord, id, depth) AS (
-				SELECT rr.ordinal, rr.node, 0 FROM run_results rr WHERE rr.run_id = ?1
+		// The run's results are read once (run_results is a view over
+		// per-result rows and works, with no index to join on).
+		rows, err := tx.QueryContext(ctx, `WITH RECURSIVE res(ord, label, node) AS MATERIALIZED (
+				SELECT rr.ordinal, rr.label, rr.node FROM run_results rr WHERE rr.run_id = ?1
+			), up(ord, id, depth) AS (
+				SELECT res.ord, res.node, 0 FROM res
 				UNION
 				SELECT up.ord, ni.input, up.depth + 1 FROM node_inputs ni JOIN up ON ni.node = up.id
 				WHERE up.depth < ?2
 			)
-			SELECT u.ord, u.d, rr.label, t.key, n.key, n.stage, n.params, n.outputs, n.output_hash, n.status, n.error
+			SELECT u.ord, u.d, res.label, t.key, n.key, n.stage, n.params, n.outputs, n.output_hash, n.status, n.error
 			FROM (SELECT ord, id, max(depth) AS d FROM up GROUP BY ord, id) u
 			JOIN nodes n ON n.id = u.id
-			JOIN run_results rr ON rr.run_id = ?1 AND rr.ordinal = u.ord
-			JOIN nodes t ON t.id = rr.node
+			JOIN res ON res.ord = u.ord
+			JOIN nodes t ON t.id = res.node
 			ORDER BY u.ord`, string(id), maxLineageDepth)
 		if err != nil {
 			return err

@@ -23,10 +23,12 @@ func (l *Ledger) Runs(ctx context.Context) ([]RunSummary, error) {
 	out := []RunSummary{}
 	err := l.inTx(ctx, func(tx *qtx) error {
 		rows, err := tx.QueryContext(ctx, `SELECT r.id, r.started_at, r.finished_at, r.status, r.tool_version, r.config_path, r.config_hash,
-			(SELECT count(*) FROM run_nodes rn WHERE rn.run_id = r.id AND rn.action = 'computed'),
-			(SELECT count(*) FROM run_nodes rn WHERE rn.run_id = r.id AND rn.action = 'reused'),
-			(SELECT count(*) FROM run_nodes rn WHERE rn.run_id = r.id AND rn.action = 'failed'),
-			(SELECT count(*) FROM run_results rr WHERE rr.run_id = r.id)
+			(SELECT count(*) FROM run_node_links rn WHERE rn.run_id = r.id AND rn.action = 'computed') + `+workCount("'c'", "w.actions")+`,
+			(SELECT count(*) FROM run_node_links rn WHERE rn.run_id = r.id AND rn.action = 'reused') + `+workCount("'r'", "w.actions")+` +
+				(SELECT coalesce(sum(length(w.actions)), 0) FROM run_works rw JOIN works w ON w.id = rw.work WHERE rw.run_id = r.id AND rw.action = 'reused'),
+			(SELECT count(*) FROM run_node_links rn WHERE rn.run_id = r.id AND rn.action = 'failed') + `+workCount("'f'", "w.actions")+`,
+			(SELECT count(*) FROM run_result_rows rr WHERE rr.run_id = r.id) +
+				(SELECT coalesce(sum(json_array_length(w.results)), 0) FROM run_works rw JOIN works w ON w.id = rw.work WHERE rw.run_id = r.id)
 			FROM runs r `+newestFirst)
 		if err != nil {
 			return err
@@ -191,13 +193,19 @@ func readRun(ctx context.Context, tx *qtx, id pipeline.RunID) (RunDetail, error)
 // RunNodes returns the nodes a run touched, in the order it touched them,
 // each with what the run did. An unknown run wraps ErrNotFound.
 func (l *Ledger) RunNodes(ctx context.Context, id pipeline.RunID) ([]RunNode, error) {
+	return l.runNodesIn(ctx, id, "run_nodes")
+}
+
+// runNodesIn is RunNodes reading table: the run_nodes view (every layout)
+// or run_node_links (the per-node links alone).
+func (l *Ledger) runNodesIn(ctx context.Context, id pipeline.RunID, table string) ([]RunNode, error) {
 	out := []RunNode{}
 	err := l.inTx(ctx, func(tx *qtx) error {
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
 		rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+`, rn.ordinal, rn.action, rn.duration_ns, rn.error
-			FROM run_nodes rn JOIN nodes n ON n.id = rn.node WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
+			FROM `+table+` rn JOIN nodes n ON n.id = rn.node WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
 		if err != nil {
 			return err
 		}
@@ -238,12 +246,18 @@ func (l *Ledger) RunNodes(ctx context.Context, id pipeline.RunID) ([]RunNode, er
 // RunResults returns a run's labelled results in ordinal order. An unknown
 // run wraps ErrNotFound.
 func (l *Ledger) RunResults(ctx context.Context, id pipeline.RunID) ([]pipeline.ResultRef, error) {
+	return l.runResultsIn(ctx, id, "run_results")
+}
+
+// runResultsIn is RunResults reading table: the run_results view or
+// run_result_rows.
+func (l *Ledger) runResultsIn(ctx context.Context, id pipeline.RunID, table string) ([]pipeline.ResultRef, error) {
 	out := []pipeline.ResultRef{}
 	err := l.inTx(ctx, func(tx *qtx) error {
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
-		rows, err := tx.QueryContext(ctx, "SELECT rr.ordinal, rr.label, n.key FROM run_results rr JOIN nodes n ON n.id = rr.node WHERE rr.run_id = ? ORDER BY rr.ordinal", string(id))
+		rows, err := tx.QueryContext(ctx, "SELECT rr.ordinal, rr.label, n.key FROM "+table+" rr JOIN nodes n ON n.id = rr.node WHERE rr.run_id = ? ORDER BY rr.ordinal", string(id))
 		if err != nil {
 			return err
 		}
@@ -468,4 +482,10 @@ func (l *Ledger) RunStageParams(ctx context.Context, id pipeline.RunID, stage st
 		return nil, fmt.Errorf("ledger: %s nodes of run %s: %w", stage, id, err)
 	}
 	return out, nil
+}
+
+// workCount is the SQL for how many nodes of a run's computed works have
+// the action letter (a quoted SQL literal) in their actions.
+func workCount(letter, col string) string {
+	return "(SELECT coalesce(sum(length(" + col + ") - length(replace(" + col + ", " + letter + ", ''))), 0) FROM run_works rw JOIN works w ON w.id = rw.work WHERE rw.run_id = r.id AND rw.action = 'computed')"
 }

@@ -178,6 +178,7 @@ type batchState struct {
 	nextID  int64
 	now     string // the batch's recorded_at
 	known   map[pipeline.KeyID]storedNode
+	noLink  bool                    // the node being recorded belongs to a work: no link of its own
 	absent  map[pipeline.KeyID]bool // keys known not to be stored
 	// Rows to insert at the end of the batch, many per statement.
 	nodeRows, inputRows, linkRows [][]any
@@ -247,6 +248,9 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		if action == pipeline.Computed && exists && old.status != pipeline.NodeOK {
 			old.status, old.outputHash = pipeline.NodeOK, rec.OutputHash
 			bs.known[rec.Key] = old
+		}
+		if bs.noLink {
+			return nil
 		}
 		// A second link of the node in this run fails on the unique
 		// constraint when the rows are inserted.
@@ -422,7 +426,7 @@ func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecor
 // touched.
 func insertRunNode(ctx context.Context, tx *qtx, run pipeline.RunID, key pipeline.KeyID, id int64, action pipeline.Action, d time.Duration, errText string) error {
 	var prev string
-	err := tx.QueryRowContext(ctx, "SELECT action FROM run_nodes WHERE run_id = ? AND node = ?", string(run), id).Scan(&prev)
+	err := tx.QueryRowContext(ctx, "SELECT action FROM run_node_links WHERE run_id = ? AND node = ?", string(run), id).Scan(&prev)
 	if err == nil {
 		return fmt.Errorf("run %s already recorded node %s (as %s); a run touches each key once", run, key, prev)
 	}
@@ -433,7 +437,7 @@ func insertRunNode(ctx context.Context, tx *qtx, run pipeline.RunID, key pipelin
 	if err != nil {
 		return err
 	}
-	if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, ordinal, node, action, duration_ns, error)
+	if _, err := tx.ExecContext(ctx, `INSERT INTO run_node_links (run_id, ordinal, node, action, duration_ns, error)
 		VALUES (?, ?, ?, ?, ?, ?)`, string(run), ordinal, id, string(action), int64(d), errText); err != nil {
 		return fmt.Errorf("insert run node: %w", err)
 	}
@@ -445,7 +449,7 @@ func insertRunNode(ctx context.Context, tx *qtx, run pipeline.RunID, key pipelin
 // entry; wrapped in an expression it would scan the run.
 func nextOrdinal(ctx context.Context, tx *qtx, run pipeline.RunID) (int, error) {
 	var last sql.NullInt64
-	if err := tx.QueryRowContext(ctx, "SELECT max(ordinal) FROM run_nodes WHERE run_id = ?", string(run)).Scan(&last); err != nil {
+	if err := tx.QueryRowContext(ctx, "SELECT max(ordinal) FROM run_node_links WHERE run_id = ?", string(run)).Scan(&last); err != nil {
 		return 0, fmt.Errorf("next ordinal: %w", err)
 	}
 	if last.Valid {
@@ -475,7 +479,7 @@ func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results 
 			}
 			// CROSS JOIN keeps the key index first: given a long IN list,
 			// the planner would otherwise walk all of the run's links.
-			rows, err := tx.QueryContext(ctx, `SELECT n.key, n.id, n.status FROM nodes n CROSS JOIN run_nodes rn ON rn.node = n.id AND rn.run_id = ?
+			rows, err := tx.QueryContext(ctx, `SELECT n.key, n.id, n.status FROM nodes n CROSS JOIN run_node_links rn ON rn.node = n.id AND rn.run_id = ?
 				WHERE n.key IN (`+strings.TrimSuffix(strings.Repeat("?, ", n), ", ")+")", args...)
 			if err != nil {
 				return err
@@ -503,7 +507,7 @@ func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results 
 			if pipeline.NodeStatus(ln.status) != pipeline.NodeOK {
 				return fmt.Errorf("result %d %q: node %s is %s; a failed node is never a result", r.Ordinal, r.Label, r.Key, ln.status)
 			}
-			if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, node) VALUES (?, ?, ?, ?)",
+			if _, err := tx.ExecContext(ctx, "INSERT INTO run_result_rows (run_id, ordinal, label, node) VALUES (?, ?, ?, ?)",
 				string(run), r.Ordinal, r.Label, ln.id); err != nil {
 				return fmt.Errorf("result %d %q: %w", r.Ordinal, r.Label, err)
 			}

@@ -21,7 +21,8 @@ const SealVersion = "inflatrace-seal/1"
 // derived from and the runs it assembles, every result in order (ordinal,
 // node key, label) and every node it linked in order (ordinal, key, what
 // the run did, the output hash as the run saw it, the run's error for the
-// node; these lines in binary, see sealOf's loop). Any edit to one of these rows after the seal was written changes
+// node; these lines in binary, see sealOf's loop) and, for a run recorded
+// by works, every work in order (position, bases, action, digest). Any edit to one of these rows after the seal was written changes
 // it. A node row that later changes legitimately (a failed node computed
 // again by another run) does not: the run's own account is sealed.
 func sealOf(ctx context.Context, tx *qtx, id pipeline.RunID) (string, error) {
@@ -48,7 +49,7 @@ func sealOf(ctx context.Context, tx *qtx, id pipeline.RunID) (string, error) {
 	for i, p := range d.Parts {
 		line("part", strconv.Itoa(i), strconv.Quote(string(p)))
 	}
-	res, err := tx.QueryContext(ctx, `SELECT rr.ordinal, n.key, rr.label FROM run_results rr JOIN nodes n ON n.id = rr.node
+	res, err := tx.QueryContext(ctx, `SELECT rr.ordinal, n.key, rr.label FROM run_result_rows rr JOIN nodes n ON n.id = rr.node
 		WHERE rr.run_id = ? ORDER BY rr.ordinal`, string(id))
 	if err != nil {
 		return "", err
@@ -66,7 +67,7 @@ func sealOf(ctx context.Context, tx *qtx, id pipeline.RunID) (string, error) {
 	if err := res.Close(); err != nil {
 		return "", err
 	}
-	ns, err := tx.QueryContext(ctx, `SELECT rn.ordinal, n.key, rn.action, n.output_hash, rn.error FROM run_nodes rn JOIN nodes n ON n.id = rn.node
+	ns, err := tx.QueryContext(ctx, `SELECT rn.ordinal, n.key, rn.action, n.output_hash, rn.error FROM run_node_links rn JOIN nodes n ON n.id = rn.node
 		WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
 	if err != nil {
 		return "", err
@@ -97,6 +98,27 @@ func sealOf(ctx context.Context, tx *qtx, id pipeline.RunID) (string, error) {
 		h.Write(buf)
 	}
 	if err := ns.Err(); err != nil {
+		return "", err
+	}
+	ns.Close()
+	// A run recorded by works seals each by its digest (which covers its
+	// nodes and results; verify recomputes it from them).
+	ws, err := tx.QueryContext(ctx, `SELECT rw.position, rw.base, rw.node_base, rw.action, w.digest FROM run_works rw JOIN works w ON w.id = rw.work
+		WHERE rw.run_id = ? ORDER BY rw.position`, string(id))
+	if err != nil {
+		return "", err
+	}
+	defer ws.Close()
+	for ws.Next() {
+		var pos, base, nodeBase int
+		var action string
+		var digest []byte
+		if err := ws.Scan(&pos, &base, &nodeBase, &action, &digest); err != nil {
+			return "", err
+		}
+		line("work", strconv.Itoa(pos), strconv.Itoa(base), strconv.Itoa(nodeBase), action, hex.EncodeToString(digest))
+	}
+	if err := ws.Err(); err != nil {
 		return "", err
 	}
 	return "sha256:" + hex.EncodeToString(h.Sum(nil)), nil
@@ -179,11 +201,51 @@ func (l *Ledger) CheckSeal(ctx context.Context, id pipeline.RunID) (sealed bool,
 		if got != d.Seal {
 			problem = &Problem{Table: "runs", ID: string(id),
 				What: fmt.Sprintf("the run's rows seal to %s, the seal written at its end is %s: a row was edited after the run finished", got, d.Seal)}
+			return nil
 		}
-		return nil
+		// The seal covers each work by its digest: the works themselves are
+		// checked against their rows and nodes.
+		problem, err = runWorkProblem(ctx, tx, id)
+		return err
 	})
 	if err != nil {
 		return false, nil, fmt.Errorf("ledger: check the seal of run %s: %w", id, err)
 	}
 	return sealed, problem, nil
+}
+
+// runWorkProblem checks each work of a run against its row checksum and
+// its digest, and returns the first problem.
+func runWorkProblem(ctx context.Context, tx *qtx, id pipeline.RunID) (*Problem, error) {
+	rows, err := tx.QueryContext(ctx, "SELECT "+prefixed("w.", workColumns)+" FROM run_works rw JOIN works w ON w.id = rw.work WHERE rw.run_id = ? ORDER BY rw.position", string(id))
+	if err != nil {
+		return nil, err
+	}
+	var ws []workRow
+	for rows.Next() {
+		w, err := scanWork(rows)
+		if err != nil {
+			rows.Close()
+			return nil, err
+		}
+		ws = append(ws, w)
+	}
+	rows.Close()
+	if err := rows.Err(); err != nil {
+		return nil, err
+	}
+	for _, w := range ws {
+		if err := w.checked(); err != nil {
+			return &Problem{Table: "works", ID: strconv.FormatInt(w.id, 10), What: err.Error()}, nil
+		}
+		acct, err := storedAccount(ctx, tx, w)
+		if err != nil {
+			return &Problem{Table: "works", ID: strconv.FormatInt(w.id, 10), What: err.Error()}, nil
+		}
+		if got := acct.digest(); string(got) != string(w.digest) {
+			return &Problem{Table: "works", ID: strconv.FormatInt(w.id, 10),
+				What: fmt.Sprintf("work %d of the run: its nodes and results give digest %x, the row says %x: a row was edited after the run finished", w.id, got, w.digest)}, nil
+		}
+	}
+	return nil, nil
 }

@@ -2,10 +2,14 @@ package ledger
 
 import (
 	"context"
+	"database/sql"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"os"
 	"sort"
+	"strconv"
+	"strings"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 )
@@ -19,6 +23,20 @@ type snapshot struct {
 	results map[pipeline.RunID][]pipeline.ResultRef
 	tags    map[string]pipeline.RunID
 	nodes   map[pipeline.KeyID]pipeline.NodeRecord
+	// The per-node links and results of the earlier layout, and the works,
+	// of each run: what write inserts (links and results hold both).
+	direct        map[pipeline.RunID][]RunNode
+	directResults map[pipeline.RunID][]pipeline.ResultRef
+	works         map[pipeline.RunID][]transferWork
+}
+
+// transferWork is one work of a run, with its account (node keys) so that
+// it can be written where node ids differ.
+type transferWork struct {
+	pos, base, nodeBase int
+	action              string
+	row                 workRow
+	acct                workAccount
 }
 
 // MergeReport says what a merge or export wrote.
@@ -31,7 +49,8 @@ type MergeReport struct {
 // read collects a snapshot of the given runs (all runs when ids is nil).
 func (l *Ledger) read(ctx context.Context, ids []pipeline.RunID) (*snapshot, error) {
 	s := &snapshot{links: map[pipeline.RunID][]RunNode{}, results: map[pipeline.RunID][]pipeline.ResultRef{},
-		tags: map[string]pipeline.RunID{}, nodes: map[pipeline.KeyID]pipeline.NodeRecord{}}
+		tags: map[string]pipeline.RunID{}, nodes: map[pipeline.KeyID]pipeline.NodeRecord{},
+		direct: map[pipeline.RunID][]RunNode{}, directResults: map[pipeline.RunID][]pipeline.ResultRef{}, works: map[pipeline.RunID][]transferWork{}}
 	if ids == nil {
 		runs, err := l.Runs(ctx)
 		if err != nil {
@@ -65,6 +84,15 @@ func (l *Ledger) read(ctx context.Context, ids []pipeline.RunID) (*snapshot, err
 			}
 		}
 		if s.results[id], err = l.RunResults(ctx, id); err != nil {
+			return nil, err
+		}
+		if s.direct[id], err = l.runNodesIn(ctx, id, "run_node_links"); err != nil {
+			return nil, err
+		}
+		if s.directResults[id], err = l.runResultsIn(ctx, id, "run_result_rows"); err != nil {
+			return nil, err
+		}
+		if s.works[id], err = l.readWorks(ctx, id); err != nil {
 			return nil, err
 		}
 		names, err := l.TagsOf(ctx, id)
@@ -141,14 +169,17 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 			if err := insertFinishedRun(ctx, tx, run); err != nil {
 				return err
 			}
-			for _, ln := range s.links[run.ID] {
-				if _, err := tx.ExecContext(ctx, `INSERT INTO run_nodes (run_id, ordinal, node, action, duration_ns, error)
+			if err := l.writeWorks(ctx, tx, run.ID, s.works[run.ID], ids); err != nil {
+				return err
+			}
+			for _, ln := range s.direct[run.ID] {
+				if _, err := tx.ExecContext(ctx, `INSERT INTO run_node_links (run_id, ordinal, node, action, duration_ns, error)
 					VALUES (?, ?, ?, ?, ?, ?)`, string(run.ID), ln.Ordinal, ids[ln.Key], string(ln.Action), int64(ln.RunDuration), ln.RunError); err != nil {
 					return fmt.Errorf("run %s node %s: %w", run.ID, ln.Key, err)
 				}
 			}
-			for _, r := range s.results[run.ID] {
-				if _, err := tx.ExecContext(ctx, "INSERT INTO run_results (run_id, ordinal, label, node) VALUES (?, ?, ?, ?)",
+			for _, r := range s.directResults[run.ID] {
+				if _, err := tx.ExecContext(ctx, "INSERT INTO run_result_rows (run_id, ordinal, label, node) VALUES (?, ?, ?, ?)",
 					string(run.ID), r.Ordinal, r.Label, ids[r.Key]); err != nil {
 					return fmt.Errorf("run %s result %d: %w", run.ID, r.Ordinal, err)
 				}
@@ -301,4 +332,120 @@ func (l *Ledger) Merge(ctx context.Context, path string) (MergeReport, error) {
 		return rep, fmt.Errorf("ledger: merge %s: %w", path, err)
 	}
 	return rep, nil
+}
+
+// readWorks reads a run's works with their accounts, each checked against
+// its row checksum and its digest.
+func (l *Ledger) readWorks(ctx context.Context, id pipeline.RunID) ([]transferWork, error) {
+	var out []transferWork
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT rw.position, rw.base, rw.node_base, rw.action, "+prefixed("w.", workColumns)+
+			" FROM run_works rw JOIN works w ON w.id = rw.work WHERE rw.run_id = ? ORDER BY rw.position", string(id))
+		if err != nil {
+			return err
+		}
+		for rows.Next() {
+			var t transferWork
+			w := &t.row
+			if err := rows.Scan(&t.pos, &t.base, &t.nodeBase, &t.action,
+				&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, &w.summary, &w.digest, &w.check); err != nil {
+				rows.Close()
+				return err
+			}
+			out = append(out, t)
+		}
+		rows.Close()
+		if err := rows.Err(); err != nil {
+			return err
+		}
+		for i := range out {
+			t := &out[i]
+			if err := t.row.checked(); err != nil {
+				return err
+			}
+			if t.acct, err = storedAccount(ctx, tx, t.row); err != nil {
+				return err
+			}
+			if got := t.acct.digest(); string(got) != string(t.row.digest) {
+				return fmt.Errorf("%w: work %d of run %s: its nodes and results give digest %x, the row says %x", ErrIntegrity, t.row.id, id, got, t.row.digest)
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, fmt.Errorf("works of run %s: %w", id, err)
+	}
+	return out, nil
+}
+
+// writeWorks writes a run's works where node ids are those of ids (by
+// key): a work whose key is already recorded must have the same digest.
+func (l *Ledger) writeWorks(ctx context.Context, tx *qtx, run pipeline.RunID, works []transferWork, ids map[pipeline.KeyID]int64) error {
+	for _, t := range works {
+		row := t.row
+		var nodes strings.Builder
+		byKey := map[string]int64{}
+		nodes.WriteByte('[')
+		for i, n := range t.acct.nodes {
+			id, ok := ids[pipeline.KeyID(digestText(n.key))]
+			if !ok {
+				return fmt.Errorf("work %d of run %s: node %s: %w", t.pos, run, digestText(n.key), ErrNotFound)
+			}
+			if i > 0 {
+				nodes.WriteByte(',')
+			}
+			nodes.WriteString(strconv.FormatInt(id, 10))
+			byKey[string(n.key)] = id
+		}
+		nodes.WriteByte(']')
+		var results strings.Builder
+		results.WriteByte('[')
+		for i, r := range t.acct.results {
+			label, err := json.Marshal(r.label)
+			if err != nil {
+				return err
+			}
+			if i > 0 {
+				results.WriteByte(',')
+			}
+			fmt.Fprintf(&results, "[%d,%s,%d]", r.offset, label, byKey[string(r.key)])
+		}
+		results.WriteByte(']')
+		row.nodes, row.results = nodes.String(), results.String()
+		row.check = row.rowCheck()
+		var id int64
+		found := false
+		if row.key != nil {
+			var digest []byte
+			err := tx.QueryRowContext(ctx, "SELECT id, digest FROM works WHERE key = ?", row.key).Scan(&id, &digest)
+			switch {
+			case err == nil:
+				if string(digest) != string(row.digest) {
+					return fmt.Errorf("%w: conflicting works for key %s: here digest %x, incoming %x", ErrIntegrity, digestText(row.key), digest, row.digest)
+				}
+				found = true
+			case !errors.Is(err, sql.ErrNoRows):
+				return err
+			}
+		}
+		if !found {
+			var key any
+			if row.key != nil {
+				key = row.key
+			}
+			res, err := tx.ExecContext(ctx, "INSERT INTO works (key, nodes, actions, results, errors, span, summary, digest, row_check, recorded_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+				key, row.nodes, row.actions, row.results, row.errorsTxt, row.span, row.summary, row.digest, row.check, formatTime(l.now()))
+			if err != nil {
+				return fmt.Errorf("insert work: %w", err)
+			}
+			if id, err = res.LastInsertId(); err != nil {
+				return err
+			}
+		}
+		if _, err := tx.ExecContext(ctx, "INSERT INTO run_works (run_id, position, work, base, node_base, action) VALUES (?, ?, ?, ?, ?, ?)",
+			string(run), t.pos, id, t.base, t.nodeBase, t.action); err != nil {
+			return fmt.Errorf("run %s work %d: %w", run, t.pos, err)
+		}
+	}
+	return nil
 }

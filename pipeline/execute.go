@@ -129,6 +129,12 @@ type Session struct {
 	// those of earlier chunks whose records may not be written yet (a
 	// look-up in the ledger would miss them).
 	flights map[KeyID]*flight
+	// inWork is set while ExecuteWork evaluates a graph: nodes are
+	// recorded without links of their own (the work links them), so a
+	// reused node needs no record at all. nodeOrdinal counts the nodes of
+	// the run's works so far.
+	inWork      bool
+	nodeOrdinal int
 }
 
 // Begin records a run as running and returns its session.
@@ -260,6 +266,7 @@ type writer struct {
 	buf     []Recorded
 	spare   []Recorded // the last batch written, emptied, for reuse
 	results []ResultRef
+	works   []WorkLink
 	seq     uint64 // number of records added
 	closing bool
 	err     error
@@ -305,6 +312,15 @@ func (w *writer) add(r Recorded) uint64 {
 	return seq
 }
 
+// addWork queues a work of the run, written after every record added
+// before it; upto is the session's results mark after the work.
+func (w *writer) addWork(link WorkLink, upto int) {
+	w.mu.Lock()
+	w.works = append(w.works, link)
+	w.upto = upto
+	w.mu.Unlock()
+}
+
 // addResults queues a chunk's results, written after every record added
 // before them; upto is the session's results mark after the chunk.
 func (w *writer) addResults(refs []ResultRef, upto int) {
@@ -331,13 +347,13 @@ func (w *writer) loop() {
 		case <-timer.C:
 		}
 		w.mu.Lock()
-		batch, results, last, closing, upto := w.buf, w.results, w.seq, w.closing, w.upto
-		w.buf, w.spare, w.results = w.spare, nil, nil
+		batch, results, works, last, closing, upto := w.buf, w.results, w.works, w.seq, w.closing, w.upto
+		w.buf, w.spare, w.results, w.works = w.spare, nil, nil, nil
 		failed := w.err != nil
 		w.room.Broadcast()
 		w.mu.Unlock()
-		if !failed && (len(batch) > 0 || len(results) > 0) {
-			err := w.write(batch, results)
+		if !failed && (len(batch) > 0 || len(results) > 0 || len(works) > 0) {
+			err := w.write(batch, results, works)
 			w.mu.Lock()
 			if err != nil {
 				w.err = err
@@ -365,7 +381,15 @@ func (w *writer) loop() {
 	}
 }
 
-func (w *writer) write(batch []Recorded, results []ResultRef) error {
+func (w *writer) write(batch []Recorded, results []ResultRef, works []WorkLink) error {
+	if len(works) > 0 {
+		// The works' nodes are in this batch or in earlier ones: one
+		// transaction writes the batch and the works.
+		if err := w.rec.(WorkRecorder).RecordWorks(w.ctx, w.run, batch, works); err != nil {
+			return fmt.Errorf("record a batch of %d nodes and %d works: %w", len(batch), len(works), err)
+		}
+		batch = nil
+	}
 	if len(batch) > 0 {
 		if err := w.rec.RecordNodes(w.ctx, w.run, batch); err != nil {
 			return fmt.Errorf("record a batch of %d nodes: %w", len(batch), err)
@@ -602,8 +626,8 @@ func (s *Session) schedule(ctx context.Context, g *Graph) (*Report, error) {
 			}
 			stored.Duration = d
 			o := NodeOutcome{Node: g.Nodes[i], Key: p.key, Action: Reused, Outputs: stored.Outputs, OutputHash: stored.OutputHash, Duration: d}
-			hasRec := s.wr != nil
-			if !hasRec {
+			hasRec := s.wr != nil && !s.inWork // a work links its reused nodes itself
+			if s.wr == nil {
 				if err := s.rec.RecordNode(ctx, s.info.ID, stored, Reused); err != nil {
 					return fmt.Errorf("record reuse of %s (%s): %w", p.key, g.Nodes[i].Label, err)
 				}
@@ -741,7 +765,7 @@ func (c *chunk) compute(i int) done {
 			stored.Duration = s.opts.Now().Sub(lookStart)
 			out.Duration = stored.Duration
 			if batched {
-				return done{i: i, out: out, rec: Recorded{Node: stored, Action: Reused}, hasRec: true}
+				return done{i: i, out: out, rec: Recorded{Node: stored, Action: Reused}, hasRec: !s.inWork}
 			}
 			if err := s.rec.RecordNode(c.ctx, s.info.ID, stored, Reused); err != nil {
 				return done{i: i, err: fmt.Errorf("record reuse of %s (%s): %w", p.key, nd.Label, err)}
@@ -773,7 +797,7 @@ func (c *chunk) compute(i int) done {
 		nr.Status, nr.Outputs, nr.OutputHash = NodeOK, outputs, hash
 	}
 	if batched {
-		return done{i: i, out: out, rec: Recorded{Node: nr, Action: out.Action, OutputsText: enc}, hasRec: true}
+		return done{i: i, out: out, rec: Recorded{Node: nr, Action: out.Action, OutputsText: enc, InWork: s.inWork}, hasRec: true}
 	}
 	if err := s.rec.RecordNode(c.ctx, s.info.ID, nr, out.Action); err != nil {
 		return done{i: i, err: fmt.Errorf("record %s (%s): %w", p.key, nd.Label, err)}

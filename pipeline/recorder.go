@@ -104,6 +104,9 @@ type Recorded struct {
 	// that the engine hashed, when it has it; a recorder may store it
 	// instead of encoding the outputs again, after checking its hash.
 	OutputsText []byte
+	// InWork marks a node recorded as part of a work (WorkRecorder): it
+	// gets no link to the run of its own, the work links it.
+	InWork bool
 }
 
 // BatchRecorder is a Recorder that can store many nodes of a run in one

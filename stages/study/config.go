@@ -123,6 +123,8 @@ type Study struct {
 	Forecasts   []compare.Forecast
 	// The model points, expanded on demand (see NumModels and ModelAt).
 	points modelPoints
+	// wk caches the shared part of the work keys of the study's chunks.
+	wk *workCache
 }
 
 // Hash is the prefixed SHA-256 of the configuration's bytes.

@@ -94,6 +94,7 @@ func (s *Study) expandHistories(g *pipeline.Graph, label string, sr nodes.SlowRo
 // i-1 modulo n. Every point belongs to exactly one shard, and the shares
 // do not depend on anything but the configuration.
 func (s *Study) Shard(i, n int) {
+	s.wk = nil
 	s.points.shardI, s.points.shardN = i-1, n
 	s.points.lo, s.points.hi = 0, -1
 }
@@ -105,6 +106,9 @@ func (s *Study) Chunks(size int) []*Study {
 	n := s.NumModels()
 	if size < 1 || n <= size {
 		return []*Study{s}
+	}
+	if s.wk == nil {
+		s.wk = &workCache{} // shared by the chunks: their keys hash the study once
 	}
 	var out []*Study
 	for a := 0; a < n; a += size {

@@ -156,23 +156,62 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 		}
 		return nil
 	}
-	// Chunk by chunk: each graph is evaluated, recorded and let go.
-	for k, ch := range chunks {
+	// Chunk by chunk: each chunk is one work. A work recorded whole (same
+	// points, settings, stage versions and tool) is linked and its
+	// recorded results reported, without building its graph; otherwise its
+	// graph is evaluated (reusing recorded nodes), recorded and let go.
+	for _, ch := range chunks {
+		key, err := ch.WorkKey(ToolIdentity)
+		if err != nil {
+			runErr = fmt.Errorf("%s: %w", s.File, err)
+			break
+		}
+		rw, found, err := sess.ReuseWork(ctx, key)
+		if err != nil {
+			runErr = err
+			break
+		}
+		if found {
+			rs, err := study.DecodeResults(rw.Summary)
+			if err != nil {
+				runErr = fmt.Errorf("work %s: %w", key.Short(), err)
+				break
+			}
+			for range rw.Nodes {
+				onNode(pipeline.NodeOutcome{Action: pipeline.Reused})
+			}
+			nodes += rw.Nodes
+			marked += rw.Span
+			queue = append(queue, waiting{rs, marked})
+			if err := release(sess.Committed()); err != nil {
+				runErr = err
+				break
+			}
+			first = nil
+			continue
+		}
 		graph := first
-		if k > 0 {
+		if graph == nil {
 			if graph, err = ch.Graph(); err != nil {
 				runErr = err
 				break
 			}
 		}
-		rep, err := sess.Execute(ctx, graph)
+		var rs []study.Result
+		rep, err := sess.ExecuteWork(ctx, graph, key, func(rep *pipeline.Report) ([]byte, error) {
+			rs = study.Results(graph, rep)
+			return study.EncodeResults(rs)
+		})
 		if err != nil {
 			runErr = err
 			break
 		}
+		if rs == nil {
+			rs = study.Results(graph, rep)
+		}
 		nodes += len(graph.Nodes)
 		marked += len(graph.Results)
-		queue = append(queue, waiting{study.Results(graph, rep), marked})
+		queue = append(queue, waiting{rs, marked})
 		if err := release(sess.Committed()); err != nil {
 			runErr = err
 			break

