@@ -132,8 +132,9 @@ func thermal(params pipeline.Values, history string) (reheat.History, float64, e
 	return h, v[5], h.Check()
 }
 
-// Run matches the solution to the reheating history.
-func (Reheat) Run(_ context.Context, params pipeline.Values, inputs []pipeline.Values) (pipeline.Values, error) {
+// Run matches the solution to the reheating history. A band reports its
+// histories to the context's progress starter (pipeline.WithProgress).
+func (Reheat) Run(ctx context.Context, params pipeline.Values, inputs []pipeline.Values) (pipeline.Values, error) {
 	in, err := onlyInput(ReheatStage, inputs)
 	if err != nil {
 		return nil, err
@@ -142,7 +143,13 @@ func (Reheat) Run(_ context.Context, params pipeline.Values, inputs []pipeline.V
 		return nil, fmt.Errorf("A_s = %g, want > 0", As)
 	}
 	history, _ := params.Text("history")
-	out, err := reheatOutputs(params, in, history)
+	var progress pipeline.ProgressFunc
+	if history == HistoryBand {
+		var end func()
+		progress, end = pipeline.Progress(ctx)
+		defer end()
+	}
+	out, err := reheatOutputs(params, in, history, progress)
 	if err != nil {
 		return nil, err
 	}
@@ -153,7 +160,7 @@ func (Reheat) Run(_ context.Context, params pipeline.Values, inputs []pipeline.V
 	return out, nil
 }
 
-func reheatOutputs(params, in pipeline.Values, history string) (pipeline.Values, error) {
+func reheatOutputs(params, in pipeline.Values, history string, progress pipeline.ProgressFunc) (pipeline.Values, error) {
 	As, _ := params.Num("A_s")
 	nMax := 100.0 // room for the matched N* of any history
 	if history == HistoryFixed {
@@ -214,7 +221,7 @@ func reheatOutputs(params, in pipeline.Values, history string) (pipeline.Values,
 		if err != nil {
 			return nil, err
 		}
-		b, err := reheat.Band(ev, h, reheat.BandSettings{WMin: v[0], WMax: v[1], NW: int(v[2]), NT: int(v[3]), TMin: inGeV(v[4])})
+		b, err := reheat.Band(ev, h, reheat.BandSettings{WMin: v[0], WMax: v[1], NW: int(v[2]), NT: int(v[3]), TMin: inGeV(v[4]), Progress: progress})
 		if err != nil {
 			return nil, err
 		}

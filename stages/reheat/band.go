@@ -18,6 +18,10 @@ type BandSettings struct {
 	// up to the instantaneous maximum, which is the last (default 100).
 	TMin float64
 	NT   int
+	// Progress, when not nil, is told after each history how many of the
+	// NW*NT histories have been tried (those above the maximum
+	// temperature included). It does not change the result.
+	Progress func(done, total int64)
 }
 
 func (b BandSettings) withDefaults() BandSettings {
@@ -72,6 +76,7 @@ func Band(ev Evaluator, h History, b BandSettings) (BandResult, error) {
 	res := BandResult{TMax: inst.TMax, NsMin: math.Inf(1), NsMax: math.Inf(-1), RMin: math.Inf(1), RMax: math.Inf(-1)}
 	res.NMin.Pred.N, res.NMax.Pred.N = math.Inf(1), math.Inf(-1)
 	start := inst.N
+	total := int64(b.NW) * int64(b.NT)
 	for i := 0; i < b.NW; i++ {
 		w := b.WMin
 		switch {
@@ -88,6 +93,9 @@ func Band(ev Evaluator, h History, b BandSettings) (BandResult, error) {
 				era = Era{Kind: EraTemperature, W: w, T: T}
 			}
 			pr, err := Match(ev, h, era, start)
+			if b.Progress != nil {
+				b.Progress(int64(i)*int64(b.NT)+int64(j)+1, total)
+			}
 			if errors.Is(err, ErrAboveMaximum) {
 				continue // T_max moved with N*: this T is no longer reachable
 			}
