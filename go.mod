@@ -4,13 +4,15 @@ go 1.26.8
 
 require (
 	codeberg.org/go-pdf/fpdf v0.11.1
+	github.com/creack/pty v1.1.24
 	github.com/goccy/go-graphviz v0.2.10
 	github.com/mattn/go-sqlite3 v1.14.53
 	github.com/pelletier/go-toml/v2 v2.4.3
 	github.com/spf13/cobra v1.10.2
 	github.com/spf13/pflag v1.0.9
 	github.com/vbauerster/mpb/v8 v8.16.2
-	golang.org/x/sys v0.48.0
+	golang.org/x/image v0.30.0
+	golang.org/x/term v0.48.0
 	gonum.org/v1/gonum v0.17.0
 	gonum.org/v1/plot v0.17.0
 )
@@ -31,6 +33,6 @@ require (
 	github.com/mattn/go-runewidth v0.0.30 // indirect
 	github.com/tetratelabs/wazero v1.10.1 // indirect
 	github.com/vbauerster/cupwriter v0.0.5 // indirect
-	golang.org/x/image v0.30.0 // indirect
+	golang.org/x/sys v0.50.0 // indirect
 	golang.org/x/text v0.28.0 // indirect
 )

@@ -97,7 +97,7 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 	if jobs < 1 {
 		jobs = e.CPUs
 	}
-	onNode, endProgress := e.progress(s.NodeEstimate())
+	ctx, onNode, endProgress := e.progress(ctx, s.NodeEstimate())
 	sess, err := pipeline.Begin(ctx, l, info, pipeline.Options{Jobs: jobs, Tool: ToolIdentity, Now: e.Now, Batch: Batch, OnNode: onNode, ReuseOnly: o.ReuseOnly})
 	if err != nil {
 		endProgress()
