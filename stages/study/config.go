@@ -342,75 +342,6 @@ func numbers(v any) ([]float64, []string, error) {
 	return xs, ts, nil
 }
 
-// MaxGridPoints bounds one range's points.
-const MaxGridPoints = 10_000_000
-
-// grid expands a range table: {linear = [a, b], points = n} gives n values
-// evenly spaced from a to b, both included; {log = [a, b], points = n}
-// evenly spaced in log (a, b > 0).
-func grid(t map[string]any) ([]float64, []string, error) {
-	var kind string
-	var ends []any
-	for _, k := range []string{"linear", "log"} {
-		if e, ok := t[k]; ok {
-			if kind != "" {
-				return nil, nil, errors.New("a range is linear or log, not both")
-			}
-			kind = k
-			ends, _ = e.([]any)
-		}
-	}
-	for k := range t {
-		if k != "linear" && k != "log" && k != "points" {
-			return nil, nil, fmt.Errorf("unknown range key %q (a range has linear or log, and points)", k)
-		}
-	}
-	if kind == "" || len(ends) != 2 {
-		return nil, nil, errors.New("a range is {linear = [a, b], points = n} or {log = [a, b], points = n}")
-	}
-	a, _, err := number(ends[0])
-	if err != nil {
-		return nil, nil, err
-	}
-	b, _, err := number(ends[1])
-	if err != nil {
-		return nil, nil, err
-	}
-	n, ok := t["points"].(int64)
-	if !ok || n < 1 || n > MaxGridPoints {
-		return nil, nil, fmt.Errorf("points: want an integer from 1 to %d", MaxGridPoints)
-	}
-	if math.IsNaN(a) || math.IsInf(a, 0) || math.IsNaN(b) || math.IsInf(b, 0) {
-		return nil, nil, fmt.Errorf("a range needs finite ends, got [%g, %g]", a, b)
-	}
-	if kind == "log" && !(a > 0 && b > 0) {
-		return nil, nil, fmt.Errorf("a log range needs positive ends, got [%g, %g]", a, b)
-	}
-	xs := make([]float64, n)
-	ts := make([]string, n)
-	for i := range xs {
-		f := 0.0
-		if n > 1 {
-			f = float64(i) / float64(n-1)
-		}
-		switch {
-		case i == 0:
-			xs[i] = a
-		case i == int(n)-1:
-			xs[i] = b
-		case kind == "linear":
-			xs[i] = a + (b-a)*f
-		default:
-			xs[i] = math.Exp(math.Log(a) + (math.Log(b)-math.Log(a))*f)
-		}
-		if math.IsNaN(xs[i]) || math.IsInf(xs[i], 0) {
-			return nil, nil, fmt.Errorf("the range [%g, %g] overflows double precision (point %d is %g)", a, b, i+1, xs[i])
-		}
-		ts[i] = strconv.FormatFloat(xs[i], 'g', 6, 64)
-	}
-	return xs, ts, nil
-}
-
 var thermalKeys = []string{"k_pivot_per_Mpc", "T_0_K", "g_s0", "g_reh", "g_s_reh", "T_bbn_GeV"}
 
 // Bounds on the reheating inputs of a study. Values outside them are
@@ -799,11 +730,11 @@ func (c *parser) models(tables []map[string]any) ([]*modelGroup, error) {
 				}
 				return nil, c.errAt(path+"."+k, "unknown parameter %q for family %s (parameters: %s; other keys: family, label, field_range)", k, family, allowed)
 			}
-			xs, ts, err := numbers(t[k])
+			a, err := axisValues(k, t[k])
 			if err != nil {
 				return nil, c.errAt(path+"."+k, "%v", err)
 			}
-			axes = append(axes, axis{k, xs, ts})
+			axes = append(axes, a)
 		}
 		combine := "product"
 		if v, ok := t["combine"]; ok {
@@ -816,10 +747,12 @@ func (c *parser) models(tables []map[string]any) ([]*modelGroup, error) {
 		if err != nil {
 			return nil, err
 		}
-		// Check every value of every parameter (each with the others at
-		// their first values), fill the family's defaults from the first
-		// point and check the field range there; the points themselves are
-		// made on demand.
+		// Check every value of every list, and each range by its ends and
+		// the points next to them (which stand for the whole range:
+		// valueRange.extremes), each with the other parameters at their
+		// first values; fill the family's defaults from the first point and
+		// check the field range there. The points themselves are made on
+		// demand.
 		check := func(m ModelSpec) (*model.Model, error) {
 			full, err := fam.New(m.Params)
 			if err != nil {
@@ -934,11 +867,11 @@ func (c *parser) customModels(path string, t map[string]any) (*modelGroup, error
 	}
 	sort.Strings(keys)
 	for _, k := range keys {
-		vals, texts, err := numbers(t[k])
+		a, err := axisValues(k, t[k])
 		if err != nil {
 			return nil, c.errAt(path+"."+k, "%v", err)
 		}
-		axes = append(axes, axis{k, vals, texts})
+		axes = append(axes, a)
 	}
 	comb, _ := t["combine"].(string)
 	g, err := c.group(path, ModelSpec{Family: nodes.CustomFamily, Label: label, FieldRange: xs}, axes, comb == "zip", &base)
@@ -961,32 +894,25 @@ func (c *parser) customModels(path string, t map[string]any) (*modelGroup, error
 	return g, nil
 }
 
-// axis is one fanned-out model parameter.
-type axis struct {
-	name  string
-	xs    []float64
-	texts []string
-}
-
 // group makes a model group, checking that zipped lists have one length.
 func (c *parser) group(path string, base ModelSpec, axes []axis, zip bool, custom *nodes.Custom) (*modelGroup, error) {
 	g := &modelGroup{base: base, axes: axes, zip: zip, custom: custom, n: 1}
 	if zip {
 		for _, a := range axes {
-			if len(a.xs) > 1 {
-				if g.n > 1 && len(a.xs) != g.n {
-					return nil, c.errAt(path+"."+a.name, "combine = \"zip\" needs lists of one length: %s has %d values, another %d", a.name, len(a.xs), g.n)
+			if a.len() > 1 {
+				if g.n > 1 && a.len() != g.n {
+					return nil, c.errAt(path+"."+a.name, "combine = \"zip\" needs lists of one length: %s has %d values, another %d", a.name, a.len(), g.n)
 				}
-				g.n = len(a.xs)
+				g.n = a.len()
 			}
 		}
 		return g, nil
 	}
 	for _, a := range axes {
-		if g.n > MaxModelPoints/len(a.xs) {
+		if g.n > MaxModelPoints/a.len() {
 			return nil, c.errAt(path, "more than %d model points", MaxModelPoints)
 		}
-		g.n *= len(a.xs)
+		g.n *= a.len()
 	}
 	return g, nil
 }

@@ -75,9 +75,10 @@ func localFileNames(data []byte) bool {
 }
 
 // fuzzMaxPoints bounds the points of any range a fuzzed study may ask
-// for. Parse checks every value of a range with the model's family
-// (about 3 microseconds each), so a range at MaxGridPoints takes half a
-// minute to check: by design, but it would stall the fuzzer.
+// for. A model parameter's range costs its ends whatever its size, but a
+// reheating key's range makes a history per point (held, with their
+// cartesian product), and a range at MaxGridPoints there would stall the
+// fuzzer.
 const fuzzMaxPoints = 10_000
 
 // smallRanges reports whether every range table in data asks for at most

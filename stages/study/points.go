@@ -27,15 +27,15 @@ type modelGroup struct {
 func (g *modelGroup) index(i int) []int {
 	idx := make([]int, len(g.axes))
 	if g.zip {
-		for k, a := range g.axes {
-			if len(a.xs) > 1 {
+		for k := range g.axes {
+			if g.axes[k].len() > 1 {
 				idx[k] = i
 			}
 		}
 		return idx
 	}
 	for k := len(g.axes) - 1; k >= 0; k-- {
-		n := len(g.axes[k].xs)
+		n := g.axes[k].len()
 		idx[k] = i % n
 		i /= n
 	}
@@ -46,8 +46,9 @@ func (g *modelGroup) make(idx []int) ModelSpec {
 	m := g.base
 	m.Params = make(map[string]float64, len(g.axes)+len(g.defaults))
 	m.ParamText = make(map[string]string, len(g.axes)+len(g.defaults))
-	for k, a := range g.axes {
-		m.Params[a.name], m.ParamText[a.name] = a.xs[idx[k]], a.texts[idx[k]]
+	for k := range g.axes {
+		a := &g.axes[k]
+		m.Params[a.name], m.ParamText[a.name] = a.at(idx[k])
 	}
 	for n, v := range g.defaults {
 		m.Params[n], m.ParamText[n] = v, pipeline.FormatFloat(v)
@@ -64,17 +65,17 @@ func (g *modelGroup) make(idx []int) ModelSpec {
 func (g *modelGroup) at(i int) ModelSpec { return g.make(g.index(i)) }
 
 // eachProbe calls f with points that together hold every value of every
-// axis (each value with the other axes at their first values), one at a
-// time, so that checking a million-value axis does not hold a million
-// points; it stops at f's first error.
+// list and the ends of every range with the points next to them
+// (axis.probes), each with the other axes at their first values, one at a
+// time; it stops at f's first error.
 func (g *modelGroup) eachProbe(f func(ModelSpec) error) error {
 	idx := make([]int, len(g.axes))
-	for k, a := range g.axes {
-		for j := range a.xs {
+	for k := range g.axes {
+		for _, j := range g.axes[k].probes() {
 			clear(idx)
 			if g.zip {
-				for kk, b := range g.axes {
-					if len(b.xs) > 1 {
+				for kk := range g.axes {
+					if g.axes[kk].len() > 1 {
 						idx[kk] = j
 					}
 				}

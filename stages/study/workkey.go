@@ -18,7 +18,7 @@ import (
 // whenever Graph or expandHistories change what graph a study gives, or
 // the points a model group makes (modelGroup.make, the ranges' values):
 // a work key must determine its graph.
-const WorkKeyVersion = 1
+const WorkKeyVersion = 2
 
 // workCache holds the part of a work key that every chunk of a study
 // shares (settings, stage versions, model groups), hashed once.
@@ -136,6 +136,12 @@ func (s *Study) sharedDigest(tool string) ([sha256.Size]byte, error) {
 		w.floats("base_params", b.Params)
 		w.floats("defaults", g.defaults)
 		for _, a := range g.axes {
+			if r := a.rng; r != nil {
+				// A range by its definition: its points and their texts are
+				// a function of it (valueRange.at, text).
+				w.line("range", strconv.Quote(a.name), r.log, w.float(r.a), w.float(r.b), r.n)
+				continue
+			}
 			w.line("axis", strconv.Quote(a.name), len(a.xs), len(a.texts))
 			var buf []byte
 			for i, x := range a.xs {
