@@ -270,6 +270,49 @@ func RecordedResults(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) (
 // each stage's nodes (a figure needs no comparison figures, say); what it
 // leaves out is missing from the results.
 func RecordedResultsWith(ctx context.Context, l *ledger.Ledger, id pipeline.RunID, need func(stage string) (params, outputs bool)) ([]study.Result, error) {
+	works, only, err := l.RunWorks(ctx, id)
+	if err != nil {
+		return nil, err
+	}
+	if only {
+		return resultsOfWorks(works)
+	}
+	return resultsOfLineages(ctx, l, id, need)
+}
+
+// resultsOfWorks reads a run's results from its works' summaries (the
+// results assembled when each work was evaluated), without reading a
+// node: the recorded ones, in order (a failed result carries its error and
+// is not a recorded result).
+func resultsOfWorks(works []ledger.RunWork) ([]study.Result, error) {
+	var out []study.Result
+	for _, w := range works {
+		rs, err := study.DecodeResults(w.Summary)
+		if err != nil {
+			return nil, fmt.Errorf("work %d of the run: %w", w.Position, err)
+		}
+		if len(rs) != w.Span {
+			return nil, fmt.Errorf("work %d of the run: %d results in its summary, the work spans %d", w.Position, len(rs), w.Span)
+		}
+		for _, r := range rs {
+			if r.Error == "" {
+				out = append(out, r)
+			}
+		}
+	}
+	return out, nil
+}
+
+// ResultsOfLineages is RecordedResults assembling every result from its
+// lineage's nodes, whatever the run's layout (the reference its works'
+// summaries are tested against).
+func ResultsOfLineages(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) ([]study.Result, error) {
+	return resultsOfLineages(ctx, l, id, study.AssemblyNeeds)
+}
+
+// resultsOfLineages assembles a run's results from the lineages of its
+// recorded results.
+func resultsOfLineages(ctx context.Context, l *ledger.Ledger, id pipeline.RunID, need func(stage string) (params, outputs bool)) ([]study.Result, error) {
 	var out []study.Result
 	err := l.EachLineage(ctx, id, need, func(rl ledger.ResultLineage) error {
 		so := make([]study.StageOutputs, 0, len(rl.Nodes))
