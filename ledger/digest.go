@@ -14,6 +14,14 @@ import (
 // digestBytes returns the digest of a prefixed hash, or an error naming
 // what is wrong with it.
 func digestBytes(h string) ([]byte, error) {
+	// Decoding checks the digits; only a malformed hash pays for the
+	// message.
+	if len(h) == len(pipeline.HashPrefix)+64 && h[:len(pipeline.HashPrefix)] == pipeline.HashPrefix {
+		out := make([]byte, 32)
+		if _, err := hex.Decode(out, []byte(h[len(pipeline.HashPrefix):])); err == nil {
+			return out, nil
+		}
+	}
 	if err := pipeline.ParseHash(h); err != nil {
 		return nil, err
 	}

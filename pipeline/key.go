@@ -46,6 +46,15 @@ func formatSum(h [sha256.Size]byte) string {
 	return string(out[:])
 }
 
+// isHex marks the hexadecimal digits (a table: ParseHash runs for every
+// key and hash a scan handles, millions of times).
+var isHex = func() (t [256]bool) {
+	for _, c := range "0123456789abcdefABCDEF" {
+		t[c] = true
+	}
+	return t
+}()
+
 // ParseHash checks that s is a prefixed SHA-256 hex digest.
 func ParseHash(s string) error {
 	hexPart, ok := strings.CutPrefix(s, HashPrefix)
@@ -56,7 +65,7 @@ func ParseHash(s string) error {
 		return fmt.Errorf("hash %q: want 64 hex digits, found %d", s, len(hexPart))
 	}
 	for i := 0; i < len(hexPart); i++ {
-		if c := hexPart[i]; !('0' <= c && c <= '9' || 'a' <= c && c <= 'f' || 'A' <= c && c <= 'F') {
+		if c := hexPart[i]; !isHex[c] {
 			// hex gives the message for the offending byte.
 			_, err := hex.DecodeString(hexPart)
 			return fmt.Errorf("hash %q: %v", s, err)
