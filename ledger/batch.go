@@ -42,6 +42,7 @@ func (l *Ledger) recordBatch(ctx context.Context, run pipeline.RunID, batch []pi
 // recordBatchWith is recordBatch calling after, when not nil, in the same
 // transaction once the batch's rows are inserted.
 func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch []pipeline.Recorded, texts []rowText, missing bool, after func(*qtx, *batchState) error) (used bool, err error) {
+	var committed *batchState
 	err = l.inTx(ctx, func(tx *qtx) error {
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
@@ -81,10 +82,20 @@ func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch 
 			}
 		}
 		if after != nil {
-			return after(tx, bs)
+			if err := after(tx, bs); err != nil {
+				return err
+			}
 		}
+		committed = bs
 		return nil
 	})
+	if err == nil && committed != nil {
+		// What this batch wrote or read, for the next batches' inputs and
+		// works (ok rows never change; ids never do).
+		for k, st := range committed.known {
+			l.recent.put(k, st)
+		}
+	}
 	return used, err
 }
 
@@ -151,6 +162,7 @@ func insertRows(ctx context.Context, tx *qtx, head, tail string, cols int, rows 
 // not stored (l.missing), and used reports whether any was.
 func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batchState, missing bool) (used bool, err error) {
 	seen := map[pipeline.KeyID]bool{}
+	fresh := map[pipeline.KeyID]bool{} // new nodes of this batch
 	var keys []pipeline.KeyID
 	add := func(k pipeline.KeyID) {
 		if !seen[k] {
@@ -165,12 +177,26 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 				bs.known[b.Node.Key] = st
 				continue
 			}
-		case missing && l.taken(b.Node.Key):
+		case missing && (b.New || l.taken(b.Node.Key)):
 			seen[b.Node.Key], bs.absent[b.Node.Key], used = true, true, true
+			if b.New {
+				fresh[b.Node.Key] = true
+			}
 		}
 		add(b.Node.Key)
 		for _, in := range b.Node.Inputs {
-			add(in.Key)
+			switch {
+			case fresh[in.Key]:
+				// Recorded earlier in this batch (a batch is in settle
+				// order: inputs first).
+			case bs.known[in.Key].id != 0:
+			default:
+				if st, ok := l.recent.get(in.Key); ok {
+					bs.known[in.Key] = st
+					continue
+				}
+				add(in.Key)
+			}
 		}
 	}
 	for len(keys) > 0 {
@@ -365,6 +391,14 @@ func (km *keyMemo[V]) put(k pipeline.KeyID, v V) {
 	km.m[k] = v
 }
 
+// get returns k's entry, keeping it.
+func (km *keyMemo[V]) get(k pipeline.KeyID) (V, bool) {
+	km.mu.Lock()
+	defer km.mu.Unlock()
+	v, ok := km.m[k]
+	return v, ok
+}
+
 func (km *keyMemo[V]) take(k pipeline.KeyID) (V, bool) {
 	km.mu.Lock()
 	defer km.mu.Unlock()
@@ -374,3 +408,16 @@ func (km *keyMemo[V]) take(k pipeline.KeyID) (V, bool) {
 	}
 	return v, ok
 }
+
+// HoldsStage says whether the ledger holds any node of the stage version
+// described with tool (pipeline.StageHolder), from node_kinds.
+func (l *Ledger) HoldsStage(ctx context.Context, tool, stage string, version int) (bool, error) {
+	var n int
+	err := l.rdb.QueryRowContext(ctx, "SELECT count(*) FROM node_kinds WHERE tool = ? AND stage = ? AND stage_version = ?", tool, stage, version).Scan(&n)
+	if err != nil {
+		return false, fmt.Errorf("ledger: node kinds: %w", err)
+	}
+	return n > 0, nil
+}
+
+var _ pipeline.StageHolder = (*Ledger)(nil)

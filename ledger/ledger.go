@@ -44,9 +44,9 @@ type Ledger struct {
 	// reading every key).
 	seen    keyMemo[storedNode]
 	missing keyMemo[struct{}]
-	// ids holds the row ids of nodes recent batches wrote (committed), for
-	// the works that name them a moment later.
-	ids keyMemo[int64]
+	// recent holds the rows recent batches wrote or read (committed): the
+	// inputs of the next batches' nodes and the nodes of their works.
+	recent keyMemo[storedNode]
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)

@@ -169,7 +169,6 @@ func (l *Ledger) RecordWorks(ctx context.Context, run pipeline.RunID, batch []pi
 }
 
 func (l *Ledger) recordWorks(ctx context.Context, run pipeline.RunID, batch []pipeline.Recorded, texts []rowText, works []pipeline.WorkLink, missing bool) (used bool, err error) {
-	var written map[pipeline.KeyID]int64
 	used, err = l.recordBatchWith(ctx, run, batch, texts, missing, func(tx *qtx, bs *batchState) error {
 		var next sql.NullInt64
 		if err := tx.QueryRowContext(ctx, "SELECT max(position) FROM run_works WHERE run_id = ?", string(run)).Scan(&next); err != nil {
@@ -195,17 +194,8 @@ func (l *Ledger) recordWorks(ctx context.Context, run pipeline.RunID, batch []pi
 			}
 			pos++
 		}
-		written = make(map[pipeline.KeyID]int64, len(bs.known))
-		for k, st := range bs.known {
-			written[k] = st.id
-		}
 		return nil
 	})
-	if err == nil {
-		for k, id := range written {
-			l.ids.put(k, id)
-		}
-	}
 	return used, err
 }
 
@@ -328,8 +318,8 @@ func (l *Ledger) nodeIDs(ctx context.Context, tx *qtx, w *pipeline.Work, bs *bat
 			ids[i] = st.id
 			continue
 		}
-		if id, ok := l.ids.take(n.Key); ok {
-			ids[i] = id
+		if st, ok := l.recent.get(n.Key); ok && (st.status != pipeline.NodeOK || n.Status != pipeline.NodeOK || st.outputHash == n.Output) {
+			ids[i] = st.id
 			continue
 		}
 		rest = append(rest, i)

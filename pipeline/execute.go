@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strconv"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -135,6 +136,9 @@ type Session struct {
 	// the run's works so far.
 	inWork      bool
 	nodeOrdinal int
+	// held caches, per stage name and version, whether the recorder held
+	// a node of it when the run first met the stage (StageHolder).
+	held map[string]bool
 }
 
 // Begin records a run as running and returns its session.
@@ -434,6 +438,7 @@ type prepared struct {
 	refs    []InputRef
 	inputs  []Values
 	missed  bool // a batched look-up already found no such key
+	fresh   bool // of a stage version the recorder held none of: not looked up
 }
 
 // done is a worker's answer for one node.
@@ -554,6 +559,18 @@ func (s *Session) schedule(ctx context.Context, g *Graph) (*Report, error) {
 		}
 		s.flights[p.key] = &owned[i]
 		if probing {
+			fresh, err := s.fresh(ctx, p.name, p.version)
+			if err != nil {
+				if firstErr == nil {
+					firstErr = err
+				}
+				return
+			}
+			if fresh {
+				p.missed, p.fresh = true, true
+				runnable = append(runnable, i)
+				return
+			}
 			unprobed = append(unprobed, i)
 		} else {
 			runnable = append(runnable, i)
@@ -695,6 +712,29 @@ func (s *Session) schedule(ctx context.Context, g *Graph) (*Report, error) {
 	return rep, firstErr
 }
 
+// fresh says whether the recorder held no node of the stage version when
+// the run first met it (StageHolder); a recorder that cannot say holds
+// everything.
+func (s *Session) fresh(ctx context.Context, stage string, version int) (bool, error) {
+	sh, ok := s.rec.(StageHolder)
+	if !ok || s.opts.ReuseOnly {
+		return false, nil
+	}
+	k := stage + "/" + strconv.Itoa(version)
+	held, ok := s.held[k]
+	if !ok {
+		var err error
+		if held, err = sh.HoldsStage(ctx, s.opts.Tool, stage, version); err != nil {
+			return false, fmt.Errorf("look up stage %s: %w", k, err)
+		}
+		if s.held == nil {
+			s.held = map[string]bool{}
+		}
+		s.held[k] = held
+	}
+	return !held, nil
+}
+
 // prune forgets the flights of earlier chunks that the ledger now holds
 // (all of them when nodes are written directly), and any left unsettled
 // by an error.
@@ -797,7 +837,7 @@ func (c *chunk) compute(i int) done {
 		nr.Status, nr.Outputs, nr.OutputHash = NodeOK, outputs, hash
 	}
 	if batched {
-		return done{i: i, out: out, rec: Recorded{Node: nr, Action: out.Action, OutputsText: enc, InWork: s.inWork}, hasRec: true}
+		return done{i: i, out: out, rec: Recorded{Node: nr, Action: out.Action, OutputsText: enc, InWork: s.inWork, New: p.fresh}, hasRec: true}
 	}
 	if err := s.rec.RecordNode(c.ctx, s.info.ID, nr, out.Action); err != nil {
 		return done{i: i, err: fmt.Errorf("record %s (%s): %w", p.key, nd.Label, err)}

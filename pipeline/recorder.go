@@ -107,6 +107,21 @@ type Recorded struct {
 	// InWork marks a node recorded as part of a work (WorkRecorder): it
 	// gets no link to the run of its own, the work links it.
 	InWork bool
+	// New marks a computed node whose stage version the recorder held no
+	// node of when the run began (StageHolder): its key was not looked
+	// up, and the recorder may take it as absent (if another writer
+	// recorded it since, the write fails on the key and is made again,
+	// reading every key).
+	New bool
+}
+
+// StageHolder is a recorder that says whether it holds any node of a
+// stage version described with a tool identity. A key is the hash of a
+// description that names all three, so no key of a kind the recorder does
+// not hold can be found: a run skips looking them up (a cold scan of a
+// new study or under a new release looks up nothing).
+type StageHolder interface {
+	HoldsStage(ctx context.Context, tool, stage string, version int) (bool, error)
 }
 
 // BatchRecorder is a Recorder that can store many nodes of a run in one
