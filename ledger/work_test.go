@@ -167,3 +167,32 @@ func TestWorkKeyConflict(t *testing.T) {
 		t.Errorf("a different work under a recorded key: %v", err)
 	}
 }
+
+// A node marked New (its stage version was not held when the run began)
+// that another run has recorded since is written once: the batch fails on
+// the key, is written again reading every key, and keeps the stored row.
+func TestNewNodeAlreadyRecorded(t *testing.T) {
+	l, _ := openTest(t)
+	ctx := context.Background()
+	held, err := l.HoldsStage(ctx, testTool, "model", 3)
+	if err != nil || held {
+		t.Fatalf("an empty ledger holds stage model/3: %v %v", held, err)
+	}
+	run1 := beginRun(t, l, "r1", testClock)
+	a := mkNode(t, "model", pipeline.Values{"alpha": num(1)}, pipeline.Values{"V0": num(2)})
+	if err := l.RecordNodes(ctx, run1, []pipeline.Recorded{{Node: a, Action: pipeline.Computed}}); err != nil {
+		t.Fatal(err)
+	}
+	if held, _ := l.HoldsStage(ctx, testTool, "model", 3); !held {
+		t.Error("after recording a model/3 node the ledger does not hold the stage")
+	}
+	run2 := beginRun(t, l, "r2", testClock)
+	before := rowCounts(t, l)
+	if err := l.RecordNodes(ctx, run2, []pipeline.Recorded{{Node: a, Action: pipeline.Computed, New: true}}); err != nil {
+		t.Fatalf("a New node already recorded: %v", err)
+	}
+	after := rowCounts(t, l)
+	if after["nodes"] != before["nodes"] {
+		t.Errorf("%d node rows written for a node already recorded", after["nodes"]-before["nodes"])
+	}
+}
