@@ -81,6 +81,11 @@ func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch 
 				return err
 			}
 		}
+		for k := range bs.kinds {
+			if err := insertKind(ctx, tx, k); err != nil {
+				return err
+			}
+		}
 		if after != nil {
 			if err := after(tx, bs); err != nil {
 				return err

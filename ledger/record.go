@@ -179,6 +179,7 @@ type batchState struct {
 	now     string // the batch's recorded_at
 	known   map[pipeline.KeyID]storedNode
 	noLink  bool                    // the node being recorded belongs to a work: no link of its own
+	kinds   map[nodeKind]bool       // of the nodes inserted
 	absent  map[pipeline.KeyID]bool // keys known not to be stored
 	// Rows to insert at the end of the batch, many per statement.
 	nodeRows, inputRows, linkRows [][]any
@@ -358,6 +359,10 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 		string(rec.Status), rec.Error, int64(rec.Duration), now}
 	var id int64
 	if bs != nil {
+		if bs.kinds == nil {
+			bs.kinds = map[nodeKind]bool{}
+		}
+		bs.kinds[nodeKind{tool, rec.Stage, rec.Version}] = true
 		id = bs.nextID
 		bs.nextID++
 		row[0] = id
@@ -368,6 +373,9 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 		bs.known[rec.Key] = storedNode{id: id, status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, tool: tool, version: rec.Version, params: text.params}
 		delete(bs.absent, rec.Key)
 		return id, nil
+	}
+	if err := insertKind(ctx, tx, nodeKind{tool, rec.Stage, rec.Version}); err != nil {
+		return 0, err
 	}
 	res, err := tx.ExecContext(ctx, "INSERT INTO nodes ("+nodeInsertColumns+") VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", row...)
 	if err != nil {
@@ -627,4 +635,18 @@ func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bo
 		return nil, fmt.Errorf("ledger: close abandoned runs: %w", err)
 	}
 	return closed, nil
+}
+
+// nodeKind is a node's tool, stage and version (table node_kinds).
+type nodeKind struct {
+	tool, stage string
+	version     int
+}
+
+// insertKind records that the ledger holds a node of kind k.
+func insertKind(ctx context.Context, tx *qtx, k nodeKind) error {
+	if _, err := tx.ExecContext(ctx, "INSERT OR IGNORE INTO node_kinds (tool, stage, stage_version) VALUES (?, ?, ?)", k.tool, k.stage, k.version); err != nil {
+		return fmt.Errorf("record node kind: %w", err)
+	}
+	return nil
 }

@@ -2,7 +2,8 @@
 -- nodes. A key is described with its tool, stage and version, so a node
 -- of a kind the ledger has never held cannot be recorded: a run skips
 -- looking such keys up (a cold scan of a new study or a new release looks
--- up nothing). Kept by a trigger, whatever writes the node.
+-- up nothing). Written with the nodes (insertNodeIn; a batch once per kind
+-- it holds: a trigger would cost every node insert a statement).
 CREATE TABLE node_kinds (
     tool          TEXT NOT NULL,
     stage         TEXT NOT NULL,
@@ -12,8 +13,3 @@ CREATE TABLE node_kinds (
 
 INSERT OR IGNORE INTO node_kinds (tool, stage, stage_version)
     SELECT DISTINCT tool, stage, stage_version FROM nodes;
-
-CREATE TRIGGER nodes_kind AFTER INSERT ON nodes
-BEGIN
-    INSERT OR IGNORE INTO node_kinds (tool, stage, stage_version) VALUES (NEW.tool, NEW.stage, NEW.stage_version);
-END;

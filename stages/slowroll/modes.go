@@ -43,10 +43,11 @@ import (
 // linearisation inside the horizon oscillates with frequency 2x per
 // e-fold, and the error of an explicit Runge–Kutta step on the smooth
 // solution grows with h x, so the step there scales like 1/x although
-// the solution barely changes: each unit of x inside the horizon costs
-// about a dozen steps at the default tolerances. The modes therefore
-// start as late as the adiabatic initial data allow (DepthIn = 20, see
-// adiabatic.go), where they cost about a third of their steps.
+// the solution barely changes: at the default tolerances each unit of x
+// inside the horizon costs about 25 steps (in de Sitter a mode takes
+// 1634 steps from x = 100 to 1e-4, 442 from x = 10; TestModesDeSitter).
+// The modes therefore start as late as the adiabatic initial data allow,
+// at DepthIn = 10 (see adiabatic.go).
 //
 // Spectra (M_p = 1): P_s = k³|v/z|²/(2π²) = k² e^{2s}/(4π² z²) and
 // P_t = 2 polarisations × 4 k³|v/a|²/(2π²) = 2k² e^{2s_t}/(π² a²); in de
@@ -59,7 +60,11 @@ import (
 // once for all of them. A mode joins at its start (the integration is
 // restarted with the longer state) and is read off at its own time by an
 // event on the dense output of the step that reaches it; modes read off
-// earlier ride along to the end of the last one.
+// earlier ride along to the end of the last one. Each joining mode needs
+// the short steps inside the horizon again, so the five modes of a
+// stencil take about 1140 joint steps against 5 × 440 apart: the saving
+// is in the background, looked up (dense output and potential) once per
+// evaluation instead of five times.
 
 var (
 	ln4pi2     = math.Log(4 * math.Pi * math.Pi)
