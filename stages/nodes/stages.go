@@ -14,7 +14,7 @@ import (
 const (
 	ModelVersion     = 2 // 2: alpha-attractor field ranges adapt to alpha
 	CanonicalVersion = 3 // 2: quadrature of sqrt(K) in ln x on a positive native domain; 3: a quadrature at its rounding floor near a pole is accepted
-	SlowRollVersion  = 3 // 2: PhiAt on a shared e-fold bracket with a final Newton correction (second-order calibration, exact start); 3: the bracket's steps follow the slope's scale and N's growth
+	SlowRollVersion  = 4 // 2: PhiAt on a shared e-fold bracket with a final Newton correction (second-order calibration, exact start); 3: the bracket's steps follow the slope's scale and N's growth; 4: exact method: modes start at k/(aH) = 10 with eighth-order adiabatic data, integrated together (background start moved accordingly)
 	ReheatVersion    = 4 // 2: secant steps for the self-consistent N*; PhiAt as in slow roll 2; 3: PhiAt as in slow roll 3; 4: self-consistency checks, phi_end of the end used
 	CompareVersion   = 1
 )

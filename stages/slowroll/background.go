@@ -82,6 +82,14 @@ type modeCoeffs struct {
 	h2           float64 // H²
 }
 
+// modeSeries holds the Taylor coefficients in N (the k-th is the k-th
+// derivative over k!) of the background at a mode's start.
+type modeSeries struct {
+	eps [4]float64 // epsilon_H
+	zs  [2]float64 // Z_s = z”/z/(aH)² of the scalar mode
+	h2  float64    // H²
+}
+
 // coeffsAt is the part of flowAt the mode equations need, without
 // logarithms.
 func coeffsAt(m *model.Model, phi, pi float64) modeCoeffs {
@@ -94,6 +102,55 @@ func coeffsAt(m *model.Model, phi, pi float64) modeCoeffs {
 	piNN := pi*piN*(pi+u) - q*(piN+(eta-u*u)*pi)
 	d1 := piN / pi
 	return modeCoeffs{eps: eps, d1: d1, d1N: piNN/pi - d1*d1, h2: j.V / q}
+}
+
+// seriesAt returns the Taylor coefficients in N of epsilon_H (to third
+// order) and of Z_s = z”/z/(aH)² (to first) at the state (phi, pi), for
+// the adiabatic start of a mode (see adiabatic.go), and H². With
+// u = V'/V, eta = V”/V, xi = V”'/V, w = eta - u² (so du/dN = w pi and
+// dw/dN = (xi - eta u - 2uw) pi), differentiating pi_NN of flowAt once
+// more gives
+//
+//	pi_NNN = (pi_N² + pi pi_NN)(pi + u) + 2 pi pi_N (pi_N + w pi)
+//	         - (3 - eps)(pi_NN + w_N pi + w pi_N),
+//
+// and then, with delta_1 = pi_N/pi,
+//
+//	epsilon_H' = pi pi_N, epsilon_H” = pi_N² + pi pi_NN,
+//	epsilon_H”' = 3 pi_N pi_NN + pi pi_NNN,
+//	delta_1”  = pi_NNN/pi - 3 delta_1 delta_1' - delta_1³,
+//	Z_s       = (1 + delta_1)(2 - epsilon_H + delta_1) + delta_1',
+//	Z_s'      = delta_1'(2 - epsilon_H + delta_1) + (1 + delta_1)(delta_1' - epsilon_H') + delta_1”.
+func seriesAt(m *model.Model, phi, pi float64) modeSeries {
+	j := m.At(phi)
+	u := j.D1 / j.V
+	eta := j.D2 / j.V
+	xi := j.D3 / j.V
+	w := eta - u*u
+	wN := (xi - eta*u - 2*u*w) * pi
+	eps := 0.5 * pi * pi
+	q := 3 - eps
+	piN := -q * (pi + u)
+	piNN := pi*piN*(pi+u) - q*(piN+w*pi)
+	piNNN := (piN*piN+pi*piNN)*(pi+u) + 2*pi*piN*(piN+w*pi) - q*(piNN+wN*pi+w*piN)
+	d1 := piN / pi
+	d1N := piNN/pi - d1*d1
+	d1NN := piNNN/pi - 3*d1*d1N - d1*d1*d1
+	e1 := pi * piN
+	return modeSeries{
+		eps: [4]float64{eps, e1, 0.5 * (piN*piN + pi*piNN), (3*piN*piNN + pi*piNNN) / 6},
+		zs:  [2]float64{(1+d1)*(2-eps+d1) + d1N, d1N*(2-eps+d1) + (1+d1)*(d1N-e1) + d1NN},
+		h2:  j.V / q,
+	}
+}
+
+// series implements modeSystem.
+func (b *background) series(N float64) (modeSeries, bool) {
+	var y [2]float64
+	if err := b.dense.At(N, y[:]); err != nil {
+		return modeSeries{}, false
+	}
+	return seriesAt(b.m, y[0], y[1]), true
 }
 
 // coeffs implements modeSystem.

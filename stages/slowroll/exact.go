@@ -21,11 +21,12 @@ import (
 //     running out of e-folds are events or checks that give an
 //     *InflationError with the values.
 //   - Modes: the Bunch–Davies amplitude |v| from the Ermakov–Pinney
-//     equation in the logarithmic variable s = ln(|v| sqrt(2k)/z), which
+//     equation in the logarithmic variable s = ln(|v| sqrt(2k)), which
 //     neither oscillates inside the horizon nor grows without bound
-//     outside it; scalar and tensor modes of one k in one 4-dimensional
-//     system; adiabatic initial data of second order at DepthIn; the
-//     spectrum read at DepthOut.
+//     outside it; the scalar and tensor modes of the five k of the
+//     stencil in one system on one background lookup per evaluation,
+//     each mode joining at DepthIn with adiabatic initial data to eighth
+//     order in (aH/k)² (adiabatic.go) and read off at DepthOut.
 //   - Observables: a five-point stencil in ln k around k_* = aH.
 //   - Normalisation: P_s is returned for V0 = 1 and scales with V0.
 
@@ -33,15 +34,20 @@ import (
 // zero field, means the documented default.
 type ExactSettings struct {
 	// RTol and ATol are the integrator tolerances of the background and of
-	// the modes. Defaults 1e-10 and 1e-12: tightening both a hundredfold,
-	// with both depths and the settling, moves n_s by at most 7e-11,
-	// alpha_s by 2e-10 and r by 7e-10 relative over the built-in families
+	// the modes. Defaults 1e-10 and 1e-12: against a reference with both
+	// tightened a hundredfold, the modes started at DepthIn = 100, read
+	// off at DepthOut = 1e-6 and the background settled for 10 e-folds,
+	// the defaults are off by at most 9e-11 in n_s, 2e-10 in alpha_s,
+	// 2e-12 in n_t and 8e-10 relative in r over the built-in families
 	// (TestExactConvergence), far below the 1e-5 the predictions need, at
-	// about 55000 right-hand-side evaluations per prediction.
+	// about 12500 right-hand-side evaluations per prediction (6000 of
+	// them the background's).
 	RTol, ATol float64
 	// DepthIn is k/(aH) where each mode starts from the Bunch–Davies
-	// (adiabatic) state; default 100, where the neglected adiabatic terms
-	// are about 1e-12 of the amplitude.
+	// (adiabatic) state; default 10, where the adiabatic series of
+	// adiabatic.go is accurate to about 1e-11 (its terms shrink until
+	// order x). Below about 8 the truncated series limits the accuracy
+	// (at 8: 1e-9 in n_t); the cost of a mode grows linearly with DepthIn.
 	DepthIn float64
 	// DepthOut is k/(aH) where each mode's spectrum is read off; default
 	// 1e-4, where the residual super-horizon evolution of the curvature
@@ -62,7 +68,9 @@ type ExactSettings struct {
 	// MaxEfolds bounds the background integration; default the e-folds
 	// needed plus max(100, the e-folds needed).
 	MaxEfolds float64
-	// MaxSteps bounds each integration's steps; default 200000.
+	// MaxSteps bounds the steps of the background integration and of each
+	// stretch of the mode integration between two mode starts; default
+	// 200000.
 	MaxSteps int
 	// SlowRoll is passed to the slow-roll e-fold count that places the
 	// initial point.
@@ -82,7 +90,7 @@ type exactConfig struct {
 }
 
 func (s *ExactSettings) config() (exactConfig, error) {
-	c := exactConfig{rtol: 1e-10, atol: 1e-12, depthIn: 100, depthOut: 1e-4, h: 1, early: 6, maxSteps: 200000}
+	c := exactConfig{rtol: 1e-10, atol: 1e-12, depthIn: 10, depthOut: 1e-4, h: 1, early: 6, maxSteps: 200000}
 	if s == nil {
 		return c, nil
 	}
@@ -133,7 +141,7 @@ func (c *exactConfig) need(N float64) float64 {
 // ExactStats counts the work of an exact prediction.
 type ExactStats struct {
 	BackgroundSteps int // accepted steps of the background
-	ModeSteps       int // accepted steps of the five mode integrations
+	ModeSteps       int // accepted steps of the joint integration of the five modes
 	Rejected        int // rejected steps, background and modes
 	Evals           int // right-hand-side evaluations, background and modes
 }
@@ -199,9 +207,9 @@ func SolveExact(m *model.Model, NMax float64, s *ExactSettings) (*ExactSolution,
 // Method. The background (see background) is integrated with e-folds as
 // the clock from the attractor, with the end located as an event. The
 // pivot is k_* = aH at N e-folds before the end. Five modes
-// ln k = ln k_* + j h, j = -2..2, h = StepLnK, are each integrated from
-// k/(aH) = DepthIn to DepthOut (see the mode equations in modes.go),
-// giving f_j = ln P(k_j), and
+// ln k = ln k_* + j h, j = -2..2, h = StepLnK, are integrated together,
+// each from k/(aH) = DepthIn to DepthOut (see the mode equations in
+// modes.go), giving f_j = ln P(k_j), and
 //
 //	n_s - 1 = (f_-2 - 8f_-1 + 8f_1 - f_2)/(12h),
 //	alpha_s = (-f_-2 + 16f_-1 - 30f_0 + 16f_1 - f_2)/(12h²),
@@ -298,7 +306,7 @@ func (es *ExactSolution) At(N float64) (ExactResult, error) {
 	res.Stats.BackgroundSteps = bg.stats.Steps
 	res.Stats.Rejected = bg.stats.Rejected
 	res.Stats.Evals = bg.stats.Evals
-	var fs, ft [5]float64
+	var ms [5]modeSpec
 	lnIn, lnOut := math.Log(cfg.depthIn), math.Log(cfg.depthOut)
 	for j := -2; j <= 2; j++ {
 		lnk := lnkPiv + float64(j)*cfg.h
@@ -314,14 +322,19 @@ func (es *ExactSolution) At(N float64) (ExactResult, error) {
 		if err != nil {
 			return ExactResult{}, tooFew(fmt.Sprintf("mode %d of the stencil does not reach k/(aH) = %g before the end: the pivot is too close to the end", j, cfg.depthOut), err)
 		}
-		mo, err := solveModes(bg, lnk, N0, N1, cfg.rtol, cfg.atol, cfg.maxSteps, false)
-		if err != nil {
-			return ExactResult{}, fmt.Errorf("%s: mode %d of the stencil at N = %g: %w", desc, j, N, err)
-		}
-		fs[j+2], ft[j+2] = mo.lnPs, mo.lnPt
-		res.Stats.ModeSteps += mo.res.Stats.Steps
-		res.Stats.Rejected += mo.res.Stats.Rejected
-		res.Stats.Evals += mo.res.Stats.Evals
+		ms[j+2] = modeSpec{lnk: lnk, N0: N0, N1: N1}
+	}
+	var mo [5]modeOut
+	st, err := solveStencil(bg, ms[:], modeTol{rtol: cfg.rtol, atol: cfg.atol, maxSteps: cfg.maxSteps}, mo[:])
+	res.Stats.ModeSteps = st.Steps
+	res.Stats.Rejected += st.Rejected
+	res.Stats.Evals += st.Evals
+	if err != nil {
+		return ExactResult{}, fmt.Errorf("%s: the modes of the stencil at N = %g: %w", desc, N, err)
+	}
+	var fs, ft [5]float64
+	for i := range mo {
+		fs[i], ft[i] = mo[i].lnPs, mo[i].lnPt
 	}
 	h := cfg.h
 	d1 := func(f [5]float64) float64 { return (f[0] - 8*f[1] + 8*f[3] - f[4]) / (12 * h) }

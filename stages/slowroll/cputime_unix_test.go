@@ -1,0 +1,18 @@
+//go:build unix
+
+package slowroll
+
+import (
+	"syscall"
+	"time"
+)
+
+// exProcessCPU returns the CPU time (user and system) the process has
+// used, garbage collection included, and true.
+func exProcessCPU() (time.Duration, bool) {
+	var ru syscall.Rusage
+	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err != nil {
+		return 0, false
+	}
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano()), true
+}
