@@ -117,3 +117,38 @@ func BenchmarkPlot1e5(b *testing.B) {
 	}
 	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/plot")
 }
+
+// BenchmarkExactScanJobs: a cold exact-method scan (the Mukhanov–Sasaki
+// modes, milliseconds a point) run with -j 1 and with -j 2 into fresh
+// ledgers, once each per iteration. Target: j2/j1 speed-up above 1.7 on
+// 2 cores (the numerics dominate; the writer must not serialise them).
+func BenchmarkExactScanJobs(b *testing.B) {
+	const points = 60
+	text := fmt.Sprintf("[slow_roll]\nmethod = \"exact\"\n\n[[reheating]]\nhistory = \"fixed-efolds\"\nN_star = 55\n\n[[constraint]]\nuse = \"cmb-combined-2025\"\n\n[[model]]\nfamily = \"e-model\"\nalpha = {log = [0.1, 10], points = %d}\n", points)
+	var t1, t2 time.Duration
+	for i := 0; i < b.N; i++ {
+		for _, j := range []string{"1", "2"} {
+			b.StopTimer()
+			h := newHarness(&testing.T{})
+			dir := b.TempDir()
+			h.dir, h.ledger = dir, filepath.Join(dir, "l.db")
+			p := filepath.Join(dir, "exact.toml")
+			if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+				b.Fatal(err)
+			}
+			b.StartTimer()
+			start := time.Now()
+			if _, errs, code := h.run("run", p, "-j", j); code != 0 {
+				b.Fatal(errs)
+			}
+			if j == "1" {
+				t1 += time.Since(start)
+			} else {
+				t2 += time.Since(start)
+			}
+		}
+	}
+	b.ReportMetric(t1.Seconds()/float64(b.N), "j1-s")
+	b.ReportMetric(t2.Seconds()/float64(b.N), "j2-s")
+	b.ReportMetric(t1.Seconds()/t2.Seconds(), "j2/j1-speedup")
+}
