@@ -15,9 +15,11 @@ import "math"
 // polynomials in Z, epsilon_H and their derivatives. It is the adiabatic
 // expansion |v|² = 1/(2W), W² = ω² - (1/2)[W”/W - (3/2)(W'/W)²]
 // (conformal time, ω² = k² - z”/z) of Parker & Fulling 1974, PRD 9, 341,
-// eq. (2.9)–(2.11), and Birrell & Davies 1982, "Quantum Fields in Curved
-// Space", Sect. 3.5 (eq. numbers from memory), written for s = -(1/2)
-// ln(W/k).
+// and Birrell & Davies 1982, "Quantum Fields in Curved Space", Sect. 3.5
+// (the section from memory), written for s = -(1/2) ln(W/k): W² = ω² -
+// (1/2)[...] turns into the equation above with W = k e^{-2s}
+// (derived in modes.go's terms). The series itself is checked against
+// closed forms, not against those texts (adiabatic_test.go).
 //
 // The coefficients follow order by order from the equation solved for
 // the s of its linear term,
