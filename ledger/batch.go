@@ -3,6 +3,7 @@ package ledger
 import (
 	"context"
 	"database/sql"
+	"errors"
 	"fmt"
 	"runtime"
 	"strings"
@@ -99,6 +100,9 @@ func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch 
 		// works (ok rows never change; ids never do).
 		for k, st := range committed.known {
 			l.recent.put(k, st)
+		}
+		for _, k := range committed.healed {
+			l.suspect.take(k)
 		}
 	}
 	return used, err
@@ -305,6 +309,12 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 			start := len(out)
 			for rows.Next() {
 				row, err := scanNode(rows)
+				if errors.Is(err, ErrIntegrity) && row.rec.Key != "" {
+					// An edited row is never served: the node is computed
+					// again and its row rewritten (see suspect).
+					l.suspect.put(row.rec.Key, err.Error())
+					continue
+				}
 				if err != nil {
 					rows.Close()
 					return err
@@ -324,11 +334,18 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 			if err := loadInputs(ctx, tx, found); err != nil {
 				return err
 			}
+			kept := out[:start]
 			for i := start; i < len(out); i++ {
 				if err := finishNode(&out[i]); err != nil {
-					return err
+					if !errors.Is(err, ErrIntegrity) {
+						return err
+					}
+					l.suspect.put(out[i].rec.Key, err.Error())
+					continue
 				}
+				kept = append(kept, out[i])
 			}
+			out = kept
 		}
 		return nil
 	})

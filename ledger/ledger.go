@@ -47,6 +47,10 @@ type Ledger struct {
 	// recent holds the rows recent batches wrote or read (committed): the
 	// inputs of the next batches' nodes and the nodes of their works.
 	recent keyMemo[storedNode]
+	// suspect holds the keys whose rows a look-up found edited, with the
+	// problem: taken as missing, computed again, and rewritten (the row as
+	// found kept in quarantine) when the computation is recorded.
+	suspect keyMemo[string]
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)

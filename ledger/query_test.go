@@ -229,8 +229,13 @@ func TestReadsDetectDamagedRows(t *testing.T) {
 			if _, err := l.db.Exec(tc.sql); err != nil {
 				t.Fatal(err)
 			}
-			if _, _, err := l.Lookup(ctx, b.Key); !errors.Is(err, ErrIntegrity) || !strings.Contains(err.Error(), string(b.Key)) {
-				t.Errorf("Lookup: %v, want ErrIntegrity naming %s", err, b.Key)
+			// A look-up never serves the row: it is a miss, to be computed
+			// again (and the row rewritten, TestEditedRowIsRecomputed).
+			if _, found, err := l.Lookup(ctx, b.Key); found || err != nil {
+				t.Errorf("Lookup: found %v, %v; want a miss", found, err)
+			}
+			if _, ok := l.suspect.get(b.Key); !ok {
+				t.Errorf("Lookup did not remember %s as edited", b.Key)
 			}
 			if _, _, err := l.Node(ctx, b.Key); !errors.Is(err, ErrIntegrity) {
 				t.Errorf("Node: %v, want ErrIntegrity", err)
@@ -278,5 +283,39 @@ func TestOlderKeyFormat(t *testing.T) {
 	}
 	if _, _, err := l.Node(ctx, old.Key); !errors.Is(err, ErrIntegrity) {
 		t.Errorf("Node of a damaged old-format row: %v, want ErrIntegrity", err)
+	}
+}
+
+// A row found edited by a look-up is computed again by the run: the row is
+// rewritten with what the run computed (and read back intact), and the
+// row as found is kept in quarantine with what was wrong with it.
+func TestEditedRowIsRecomputed(t *testing.T) {
+	for _, tc := range []struct{ name, sql string }{
+		{"outputs", "UPDATE nodes SET outputs = 'y f 2.5 1\n' WHERE stage = 'canonical'"},
+		{"tool", "UPDATE nodes SET tool = tool || ' ' WHERE stage = 'canonical'"},
+		{"input", "UPDATE node_inputs SET input = (SELECT id FROM nodes WHERE stage = 'slowroll') WHERE node = (SELECT id FROM nodes WHERE stage = 'canonical')"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			l, _ := openTest(t)
+			_, b, _, _ := diamond(t, l)
+			if _, err := l.db.Exec(tc.sql); err != nil {
+				t.Fatal(err)
+			}
+			if _, found, _ := l.Lookup(ctx, b.Key); found {
+				t.Fatal("an edited row was served")
+			}
+			run := beginRun(t, l, "r2", testClock)
+			if err := l.RecordNodes(ctx, run, []pipeline.Recorded{{Node: b, Action: pipeline.Computed}}); err != nil {
+				t.Fatal(err)
+			}
+			got, found, err := l.Lookup(ctx, b.Key)
+			if err != nil || !found || got.OutputHash != b.OutputHash {
+				t.Fatalf("after the re-computation: found %v, %v, hash %s (want %s)", found, err, got.OutputHash, b.OutputHash)
+			}
+			q, err := l.Quarantined(ctx, run)
+			if err != nil || len(q) != 1 || q[0].ID != string(b.Key) || !strings.Contains(q[0].What, "integrity") {
+				t.Errorf("quarantine: %v %v", q, err)
+			}
+		})
 	}
 }

@@ -70,6 +70,11 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 	err := l.inReadTx(ctx, func(tx *qtx) error {
 		var err error
 		row, found, err = loadRow(ctx, tx, key)
+		if errors.Is(err, ErrIntegrity) {
+			// Never served: computed again, and the row rewritten.
+			l.suspect.put(key, err.Error())
+			found, err = false, nil
+		}
 		return err
 	})
 	if err != nil {
@@ -180,6 +185,7 @@ type batchState struct {
 	known   map[pipeline.KeyID]storedNode
 	noLink  bool                    // the node being recorded belongs to a work: no link of its own
 	kinds   map[nodeKind]bool       // of the nodes inserted
+	healed  []pipeline.KeyID        // suspect rows rewritten in this batch
 	absent  map[pipeline.KeyID]bool // keys known not to be stored
 	// Rows to insert at the end of the batch, many per statement.
 	nodeRows, inputRows, linkRows [][]any
@@ -197,7 +203,13 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 	if err != nil {
 		return err
 	}
-	if action != pipeline.Reused && exists {
+	// A row a look-up found edited is not compared with what replaces it.
+	suspect := ""
+	if action == pipeline.Computed && exists && old.status == pipeline.NodeOK {
+		// Kept until the write commits (a batch may be written twice).
+		suspect, _ = l.suspect.get(rec.Key)
+	}
+	if action != pipeline.Reused && exists && suspect == "" {
 		if err := old.sameDescription(rec, text.params); err != nil {
 			return err
 		}
@@ -212,6 +224,21 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 				return err
 			}
 		case old.status == pipeline.NodeOK:
+			if suspect != "" {
+				// A look-up found the row edited: keep it as found, and
+				// rewrite it with what this run computed.
+				if err := l.quarantine(ctx, tx, run, old.id, rec, text, suspect); err != nil {
+					return err
+				}
+				if bs != nil {
+					bs.healed = append(bs.healed, rec.Key)
+					old.outputHash, old.params, old.version, old.stage = rec.OutputHash, text.params, rec.Version, rec.Stage
+					old.tool, _ = describedTool(rec.Description)
+					old.description = sql.NullString{}
+					bs.known[rec.Key] = old
+				}
+				break
+			}
 			if old.outputHash != rec.OutputHash {
 				return fmt.Errorf("%w: conflicting outputs for key %s: the ledger holds %s, this computation produced %s (is the stage deterministic, and was its version bumped when its numerics changed?)",
 					ErrIntegrity, rec.Key, old.outputHash, rec.OutputHash)
@@ -649,4 +676,58 @@ func insertKind(ctx context.Context, tx *qtx, k nodeKind) error {
 		return fmt.Errorf("record node kind: %w", err)
 	}
 	return nil
+}
+
+// quarantine keeps node row id as it is now, with the problem a look-up
+// found with it, and rewrites it with rec (computed again by run).
+func (l *Ledger) quarantine(ctx context.Context, tx *qtx, run pipeline.RunID, id int64, rec pipeline.NodeRecord, text rowText, problem string) error {
+	now := formatTime(l.now())
+	if _, err := tx.ExecContext(ctx, `INSERT INTO quarantine (node, key, params, outputs, output_hash, problem, run_id, found_at)
+		SELECT id, key, params, outputs, output_hash, ?, ?, ? FROM nodes WHERE id = ?`, problem, string(run), now, id); err != nil {
+		return fmt.Errorf("quarantine node %s: %w", rec.Key, err)
+	}
+	hash, err := outputHashArg(rec)
+	if err != nil {
+		return err
+	}
+	tool, err := describedTool(rec.Description)
+	if err != nil {
+		return fmt.Errorf("%w: description: %v", ErrIntegrity, err)
+	}
+	if _, err := tx.ExecContext(ctx, `UPDATE nodes SET tool = ?, stage = ?, stage_version = ?, params = ?, description = NULL, outputs = ?, output_hash = ?,
+		status = 'ok', error = '', recorded_at = ? WHERE id = ?`,
+		tool, rec.Stage, rec.Version, text.params, text.outputs, hash, now, id); err != nil {
+		return fmt.Errorf("rewrite node %s: %w", rec.Key, err)
+	}
+	// Its inputs as the computation named them.
+	if _, err := tx.ExecContext(ctx, "DELETE FROM node_inputs WHERE node = ?", id); err != nil {
+		return fmt.Errorf("rewrite node %s inputs: %w", rec.Key, err)
+	}
+	for i, in := range rec.Inputs {
+		if _, err := tx.ExecContext(ctx, "INSERT INTO node_inputs (node, position, input) SELECT ?, ?, id FROM nodes WHERE key = ?", id, i, keyArg(in.Key)); err != nil {
+			return fmt.Errorf("rewrite node %s input %d: %w", rec.Key, i, err)
+		}
+	}
+	return nil
+}
+
+// Quarantined lists the node rows run found edited and rewrote (table
+// quarantine): each node's key and what was wrong with the row.
+func (l *Ledger) Quarantined(ctx context.Context, run pipeline.RunID) ([]Problem, error) {
+	var out []Problem
+	rows, err := l.rdb.QueryContext(ctx, "SELECT key, problem FROM quarantine WHERE run_id = ? ORDER BY id", string(run))
+	if err != nil {
+		return nil, fmt.Errorf("ledger: quarantine of run %s: %w", run, err)
+	}
+	defer rows.Close()
+	for rows.Next() {
+		var key []byte
+		var p Problem
+		if err := rows.Scan(&key, &p.What); err != nil {
+			return nil, err
+		}
+		p.Table, p.ID = "nodes", digestText(key)
+		out = append(out, p)
+	}
+	return out, rows.Err()
 }

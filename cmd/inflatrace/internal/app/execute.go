@@ -237,6 +237,12 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 	if runErr != nil {
 		return nil, runErr
 	}
+	if q, err := l.Quarantined(context.WithoutCancel(ctx), id); err == nil {
+		for _, p := range q {
+			fmt.Fprintf(e.Stderr, "warning: node %s was found edited (%s): computed again and its row rewritten; the row as found is kept in table quarantine (\"inflatrace verify --all\" checks the whole ledger)\n",
+				pipeline.KeyID(p.ID).Short(), p.What)
+		}
+	}
 	rep := sess.Totals
 	rep.Status = status
 	out.Report = &rep

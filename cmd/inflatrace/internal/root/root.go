@@ -4,6 +4,7 @@ package root
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"os/signal"
 	"syscall"
@@ -84,6 +85,10 @@ func Execute(ctx context.Context, env *app.Env, args []string) int {
 	err := root.ExecuteContext(ctx)
 	if err != nil {
 		fmt.Fprintf(env.Stderr, "inflatrace: %v\n", err)
+		if errors.Is(err, ledger.ErrIntegrity) {
+			fmt.Fprintln(env.Stderr, "inflatrace: the ledger holds rows edited after they were written: \"inflatrace verify --all\" lists them; "+
+				"running a study that uses an edited node computes it again and rewrites its row (the row as found is kept in table quarantine)")
+		}
 		if isArgError(err) {
 			return app.ExitUsage
 		}

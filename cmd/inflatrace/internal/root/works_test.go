@@ -4,8 +4,10 @@ import (
 	"context"
 	"database/sql"
 	"encoding/json"
+	"os"
 	"path/filepath"
 	"reflect"
+	"strings"
 	"testing"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
@@ -136,5 +138,46 @@ func TestChangedStudyReusesNodesAndWorksTravel(t *testing.T) {
 	c := decodeRun(t, h2.mustRun("run", h2.write("b.toml", text+"\n[[forecast]]\nuse = \"tern-b\"\n"), "--json"))
 	if c.Computed != 0 || !reflect.DeepEqual(len(c.Results), len(b.Results)) {
 		t.Errorf("re-run after merge: %d computed, %d results", c.Computed, len(c.Results))
+	}
+}
+
+// A node row edited behind the ledger's back is never served: a reader
+// that meets it fails and says what to do; the next run that needs the
+// node computes it again, rewrites the row (the row as found kept in
+// quarantine) and says so; the ledger then verifies clean and the
+// prediction is the one first computed.
+func TestEditedNodeIsRecomputed(t *testing.T) {
+	h := newHarness(t)
+	first := decodeRun(t, h.mustRun("run", demoPath(t), "--json"))
+	db, err := sql.Open("sqlite3", h.ledger)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := db.Exec("UPDATE nodes SET outputs = replace(outputs, 'n_s f 0.9', 'n_s f 0.8') WHERE id = (SELECT min(id) FROM nodes WHERE stage = 'reheat')"); err != nil {
+		t.Fatal(err)
+	}
+	db.Close()
+	if _, errs, code := h.run("show", first.Run); code == 0 || !strings.Contains(errs, "verify --all") {
+		t.Errorf("show of a run with an edited node: exit %d, %q; want a failure pointing at verify --all", code, errs)
+	}
+	// The same study with another constraint set: its works are new, its
+	// reheat nodes are looked up, the edited one among them.
+	text, err := os.ReadFile(demoPath(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	changed := strings.Replace(string(text), "cmb-combined-2025", "planck2018-bk18", 1)
+	out, errs, code := h.run("run", h.write("d2.toml", changed), "--json")
+	if code != 0 || !strings.Contains(errs, "found edited") {
+		t.Fatalf("run over an edited node: exit %d, %q", code, errs)
+	}
+	second := decodeRun(t, out)
+	if _, errs, code := h.run("verify", "--all"); code != 0 {
+		t.Errorf("verify --all after the row was rewritten: exit %d, %s", code, errs)
+	}
+	for i, r := range second.Results {
+		if r["n_s"] != first.Results[i]["n_s"] {
+			t.Errorf("result %d: n_s %v, first computed %v", i, r["n_s"], first.Results[i]["n_s"])
+		}
 	}
 }
