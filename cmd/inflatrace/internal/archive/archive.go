@@ -45,7 +45,24 @@ type Manifest struct {
 	Run         string  `json:"run"`
 	Created     string  `json:"created"`
 	Files       []Entry `json:"files"`
+	// Raw is the manifest's bytes as read (what its signature signs), and
+	// Signature the archive's signature file, if it has one; neither is
+	// written into the manifest.
+	Raw       []byte `json:"-"`
+	Signature []byte `json:"-"`
 }
+
+// SignatureName is the file beside the manifest holding its signature: an
+// OpenSSH signature (ssh-keygen -Y) of the manifest's bytes under
+// SignatureNamespace. The manifest does not list it.
+const SignatureName = "manifest.json.sig"
+
+// SignatureNamespace is the namespace release signatures are made in.
+const SignatureNamespace = "inflatrace-release"
+
+// MaxSignatureBytes is the most a signature file may hold (an ed25519
+// signature is about 300 bytes).
+const MaxSignatureBytes = 64 << 10
 
 // FormatName identifies the manifest format.
 const FormatName = "inflatrace-archive/1"
@@ -59,7 +76,7 @@ func WriteManifest(dir, toolVersion string, run pipeline.RunID, created time.Tim
 		return m, err
 	}
 	for _, rel := range files {
-		if rel == ManifestName {
+		if rel == ManifestName || rel == SignatureName {
 			continue
 		}
 		sum, n, err := hashFile(filepath.Join(dir, filepath.FromSlash(rel)))
@@ -72,7 +89,8 @@ func WriteManifest(dir, toolVersion string, run pipeline.RunID, created time.Tim
 	if err != nil {
 		return m, err
 	}
-	return m, os.WriteFile(filepath.Join(dir, ManifestName), append(data, '\n'), 0o644)
+	m.Raw = append(data, '\n')
+	return m, os.WriteFile(filepath.Join(dir, ManifestName), m.Raw, 0o644)
 }
 
 // regularFiles lists dir's files as sorted slash-separated relative paths,
@@ -111,7 +129,7 @@ func hashFile(p string) (string, int64, error) {
 }
 
 // Pack writes dir's files as a gzip-compressed tar at path: the manifest
-// first (so that a reader can check every later entry against it before
+// first, its signature (if any) second (so that a reader can check every later entry against it before
 // writing any of it), then the other files in sorted order, with fixed
 // modes and times, so the same files give the same bytes. Files are copied
 // in pieces, never held whole in memory.
@@ -122,7 +140,12 @@ func Pack(dir, path string, modTime time.Time) error {
 	}
 	ordered := []string{ManifestName}
 	for _, rel := range files {
-		if rel != ManifestName {
+		if rel == SignatureName {
+			ordered = append(ordered, rel) // second: read before any listed file
+		}
+	}
+	for _, rel := range files {
+		if rel != ManifestName && rel != SignatureName {
 			ordered = append(ordered, rel)
 		}
 	}

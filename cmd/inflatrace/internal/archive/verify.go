@@ -69,10 +69,18 @@ func VerifyTar(path, dst string, keep []string, lim Limits) (Manifest, error) {
 				return false, &TamperError{path, ManifestName, "appears twice"}
 			}
 			manifestSeen = true
-			sum, _, err := readManifest(path, r, hdr.Size)
+			sum, data, err := readManifest(path, r, hdr.Size)
 			if err == nil && sum != manifestSum {
 				err = &TamperError{path, ManifestName, "changed while the archive was read"}
 			}
+			m.Raw = data
+			return true, err
+		}
+		if hdr.Name == SignatureName && k.regular {
+			if m.Signature != nil {
+				return false, &TamperError{path, SignatureName, "appears twice"}
+			}
+			m.Signature, err = readSignature(path, r, hdr.Size)
 			return true, err
 		}
 		e, err := c.admit(hdr.Name, k, hdr.Size)
@@ -109,6 +117,16 @@ func VerifyDir(dir, dst string, keep []string, lim Limits) (Manifest, error) {
 	if m, err = decodeManifest(dir, data); err != nil {
 		return m, err
 	}
+	m.Raw = data
+	if sf, size, err := openRegular(dir, root, SignatureName); err == nil {
+		m.Signature, err = readSignature(dir, sf, size)
+		sf.Close()
+		if err != nil {
+			return m, err
+		}
+	} else if !errors.Is(err, fs.ErrNotExist) {
+		return m, err
+	}
 	c, err := newChecker(dir, m, keep, lim)
 	if err != nil {
 		return m, err
@@ -122,7 +140,7 @@ func VerifyDir(dir, dst string, keep []string, lim Limits) (Manifest, error) {
 			return err
 		}
 		rel = filepath.ToSlash(rel)
-		if rel == "." || rel == ManifestName {
+		if rel == "." || rel == ManifestName || rel == SignatureName {
 			return nil
 		}
 		info, err := d.Info() // WalkDir gives lstat information: links are not followed
@@ -522,4 +540,22 @@ func eachTarEntry(p string, fn func(*tar.Header, io.Reader) (bool, error)) error
 			return err
 		}
 	}
+}
+
+// readSignature reads a signature file of at most MaxSignatureBytes.
+func readSignature(archive string, r io.Reader, size int64) ([]byte, error) {
+	if size > MaxSignatureBytes {
+		return nil, &TamperError{archive, SignatureName, fmt.Sprintf("holds %d bytes; a signature holds at most %d", size, MaxSignatureBytes)}
+	}
+	data, err := io.ReadAll(io.LimitReader(r, MaxSignatureBytes+1))
+	if err != nil {
+		return nil, err
+	}
+	if int64(len(data)) > MaxSignatureBytes {
+		return nil, &TamperError{archive, SignatureName, "longer than its header says"}
+	}
+	if data == nil {
+		data = []byte{}
+	}
+	return data, nil
 }

@@ -4,6 +4,7 @@
 package exportcmd
 
 import (
+	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -15,6 +16,7 @@ import (
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/archive"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/sshsig"
 	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/study"
@@ -29,6 +31,9 @@ type Options struct {
 	From    string
 	// MaxSize caps the total size of an imported archive's files.
 	MaxSize Size
+	// AllowUnsigned and AllowUntrusted accept an archive without a
+	// signature, or signed by a key the user does not trust.
+	AllowUnsigned, AllowUntrusted bool
 }
 
 // Extra writes further files (tables, figures) of a run into an archive
@@ -68,6 +73,8 @@ func NewImportCmd(env *app.Env, g *app.Globals) *cobra.Command {
 		},
 	}
 	cmd.Flags().Var(&opts.MaxSize, "max-size", "refuse an archive whose files total more than SIZE (bytes, or with a unit: 500MB, 2GiB)")
+	cmd.Flags().BoolVar(&opts.AllowUnsigned, "allow-unsigned", false, "import an archive that carries no signature")
+	cmd.Flags().BoolVar(&opts.AllowUntrusted, "allow-untrusted", false, "import an archive signed by a key you do not trust (not yours, not in allowed_signers)")
 	return cmd
 }
 
@@ -133,12 +140,84 @@ func Export(ctx context.Context, o *Options, extra Extra) error {
 	if err != nil {
 		return err
 	}
+	signer, err := o.Env.SigningKey()
+	if err != nil {
+		return err
+	}
+	sig, err := sshsig.Sign(signer, archive.SignatureNamespace, m.Raw)
+	if err != nil {
+		return err
+	}
+	if err := os.WriteFile(filepath.Join(dir, archive.SignatureName), sig, 0o644); err != nil {
+		return err
+	}
 	if isTarball(o.Out) {
 		if err := archive.Pack(dir, o.Out, run.Started); err != nil {
 			return err
 		}
 	}
-	fmt.Fprintf(o.Env.Stderr, "exported run %s to %s: %d files\n", id, o.Out, len(m.Files)+1)
+	fmt.Fprintf(o.Env.Stderr, "exported run %s to %s: %d files, signed by %s\n", id, o.Out, len(m.Files)+2, sshsig.Fingerprint(signer.PublicKey()))
+	fmt.Fprintf(o.Env.Stderr, "a referee checks it with OpenSSH: put the line\n  %s\ninto allowed_signers, then (in the unpacked archive)\n  ssh-keygen -Y verify -f allowed_signers -I %s -n %s -s %s < %s\n",
+		sshsig.AllowedLine(o.Env.Principal(), signer.PublicKey()), o.Env.Principal(), archive.SignatureNamespace, archive.SignatureName, archive.ManifestName)
+	return nil
+}
+
+// checkSignature checks an archive's signature of its manifest, and that
+// its key is trusted, and describes the signer. An archive without a
+// signature, or signed by a key the user does not trust, is refused
+// unless the options allow it; a signature that does not match is always
+// refused.
+func checkSignature(o *Options, from string, m archive.Manifest) (string, error) {
+	if m.Signature == nil {
+		if o.AllowUnsigned {
+			return "unsigned (accepted: --allow-unsigned)", nil
+		}
+		return "", &TrustError{Archive: from, Msg: "it carries no signature (" + archive.SignatureName + "): --allow-unsigned imports it anyway"}
+	}
+	pub, err := sshsig.Verify(m.Signature, archive.SignatureNamespace, m.Raw)
+	if err != nil {
+		return "", &archive.TamperError{Archive: from, File: archive.SignatureName, Msg: err.Error() + ": the manifest was changed after it was signed, or the signature is not one"}
+	}
+	trusted, file, err := o.Env.TrustedSigners()
+	if err != nil {
+		return "", err
+	}
+	fp := sshsig.Fingerprint(pub)
+	if s, ok := sshsig.Find(trusted, pub); ok {
+		return "signed by " + s.Principals + " (" + fp + ")", nil
+	}
+	if o.AllowUntrusted {
+		return "signed by " + fp + ", a key you do not trust (accepted: --allow-untrusted)", nil
+	}
+	return "", &TrustError{Archive: from,
+		Msg: fmt.Sprintf("signed by %s, a key you do not trust: if it is the authors' key (compare the fingerprint with the one they published), add the line %q to %s, or pass --allow-untrusted",
+			fp, sshsig.AllowedLine("authors", pub), file)}
+}
+
+// crossCheck compares the archive's results.json with what its own ledger
+// records for the run: an archive whose files were edited consistently
+// with its manifest (and signed again) but not with its ledger is refused.
+func crossCheck(ctx context.Context, from, ledgerPath, resultsPath string, m archive.Manifest) error {
+	want, err := os.ReadFile(resultsPath)
+	if err != nil {
+		return err
+	}
+	l, err := ledger.Open(ledgerPath)
+	if err != nil {
+		return err
+	}
+	defer l.Close()
+	run, results, err := app.LoadRun(ctx, l, m.Run)
+	if err != nil {
+		return &archive.TamperError{Archive: from, File: archive.LedgerName, Msg: fmt.Sprintf("does not hold the run the manifest names (%s): %v", m.Run, err)}
+	}
+	var got bytes.Buffer
+	if err := app.JSON(&got, map[string]any{"run": run.ID, "tool_version": run.ToolVersion, "config_hash": run.ConfigHash, "results": results}); err != nil {
+		return err
+	}
+	if !bytes.Equal(got.Bytes(), want) {
+		return &archive.TamperError{Archive: from, File: "results.json", Msg: "differs from the results the archive's own ledger records for the run"}
+	}
 	return nil
 }
 
@@ -160,7 +239,7 @@ func Import(ctx context.Context, o *Options) error {
 	}
 	defer os.RemoveAll(tmp)
 	lim := archive.Limits{MaxBytes: o.MaxSize.bytes()}
-	keep := []string{archive.LedgerName}
+	keep := []string{archive.LedgerName, "results.json"}
 	var m archive.Manifest
 	if info.IsDir() {
 		m, err = archive.VerifyDir(o.From, tmp, keep, lim)
@@ -170,11 +249,10 @@ func Import(ctx context.Context, o *Options) error {
 	if err != nil {
 		return refuse(err)
 	}
-	l, err := o.Env.OpenLedger(o.Globals)
+	signed, err := checkSignature(o, o.From, m)
 	if err != nil {
-		return err
+		return refuse(err)
 	}
-	defer l.Close()
 	// An archive whose ledger is not one (the manifest can vouch only for
 	// its bytes) is refused before any SQLite code reads it.
 	copyPath := filepath.Join(tmp, archive.LedgerName)
@@ -183,14 +261,28 @@ func Import(ctx context.Context, o *Options) error {
 	} else if !ok {
 		return refuse(&archive.TamperError{Archive: o.From, File: archive.LedgerName, Msg: "not an inflatrace ledger (no SQLite header with inflatrace's application id)"})
 	}
+	if err := crossCheck(ctx, o.From, copyPath, filepath.Join(tmp, "results.json"), m); err != nil {
+		return refuse(err)
+	}
+	l, err := o.Env.OpenLedger(o.Globals)
+	if err != nil {
+		return err
+	}
+	defer l.Close()
 	rep, err := l.Merge(ctx, copyPath)
 	if err != nil {
 		return refuse(err)
 	}
-	fmt.Fprintf(o.Env.Stderr, "imported run %s (inflatrace %s) from %s: %d run(s), %d node(s) new; %d node(s) already here\n",
-		m.Run, m.ToolVersion, o.From, rep.Runs, rep.Nodes, rep.NodesKept)
+	fmt.Fprintf(o.Env.Stderr, "imported run %s (inflatrace %s) from %s, %s: %d run(s), %d node(s) new; %d node(s) already here\n",
+		m.Run, m.ToolVersion, o.From, signed, rep.Runs, rep.Nodes, rep.NodesKept)
 	return nil
 }
+
+// TrustError refuses an archive whose signature is missing or made by a
+// key the user does not trust (exit 3, like a tampered archive).
+type TrustError struct{ Archive, Msg string }
+
+func (e *TrustError) Error() string { return fmt.Sprintf("archive %s refused: %s", e.Archive, e.Msg) }
 
 // refuse marks an archive refused on integrity or size as a refusal
 // (exit 3), keeping its own message; a size refusal names the flag that
@@ -198,7 +290,10 @@ func Import(ctx context.Context, o *Options) error {
 func refuse(err error) error {
 	var te *archive.TamperError
 	var tl *archive.TooLargeError
+	var tr *TrustError
 	switch {
+	case errors.As(err, &tr):
+		return &refusal{err}
 	case errors.As(err, &tl):
 		return &refusal{fmt.Errorf("%w; import --max-size SIZE raises the limit", err)}
 	case errors.As(err, &te) || errors.Is(err, ledger.ErrIntegrity):

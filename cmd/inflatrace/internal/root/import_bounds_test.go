@@ -164,7 +164,9 @@ func newTarget(t *testing.T, h *harness) *target {
 // nothing left in TMPDIR.
 func (tg *target) refused(t *testing.T, arc string, extra []string, want ...string) {
 	t.Helper()
-	args := append([]string{"--ledger", tg.ledger, "import", arc}, extra...)
+	// These archives are made by hand, unsigned: what is tested is the
+	// bounds, which apply before any signature is looked at.
+	args := append([]string{"--ledger", tg.ledger, "import", arc, "--allow-unsigned"}, extra...)
 	_, errs, code := tg.h.run(args...)
 	if code != app.ExitRunFailed {
 		t.Errorf("%s: exit %d, want %d (refused): %s", filepath.Base(arc), code, app.ExitRunFailed, errs)
@@ -299,7 +301,7 @@ func TestImportRefusesHostileTarballs(t *testing.T) {
 	}
 	for _, arc := range []string{r.writeTar(t, "intact.tar.gz", r.entries(t)), r.writeTar(t, "older.tar.gz", sorted)} {
 		other := filepath.Join(h.dir, filepath.Base(arc)+".db")
-		h.mustRun("--ledger", other, "import", arc)
+		h.mustRun("--ledger", other, "import", arc, "--allow-unsigned")
 		if got := h.mustRun("--ledger", other, "show", r.run, "--json"); got != h.mustRun("show", r.run, "--json") {
 			t.Errorf("%s: the imported run differs from the original", filepath.Base(arc))
 		}
@@ -313,7 +315,7 @@ func TestImportRefusesHostileTarballs(t *testing.T) {
 	}
 	arc := r.writeTar(t, "honest.tar.gz", bomb)
 	tg.refused(t, arc, []string{"--max-size", fmt.Sprint(total - 1)}, fmt.Sprintf("totalling %s (%d bytes)", archive.FormatSize(total), total))
-	h.mustRun("--ledger", filepath.Join(h.dir, "honest.db"), "import", arc, "--max-size", fmt.Sprint(total))
+	h.mustRun("--ledger", filepath.Join(h.dir, "honest.db"), "import", arc, "--allow-unsigned", "--max-size", fmt.Sprint(total))
 	tg.noTemp(t, "honest.tar.gz")
 }
 
@@ -388,7 +390,7 @@ func TestImportRefusesHostileFolders(t *testing.T) {
 	t.Run("intact", func(t *testing.T) {
 		dir := r.copyDir(t, "intact")
 		other := filepath.Join(h.dir, "intact.db")
-		h.mustRun("--ledger", other, "import", dir)
+		h.mustRun("--ledger", other, "import", dir, "--allow-unsigned")
 		if got := h.mustRun("--ledger", other, "show", r.run, "--json"); got != h.mustRun("show", r.run, "--json") {
 			t.Error("the imported run differs from the original")
 		}
@@ -433,7 +435,7 @@ func TestImportMemoryIsBounded(t *testing.T) {
 		runtime.GC()
 		var before, after runtime.MemStats
 		runtime.ReadMemStats(&before)
-		h.mustRun("--ledger", filepath.Join(h.dir, fmt.Sprintf("big%d.db", i)), "import", src)
+		h.mustRun("--ledger", filepath.Join(h.dir, fmt.Sprintf("big%d.db", i)), "import", src, "--allow-unsigned")
 		runtime.ReadMemStats(&after)
 		if alloc := after.TotalAlloc - before.TotalAlloc; alloc > size/4 {
 			t.Errorf("import of %s allocated %d bytes in all, more than a quarter of its %d-byte file", filepath.Base(src), alloc, size)

@@ -27,7 +27,15 @@ func TestImportRefusesANonLedger(t *testing.T) {
 		t.Fatal(err)
 	}
 	other := filepath.Join(h.dir, "other.db")
+	// The manifest was rewritten: its signature no longer matches.
 	_, errs, code := h.run("--ledger", other, "import", dir)
+	if code != app.ExitRunFailed || !strings.Contains(errs, "signature does not match") {
+		t.Errorf("import with a rewritten manifest: exit %d, %q; want 3 naming the signature", code, errs)
+	}
+	// Without the signature (and accepted unsigned), the ledger check
+	// refuses it before SQLite opens it.
+	os.Remove(filepath.Join(dir, archive.SignatureName))
+	_, errs, code = h.run("--ledger", other, "import", dir, "--allow-unsigned")
 	if code != app.ExitRunFailed || !strings.Contains(errs, "not an inflatrace ledger") {
 		t.Errorf("import of a non-ledger: exit %d, %q; want 3 naming ledger.db", code, errs)
 	}

@@ -16,6 +16,7 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/diffcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/exportcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/graphcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/keycmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/mergecmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/modelscmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/predictcmd"
@@ -66,6 +67,7 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		reportcmd.NewPlotCmd(env, g),
 		exportcmd.NewImportCmd(env, g),
 		graphcmd.NewCmd(env, g, dag.PNG),
+		keycmd.NewCmd(env),
 	)
 	return root
 }

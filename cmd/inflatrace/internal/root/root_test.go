@@ -39,6 +39,10 @@ func (h *harness) run(args ...string) (stdout, stderr string, code int) {
 			if k == app.LedgerEnv {
 				return h.ledger
 			}
+			if k == "XDG_CONFIG_HOME" {
+				// Keys live in the test's folder, never the user's.
+				return filepath.Join(h.dir, "config")
+			}
 			return os.Getenv(k)
 		},
 		Now: func() time.Time {

@@ -129,6 +129,7 @@ func TestChangedStudyReusesNodesAndWorksTravel(t *testing.T) {
 	arch := filepath.Join(h.dir, "b.tar.gz")
 	h.mustRun("export", b.Run, "--out", arch)
 	h2 := newHarness(t)
+	trust(t, h, h2)
 	h2.mustRun("import", arch)
 	h2.mustRun("verify", "--all")
 	if got := h2.mustRun("table", b.Run, "--format", "csv"); got != table {

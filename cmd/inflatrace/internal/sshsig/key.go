@@ -13,7 +13,9 @@ import (
 	"golang.org/x/crypto/ssh"
 )
 
-func pemEncode(typ string, b []byte) []byte { return pem.EncodeToMemory(&pem.Block{Type: typ, Bytes: b}) }
+func pemEncode(typ string, b []byte) []byte {
+	return pem.EncodeToMemory(&pem.Block{Type: typ, Bytes: b})
+}
 
 // LoadOrCreate reads the ed25519 signing key at path (OpenSSH private-key
 // format, readable by ssh-keygen), creating it (mode 0600, its folder

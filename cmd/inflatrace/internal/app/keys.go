@@ -1,0 +1,103 @@
+package app
+
+import (
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+
+	"golang.org/x/crypto/ssh"
+
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/sshsig"
+)
+
+// KeyEnv names a signing-key file to use instead of the one in the user's
+// configuration folder.
+const KeyEnv = "INFLATRACE_KEY"
+
+// ConfigDir is the user's inflatrace configuration folder:
+// $XDG_CONFIG_HOME/inflatrace, else ~/.config/inflatrace. It holds the
+// signing key (signing_key, signing_key.pub) and the keys the user trusts
+// (allowed_signers, in ssh-keygen's allowed-signers format).
+func (e *Env) ConfigDir() (string, error) {
+	if d := e.Getenv("XDG_CONFIG_HOME"); d != "" {
+		return filepath.Join(d, "inflatrace"), nil
+	}
+	if h := e.Getenv("HOME"); h != "" {
+		return filepath.Join(h, ".config", "inflatrace"), nil
+	}
+	return "", errors.New("no configuration folder: neither XDG_CONFIG_HOME nor HOME is set")
+}
+
+// KeyPath is the signing key's file.
+func (e *Env) KeyPath() (string, error) {
+	if p := e.Getenv(KeyEnv); p != "" {
+		return p, nil
+	}
+	d, err := e.ConfigDir()
+	if err != nil {
+		return "", err
+	}
+	return filepath.Join(d, "signing_key"), nil
+}
+
+// Principal names the user in allowed-signers lines: user@host.
+func (e *Env) Principal() string {
+	u := e.Getenv("USER")
+	if u == "" {
+		u = "inflatrace"
+	}
+	h, _ := os.Hostname()
+	if h == "" {
+		h = "localhost"
+	}
+	return u + "@" + h
+}
+
+// SigningKey returns the user's signing key, creating it on first use (and
+// saying so on stderr).
+func (e *Env) SigningKey() (ssh.Signer, error) {
+	p, err := e.KeyPath()
+	if err != nil {
+		return nil, err
+	}
+	s, created, err := sshsig.LoadOrCreate(p, e.Principal())
+	if err != nil {
+		return nil, err
+	}
+	if created {
+		fmt.Fprintf(e.Stderr, "created signing key %s (%s); \"inflatrace key\" shows it\n", p, sshsig.Fingerprint(s.PublicKey()))
+	}
+	return s, nil
+}
+
+// TrustedSigners are the keys the user trusts: their own key, if it
+// exists, and the allowed_signers file of the configuration folder.
+func (e *Env) TrustedSigners() ([]sshsig.Signer, string, error) {
+	var out []sshsig.Signer
+	if p, err := e.KeyPath(); err == nil {
+		if data, err := os.ReadFile(p + ".pub"); err == nil {
+			if k, _, _, _, err := ssh.ParseAuthorizedKey(data); err == nil {
+				out = append(out, sshsig.Signer{Principals: "you", Key: k})
+			}
+		}
+	}
+	d, err := e.ConfigDir()
+	if err != nil {
+		return out, "", nil
+	}
+	file := filepath.Join(d, "allowed_signers")
+	data, err := os.ReadFile(file)
+	if errors.Is(err, fs.ErrNotExist) {
+		return out, file, nil
+	}
+	if err != nil {
+		return nil, file, err
+	}
+	more, err := sshsig.ParseAllowed(file, data)
+	if err != nil {
+		return nil, file, Usage(err)
+	}
+	return append(out, more...), file, nil
+}

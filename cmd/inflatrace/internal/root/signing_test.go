@@ -1,0 +1,119 @@
+package root
+
+import (
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/archive"
+	"github.com/inflatrace/inflatrace/pipeline"
+)
+
+// trust writes the signers line of h's key into other's allowed_signers.
+func trust(t *testing.T, h, other *harness) {
+	t.Helper()
+	out := h.mustRun("key")
+	var line string
+	for _, l := range strings.Split(out, "\n") {
+		if rest, ok := strings.CutPrefix(l, "signers line "); ok {
+			line = rest
+		}
+	}
+	if line == "" {
+		t.Fatalf("key printed no signers line:\n%s", out)
+	}
+	dir := filepath.Join(other.dir, "config", "inflatrace")
+	if err := os.MkdirAll(dir, 0o700); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "allowed_signers"), []byte("# a colleague\n"+line+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// A release is signed with its author's key (made on first use, outside
+// the ledger): a referee's ssh-keygen verifies it; another user's import
+// refuses it until they trust the key (or say --allow-untrusted); an
+// archive whose results were edited, its manifest rewritten and signed
+// again with another key is refused even when that key is accepted,
+// because its results no longer match its own ledger; rotating the key
+// keeps the old one.
+func TestSignedReleases(t *testing.T) {
+	author := newHarness(t)
+	r := decodeRun(t, author.mustRun("run", author.write("a.toml", studyA), "--json"))
+	dir := filepath.Join(author.dir, "release")
+	author.mustRun("export", r.Run, "--out", dir)
+	if _, err := os.Stat(filepath.Join(dir, archive.SignatureName)); err != nil {
+		t.Fatalf("the export carries no signature: %v", err)
+	}
+	if keygen, err := exec.LookPath("ssh-keygen"); err == nil {
+		allowed := filepath.Join(author.dir, "allowed_signers")
+		out := author.mustRun("key")
+		line := out[strings.Index(out, "signers line ")+len("signers line "):]
+		line = line[:strings.Index(line, "\n")]
+		if err := os.WriteFile(allowed, []byte(line+"\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		principal := strings.Fields(line)[0]
+		manifest, err := os.Open(filepath.Join(dir, archive.ManifestName))
+		if err != nil {
+			t.Fatal(err)
+		}
+		cmd := exec.Command(keygen, "-Y", "verify", "-f", allowed, "-I", principal, "-n", archive.SignatureNamespace, "-s", filepath.Join(dir, archive.SignatureName))
+		cmd.Stdin = manifest
+		if out, err := cmd.CombinedOutput(); err != nil {
+			t.Errorf("ssh-keygen -Y verify of an exported release: %v\n%s", err, out)
+		}
+		manifest.Close()
+	} else if os.Getenv("INFLATRACE_SSH_E2E") != "" {
+		t.Fatal("INFLATRACE_SSH_E2E is set but ssh-keygen is not installed")
+	}
+
+	referee := newHarness(t)
+	if _, errs, code := referee.run("import", dir); code != app.ExitRunFailed || !strings.Contains(errs, "a key you do not trust") || !strings.Contains(errs, "allowed_signers") {
+		t.Errorf("import signed by an unknown key: exit %d, %q; want 3 saying how to trust it", code, errs)
+	}
+	trust(t, author, referee)
+	if _, errs, code := referee.run("import", dir); code != 0 || !strings.Contains(errs, "signed by") {
+		t.Errorf("import signed by a trusted key: exit %d, %q", code, errs)
+	}
+
+	// A forger edits results.json, rewrites the manifest and signs it with
+	// a key of their own.
+	forged := filepath.Join(author.dir, "forged")
+	author.mustRun("export", r.Run, "--out", forged)
+	res := filepath.Join(forged, "results.json")
+	text, _ := os.ReadFile(res)
+	edited := strings.Replace(string(text), `"n_s": 0.9`, `"n_s": 0.8`, 1)
+	if edited == string(text) {
+		t.Fatal("the edit changed nothing")
+	}
+	os.WriteFile(res, []byte(edited), 0o644)
+	os.Remove(filepath.Join(forged, archive.ManifestName))
+	os.Remove(filepath.Join(forged, archive.SignatureName))
+	if _, err := archive.WriteManifest(forged, app.Version, pipeline.RunID(r.Run), time.Unix(0, 0)); err != nil {
+		t.Fatal(err)
+	}
+	other := newHarness(t)
+	if _, errs, code := other.run("import", forged, "--allow-unsigned"); code != app.ExitRunFailed || !strings.Contains(errs, "results.json") {
+		t.Errorf("import of edited results with a rewritten manifest: exit %d, %q; want 3 naming results.json", code, errs)
+	}
+	if _, errs, code := other.run("import", forged); code != app.ExitRunFailed || !strings.Contains(errs, "no signature") {
+		t.Errorf("import of an unsigned archive: exit %d, %q", code, errs)
+	}
+
+	// Rotation keeps the old key beside the new one.
+	before := author.mustRun("key")
+	after := author.mustRun("key", "--rotate")
+	if before == after {
+		t.Error("--rotate kept the same key")
+	}
+	retired, _ := filepath.Glob(filepath.Join(author.dir, "config", "inflatrace", "signing_key.retired-*"))
+	if len(retired) != 2 {
+		t.Errorf("retired key files: %v, want the key and its .pub", retired)
+	}
+}
