@@ -221,60 +221,114 @@ func crossCheck(ctx context.Context, from, ledgerPath, resultsPath string, m arc
 	return nil
 }
 
-// Import checks an archive and merges its ledger. Only the archive's
-// ledger is written to disk (into a private temporary folder, removed
-// whatever happens); every other file is hashed as it streams by. Nothing
-// is merged unless every file matches the manifest.
-func Import(ctx context.Context, o *Options) error {
+// Checked is an archive that passed every check: its manifest, who signed
+// it, and a checked copy of its ledger in a private folder (Close removes
+// it).
+type Checked struct {
+	Manifest archive.Manifest
+	Signed   string // "signed by NAME (SHA256:...)", or how it was accepted
+	Ledger   string
+	tmp      string
+}
+
+// Close removes the checked copy.
+func (c *Checked) Close() { os.RemoveAll(c.tmp) }
+
+// Check checks an archive without importing it: every file against the
+// manifest (sizes first, streaming, within the size limit), the manifest's
+// signature and its key's trust, that its ledger is a ledger, that its
+// results.json is what that ledger records, and every row of that ledger
+// against its hashes and seals. Only the ledger and results.json are
+// written to disk (into a private temporary folder); every other file is
+// hashed as it streams by.
+func Check(ctx context.Context, o *Options) (*Checked, error) {
 	info, err := os.Stat(o.From)
 	switch {
 	case err != nil:
-		return app.Usage(fmt.Errorf("import %s: %w", o.From, err))
+		return nil, app.Usage(fmt.Errorf("%s: %w", o.From, err))
 	case !info.IsDir() && !isTarball(o.From):
-		return app.Usage(fmt.Errorf("import %s: neither a folder nor a .tar.gz or .tgz file", o.From))
+		return nil, app.Usage(fmt.Errorf("%s: neither a folder nor a .tar.gz or .tgz file", o.From))
 	}
 	tmp, err := os.MkdirTemp("", "inflatrace-import-")
 	if err != nil {
-		return err
+		return nil, err
 	}
-	defer os.RemoveAll(tmp)
+	c := &Checked{tmp: tmp, Ledger: filepath.Join(tmp, archive.LedgerName)}
+	fail := func(err error) (*Checked, error) {
+		c.Close()
+		return nil, err
+	}
 	lim := archive.Limits{MaxBytes: o.MaxSize.bytes()}
 	keep := []string{archive.LedgerName, "results.json"}
-	var m archive.Manifest
 	if info.IsDir() {
-		m, err = archive.VerifyDir(o.From, tmp, keep, lim)
+		c.Manifest, err = archive.VerifyDir(o.From, tmp, keep, lim)
 	} else {
-		m, err = archive.VerifyTar(o.From, tmp, keep, lim)
+		c.Manifest, err = archive.VerifyTar(o.From, tmp, keep, lim)
 	}
 	if err != nil {
-		return refuse(err)
+		return fail(refuse(err))
 	}
-	signed, err := checkSignature(o, o.From, m)
-	if err != nil {
-		return refuse(err)
+	if c.Signed, err = checkSignature(o, o.From, c.Manifest); err != nil {
+		return fail(refuse(err))
 	}
 	// An archive whose ledger is not one (the manifest can vouch only for
 	// its bytes) is refused before any SQLite code reads it.
-	copyPath := filepath.Join(tmp, archive.LedgerName)
-	if ok, err := ledger.LooksLikeLedger(copyPath); err != nil {
-		return err
+	if ok, err := ledger.LooksLikeLedger(c.Ledger); err != nil {
+		return fail(err)
 	} else if !ok {
-		return refuse(&archive.TamperError{Archive: o.From, File: archive.LedgerName, Msg: "not an inflatrace ledger (no SQLite header with inflatrace's application id)"})
+		return fail(refuse(&archive.TamperError{Archive: o.From, File: archive.LedgerName, Msg: "not an inflatrace ledger (no SQLite header with inflatrace's application id)"}))
 	}
-	if err := crossCheck(ctx, o.From, copyPath, filepath.Join(tmp, "results.json"), m); err != nil {
-		return refuse(err)
+	if err := crossCheck(ctx, o.From, c.Ledger, filepath.Join(tmp, "results.json"), c.Manifest); err != nil {
+		return fail(refuse(err))
 	}
+	if err := auditCopy(ctx, o.From, c.Ledger); err != nil {
+		return fail(refuse(err))
+	}
+	return c, nil
+}
+
+// auditCopy checks every row of an archive's ledger against its hashes,
+// and every run against its seal.
+func auditCopy(ctx context.Context, from, path string) error {
+	l, err := ledger.Open(path)
+	if err != nil {
+		return err
+	}
+	defer l.Close()
+	probs, err := l.Audit(ctx)
+	if err != nil {
+		return err
+	}
+	seals, _, err := l.SealProblems(ctx)
+	if err != nil {
+		return err
+	}
+	if probs = append(probs, seals...); len(probs) > 0 {
+		return &archive.TamperError{Archive: from, File: archive.LedgerName, Msg: fmt.Sprintf("%d row(s) no longer match their hashes or seals; first: %s %s: %s", len(probs), probs[0].Table, probs[0].ID, probs[0].What)}
+	}
+	return nil
+}
+
+// Import checks an archive (Check) and merges its ledger. Nothing is
+// merged unless every check passes.
+func Import(ctx context.Context, o *Options) error {
+	c, err := Check(ctx, o)
+	if err != nil {
+		return err
+	}
+	defer c.Close()
 	l, err := o.Env.OpenLedger(o.Globals)
 	if err != nil {
 		return err
 	}
 	defer l.Close()
-	rep, err := l.Merge(ctx, copyPath)
+	rep, err := l.Merge(ctx, c.Ledger)
 	if err != nil {
 		return refuse(err)
 	}
+	m := c.Manifest
 	fmt.Fprintf(o.Env.Stderr, "imported run %s (inflatrace %s) from %s, %s: %d run(s), %d node(s) new; %d node(s) already here\n",
-		m.Run, m.ToolVersion, o.From, signed, rep.Runs, rep.Nodes, rep.NodesKept)
+		m.Run, m.ToolVersion, o.From, c.Signed, rep.Runs, rep.Nodes, rep.NodesKept)
 	return nil
 }
 

@@ -78,6 +78,13 @@ func TestSignedReleases(t *testing.T) {
 		t.Errorf("import signed by an unknown key: exit %d, %q; want 3 saying how to trust it", code, errs)
 	}
 	trust(t, author, referee)
+	// verify ARCHIVE checks it as import does, without importing it.
+	if out, errs, code := referee.run("verify", dir); code != 0 || !strings.Contains(out, "intact") {
+		t.Errorf("verify ARCHIVE of an intact, trusted release: exit %d, %q %q", code, out, errs)
+	}
+	if referee.runs() != 0 {
+		t.Error("verify ARCHIVE imported the archive")
+	}
 	if _, errs, code := referee.run("import", dir); code != 0 || !strings.Contains(errs, "signed by") {
 		t.Errorf("import signed by a trusted key: exit %d, %q", code, errs)
 	}
@@ -101,6 +108,9 @@ func TestSignedReleases(t *testing.T) {
 	other := newHarness(t)
 	if _, errs, code := other.run("import", forged, "--allow-unsigned"); code != app.ExitRunFailed || !strings.Contains(errs, "results.json") {
 		t.Errorf("import of edited results with a rewritten manifest: exit %d, %q; want 3 naming results.json", code, errs)
+	}
+	if _, errs, code := other.run("verify", forged, "--allow-unsigned"); code != app.ExitRunFailed || !strings.Contains(errs, "results.json") {
+		t.Errorf("verify ARCHIVE of edited results: exit %d, %q; want 3 naming results.json", code, errs)
 	}
 	if _, errs, code := other.run("import", forged); code != app.ExitRunFailed || !strings.Contains(errs, "no signature") {
 		t.Errorf("import of an unsigned archive: exit %d, %q", code, errs)

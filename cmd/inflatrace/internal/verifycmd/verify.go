@@ -7,10 +7,15 @@ package verifycmd
 import (
 	"context"
 	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
 
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/archive"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/exportcmd"
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/nodes"
 )
@@ -23,6 +28,8 @@ type Options struct {
 	Ledger    bool
 	Tolerance float64
 	JSON      bool
+	// For an archive: accept it unsigned, or signed by an untrusted key.
+	AllowUnsigned, AllowUntrusted bool
 }
 
 // NewCmd returns the verify command.
@@ -32,14 +39,18 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 		run = Run
 	}
 	cmd := &cobra.Command{
-		Use:   "verify [RUN | --all]",
+		Use:   "verify [RUN | ARCHIVE | --all]",
 		Short: "Recompute a run and compare output hashes, or audit every stored hash",
 		Long: `verify RUN recomputes every node of the run from its recorded parameters and
 its inputs' recorded outputs, with the cache bypassed, and reports each node as
 identical, equal within --tolerance (relative, with the largest difference), or
 different, saying whether the stage or the tool version changed since.
 verify --all re-derives every stored key and output hash and reports rows
-edited after they were written. Exit code 3 when anything differs.`,
+edited after they were written. verify ARCHIVE (a .tar.gz, or a folder, that
+export wrote) checks a release as import does, without importing it: every
+file against the manifest, the manifest's signature and whether you trust its
+key, its results against its own ledger, and that ledger's every row and seal.
+Exit code 3 when anything differs.`,
 		Args: cobra.MaximumNArgs(1),
 		RunE: func(c *cobra.Command, args []string) error {
 			if len(args) == 1 {
@@ -54,6 +65,8 @@ edited after they were written. Exit code 3 when anything differs.`,
 	cmd.Flags().BoolVar(&opts.Ledger, "all", false, "audit the whole ledger: re-derive every stored hash")
 	cmd.Flags().Float64Var(&opts.Tolerance, "tolerance", 1e-12, "relative tolerance for \"equal within tolerance\"")
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print the report as JSON")
+	cmd.Flags().BoolVar(&opts.AllowUnsigned, "allow-unsigned", false, "ARCHIVE: accept an archive that carries no signature")
+	cmd.Flags().BoolVar(&opts.AllowUntrusted, "allow-untrusted", false, "ARCHIVE: accept an archive signed by a key you do not trust")
 	return cmd
 }
 
@@ -76,8 +89,39 @@ type NodeReport struct {
 	Why     string   `json:"why,omitempty"`
 }
 
+// IsArchive says whether a verify argument names a release archive (a
+// .tar.gz or .tgz file, or a folder holding a manifest) rather than a run.
+func IsArchive(arg string) bool {
+	if strings.HasSuffix(arg, ".tar.gz") || strings.HasSuffix(arg, ".tgz") {
+		return true
+	}
+	_, err := os.Stat(filepath.Join(arg, archive.ManifestName))
+	return err == nil
+}
+
+// Archive checks a release archive as import does, without importing it.
+func Archive(ctx context.Context, o *Options) error {
+	ao := &exportcmd.Options{Env: o.Env, Globals: o.Globals, From: o.Run, MaxSize: exportcmd.Size(archive.DefaultMaxBytes),
+		AllowUnsigned: o.AllowUnsigned, AllowUntrusted: o.AllowUntrusted}
+	c, err := exportcmd.Check(ctx, ao)
+	if err != nil {
+		return err
+	}
+	defer c.Close()
+	m := c.Manifest
+	if o.JSON {
+		return app.JSON(o.Env.Stdout, map[string]any{"archive": o.Run, "run": m.Run, "tool_version": m.ToolVersion, "files": len(m.Files), "signature": c.Signed, "verdict": "intact"})
+	}
+	fmt.Fprintf(o.Env.Stdout, "archive %s: intact: run %s (inflatrace %s), %d files as listed, %s; its results match its ledger, and every ledger row its hashes and seals\n",
+		o.Run, m.Run, m.ToolVersion, len(m.Files), c.Signed)
+	return nil
+}
+
 // Run verifies.
 func Run(ctx context.Context, o *Options) error {
+	if o.Run != "" && IsArchive(o.Run) {
+		return Archive(ctx, o)
+	}
 	l, err := o.Env.OpenLedger(o.Globals)
 	if err != nil {
 		return err
