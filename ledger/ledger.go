@@ -51,6 +51,8 @@ type Ledger struct {
 	// problem: taken as missing, computed again, and rewritten (the row as
 	// found kept in quarantine) when the computation is recorded.
 	suspect keyMemo[string]
+	// sealSigner, when set, signs every seal the ledger writes.
+	sealSigner func(msg []byte) ([]byte, error)
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)

@@ -169,11 +169,11 @@ func readRun(ctx context.Context, tx *qtx, id pipeline.RunID) (RunDetail, error)
 		started  string
 		finished sql.NullString
 	)
-	var seal sql.NullString
-	err := tx.QueryRowContext(ctx, `SELECT id, started_at, finished_at, status, error, tool_version, config_path, config_text, config_hash, seal
+	var seal, sealSig sql.NullString
+	err := tx.QueryRowContext(ctx, `SELECT id, started_at, finished_at, status, error, tool_version, config_path, config_text, config_hash, seal, seal_signature
 		FROM runs WHERE id = ?`, string(id)).
-		Scan(&rid, &started, &finished, &status, &d.Error, &d.ToolVersion, &d.ConfigPath, &d.ConfigText, &d.ConfigHash, &seal)
-	d.Seal = seal.String
+		Scan(&rid, &started, &finished, &status, &d.Error, &d.ToolVersion, &d.ConfigPath, &d.ConfigText, &d.ConfigHash, &seal, &sealSig)
+	d.Seal, d.SealSignature = seal.String, sealSig.String
 	if errors.Is(err, sql.ErrNoRows) {
 		return RunDetail{}, fmt.Errorf("run %s: %w", id, ErrNotFound)
 	}

@@ -581,7 +581,7 @@ func (l *Ledger) finishRun(ctx context.Context, run pipeline.RunID, status pipel
 		if err != nil {
 			return err
 		}
-		return writeSeal(ctx, tx, run)
+		return l.writeSeal(ctx, tx, run)
 	})
 }
 
@@ -651,7 +651,7 @@ func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bo
 				formatTime(now), why, c.id); err != nil {
 				return err
 			}
-			if err := writeSeal(ctx, tx, pipeline.RunID(c.id)); err != nil {
+			if err := l.writeSeal(ctx, tx, pipeline.RunID(c.id)); err != nil {
 				return err
 			}
 			closed = append(closed, pipeline.RunID(c.id))

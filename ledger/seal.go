@@ -124,14 +124,66 @@ func sealOf(ctx context.Context, tx *qtx, id pipeline.RunID) (string, error) {
 	return "sha256:" + hex.EncodeToString(h.Sum(nil)), nil
 }
 
-// writeSeal seals a finished run.
-func writeSeal(ctx context.Context, tx *qtx, id pipeline.RunID) error {
+// writeSeal seals a finished run, and signs the seal when the ledger has
+// a signer.
+func (l *Ledger) writeSeal(ctx context.Context, tx *qtx, id pipeline.RunID) error {
 	seal, err := sealOf(ctx, tx, id)
 	if err != nil {
 		return fmt.Errorf("seal run %s: %w", id, err)
 	}
-	_, err = tx.ExecContext(ctx, "UPDATE runs SET seal = ? WHERE id = ?", seal, string(id))
+	var sig any
+	if l.sealSigner != nil {
+		b, err := l.sealSigner(SealMessage(id, seal))
+		if err != nil {
+			return fmt.Errorf("sign the seal of run %s: %w", id, err)
+		}
+		sig = string(b)
+	}
+	_, err = tx.ExecContext(ctx, "UPDATE runs SET seal = ?, seal_signature = ? WHERE id = ?", seal, sig, string(id))
 	return err
+}
+
+// SealMessage is what a seal's signature signs: the seal version, the
+// run's id and its seal.
+func SealMessage(id pipeline.RunID, seal string) []byte {
+	return []byte(SealVersion + "\nrun " + strconv.Quote(string(id)) + "\nseal " + seal + "\n")
+}
+
+// WithSealSigner makes the ledger sign every seal it writes with sign
+// (given SealMessage, it returns the signature to store).
+func WithSealSigner(sign func(msg []byte) ([]byte, error)) Option {
+	return func(l *Ledger) { l.sealSigner = sign }
+}
+
+// SealedRun is a finished run's seal and its signature.
+type SealedRun struct {
+	Run             pipeline.RunID
+	Seal, Signature string
+}
+
+// Sealed lists every sealed run with its seal's signature (empty when
+// unsigned), for a verifier that knows which keys to trust.
+func (l *Ledger) Sealed(ctx context.Context) ([]SealedRun, error) {
+	var out []SealedRun
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		rows, err := tx.QueryContext(ctx, "SELECT id, seal, coalesce(seal_signature, '') FROM runs WHERE seal IS NOT NULL ORDER BY id")
+		if err != nil {
+			return err
+		}
+		defer rows.Close()
+		for rows.Next() {
+			var s SealedRun
+			if err := rows.Scan(&s.Run, &s.Seal, &s.Signature); err != nil {
+				return err
+			}
+			out = append(out, s)
+		}
+		return rows.Err()
+	})
+	if err != nil {
+		return nil, fmt.Errorf("ledger: sealed runs: %w", err)
+	}
+	return out, nil
 }
 
 // SealProblems recomputes the seal of every finished run and reports the

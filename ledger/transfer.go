@@ -194,7 +194,11 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 				if got != run.Seal {
 					return fmt.Errorf("%w: run %s: its rows seal to %s, but it was sealed %s: a row was edited after the run finished", ErrIntegrity, run.ID, got, run.Seal)
 				}
-				if _, err := tx.ExecContext(ctx, "UPDATE runs SET seal = ? WHERE id = ?", run.Seal, string(run.ID)); err != nil {
+				var sig any
+				if run.SealSignature != "" {
+					sig = run.SealSignature // travels with the run: checked by verify against trusted keys
+				}
+				if _, err := tx.ExecContext(ctx, "UPDATE runs SET seal = ?, seal_signature = ? WHERE id = ?", run.Seal, sig, string(run.ID)); err != nil {
 					return err
 				}
 			}

@@ -30,6 +30,9 @@ type RunDetail struct {
 	// Seal is the hash of the run's account written when it finished
 	// (see sealOf); empty while running and for runs finished before seals.
 	Seal string
+	// SealSignature is the seal's signature (an armored OpenSSH signature
+	// of SealMessage), empty when the run was sealed without a key.
+	SealSignature string
 }
 
 // RunNode is a node as one run saw it: the stored node together with what

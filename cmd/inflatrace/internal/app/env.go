@@ -102,7 +102,7 @@ func (e *Env) LedgerPath(g *Globals) string {
 // OpenLedger opens the resolved ledger.
 func (e *Env) OpenLedger(g *Globals) (*ledger.Ledger, error) {
 	path := e.LedgerPath(g)
-	l, err := ledger.Open(path, ledger.WithClock(e.Now))
+	l, err := ledger.Open(path, ledger.WithClock(e.Now), ledger.WithSealSigner(e.signSeal))
 	if err != nil {
 		return nil, fmt.Errorf("open ledger %s: %w", path, err)
 	}

@@ -101,3 +101,15 @@ func (e *Env) TrustedSigners() ([]sshsig.Signer, string, error) {
 	}
 	return append(out, more...), file, nil
 }
+
+// SealNamespace is the namespace seals are signed in.
+const SealNamespace = "inflatrace-seal"
+
+// signSeal signs a seal message with the user's key (ledger.WithSealSigner).
+func (e *Env) signSeal(msg []byte) ([]byte, error) {
+	s, err := e.SigningKey()
+	if err != nil {
+		return nil, err
+	}
+	return sshsig.Sign(s, SealNamespace, msg)
+}

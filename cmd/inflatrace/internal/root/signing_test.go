@@ -1,6 +1,7 @@
 package root
 
 import (
+	"database/sql"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -125,5 +126,42 @@ func TestSignedReleases(t *testing.T) {
 	retired, _ := filepath.Glob(filepath.Join(author.dir, "config", "inflatrace", "signing_key.retired-*"))
 	if len(retired) != 2 {
 		t.Errorf("retired key files: %v, want the key and its .pub", retired)
+	}
+}
+
+// Seals are signed with the user's key: verify --all checks each
+// signature against the stored seal, so a seal rewritten after signing (as
+// a consistent edit of a run's rows must rewrite it) is reported; runs
+// sealed by a key the user does not trust are named.
+func TestSignedSeals(t *testing.T) {
+	h := newHarness(t)
+	a := decodeRun(t, h.mustRun("run", h.write("a.toml", studyA), "--json"))
+	b := decodeRun(t, h.mustRun("run", h.write("b.toml", studyA+"\n[[forecast]]\nuse = \"tern-b\"\n"), "--json"))
+	if _, errs, code := h.run("verify", "--all"); code != 0 || strings.Contains(errs, "no seal signature") || strings.Contains(errs, "do not trust") {
+		t.Errorf("verify --all of signed seals: exit %d, %q", code, errs)
+	}
+	db, err := sql.Open("sqlite3", h.ledger)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// b's signature put on a: a genuine signature, of another seal.
+	if _, err := db.Exec("UPDATE runs SET seal_signature = (SELECT seal_signature FROM runs WHERE id = ?) WHERE id = ?", b.Run, a.Run); err != nil {
+		t.Fatal(err)
+	}
+	db.Close()
+	if out, _, code := h.run("verify", "--all"); code != app.ExitRunFailed || !strings.Contains(out, "rewritten after it was signed") || !strings.Contains(out, a.Run) {
+		t.Errorf("verify --all after a seal signature was swapped: exit %d, %q", code, out)
+	}
+	// Another user's runs, merged in, are sealed by a key not trusted here.
+	other := newHarness(t)
+	other.mustRun("run", other.write("a.toml", studyA))
+	h2 := newHarness(t)
+	h2.mustRun("merge", other.ledger)
+	if _, errs, code := h2.run("verify", "--all"); code != 0 || !strings.Contains(errs, "a key you do not trust") {
+		t.Errorf("verify --all of another user's runs: exit %d, %q", code, errs)
+	}
+	trust(t, other, h2)
+	if _, errs, _ := h2.run("verify", "--all"); strings.Contains(errs, "do not trust") {
+		t.Errorf("verify --all after trusting the key: %q", errs)
 	}
 }

@@ -16,6 +16,8 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/archive"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/exportcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/sshsig"
+	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/nodes"
 )
@@ -137,6 +139,11 @@ func Run(ctx context.Context, o *Options) error {
 			return err
 		}
 		probs = append(probs, sealProbs...)
+		sigProbs, err := checkSealSignatures(ctx, o, l)
+		if err != nil {
+			return err
+		}
+		probs = append(probs, sigProbs...)
 		if len(unsealed) > 0 {
 			fmt.Fprintf(o.Env.Stderr, "%d finished run(s) carry no seal (finished before seals): their node rows are checked, their run rows cannot be\n", len(unsealed))
 		}
@@ -259,4 +266,44 @@ func Run(ctx context.Context, o *Options) error {
 		return &app.RunFailedError{Run: id, Failed: counts[Different], First: fmt.Errorf("recomputed outputs differ")}
 	}
 	return nil
+}
+
+// checkSealSignatures checks every seal's signature: one that does not
+// sign the stored seal is a problem (the seal was rewritten after it was
+// signed); runs sealed without a key, or by keys the user does not trust,
+// are reported on stderr.
+func checkSealSignatures(ctx context.Context, o *Options, l *ledger.Ledger) ([]ledger.Problem, error) {
+	sealed, err := l.Sealed(ctx)
+	if err != nil {
+		return nil, err
+	}
+	trusted, file, err := o.Env.TrustedSigners()
+	if err != nil {
+		return nil, err
+	}
+	var probs []ledger.Problem
+	unsigned := 0
+	untrusted := map[string]int{}
+	for _, s := range sealed {
+		if s.Signature == "" {
+			unsigned++
+			continue
+		}
+		pub, err := sshsig.Verify([]byte(s.Signature), app.SealNamespace, ledger.SealMessage(s.Run, s.Seal))
+		if err != nil {
+			probs = append(probs, ledger.Problem{Table: "runs", ID: string(s.Run),
+				What: "the seal's signature does not sign the stored seal: the seal was rewritten after it was signed (" + err.Error() + ")"})
+			continue
+		}
+		if _, ok := sshsig.Find(trusted, pub); !ok {
+			untrusted[sshsig.Fingerprint(pub)]++
+		}
+	}
+	if unsigned > 0 {
+		fmt.Fprintf(o.Env.Stderr, "%d sealed run(s) carry no seal signature (sealed before seals were signed): a consistent edit of their rows and seal would not show\n", unsigned)
+	}
+	for fp, n := range untrusted {
+		fmt.Fprintf(o.Env.Stderr, "%d run(s) sealed by %s, a key you do not trust (add its line to %s if it is a colleague's)\n", n, fp, file)
+	}
+	return probs, nil
 }
