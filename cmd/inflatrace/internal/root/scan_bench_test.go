@@ -122,8 +122,10 @@ func BenchmarkPlot1e5(b *testing.B) {
 // modes, milliseconds a point) run with -j 1 and with -j 2 into fresh
 // ledgers, once each per iteration. Target: j2/j1 speed-up above 1.7 on
 // 2 cores (the numerics dominate; the writer must not serialise them).
+// 240 points: about a second with one job, so that opening a new ledger
+// (its migrations) is not what is measured.
 func BenchmarkExactScanJobs(b *testing.B) {
-	const points = 60
+	const points = 240
 	text := fmt.Sprintf("[slow_roll]\nmethod = \"exact\"\n\n[[reheating]]\nhistory = \"fixed-efolds\"\nN_star = 55\n\n[[constraint]]\nuse = \"cmb-combined-2025\"\n\n[[model]]\nfamily = \"e-model\"\nalpha = {log = [0.1, 10], points = %d}\n", points)
 	var t1, t2 time.Duration
 	for i := 0; i < b.N; i++ {
