@@ -92,6 +92,12 @@ func Export(ctx context.Context, o *Options, extra Extra) error {
 		return err
 	}
 	id := run.ID
+	// Signing a run the user has not vouched for would lend it their key.
+	if why, marked, err := l.Unverified(ctx, id); err != nil {
+		return err
+	} else if marked {
+		return &app.RunFailedError{Run: id, Failed: 1, First: fmt.Errorf("run %s is unverified (%s): \"inflatrace verify %s\" recomputes it before it can be exported under your signature", id, why, id)}
+	}
 	dir := o.Out
 	if isTarball(o.Out) {
 		if _, err := os.Stat(o.Out); err == nil {
@@ -167,29 +173,29 @@ func Export(ctx context.Context, o *Options, extra Extra) error {
 // signature, or signed by a key the user does not trust, is refused
 // unless the options allow it; a signature that does not match is always
 // refused.
-func checkSignature(o *Options, from string, m archive.Manifest) (string, error) {
+func checkSignature(o *Options, from string, m archive.Manifest) (string, bool, error) {
 	if m.Signature == nil {
 		if o.AllowUnsigned {
-			return "unsigned (accepted: --allow-unsigned)", nil
+			return "unsigned (accepted: --allow-unsigned)", false, nil
 		}
-		return "", &TrustError{Archive: from, Msg: "it carries no signature (" + archive.SignatureName + "): --allow-unsigned imports it anyway"}
+		return "", false, &TrustError{Archive: from, Msg: "it carries no signature (" + archive.SignatureName + "): --allow-unsigned imports it anyway"}
 	}
 	pub, err := sshsig.Verify(m.Signature, archive.SignatureNamespace, m.Raw)
 	if err != nil {
-		return "", &archive.TamperError{Archive: from, File: archive.SignatureName, Msg: err.Error() + ": the manifest was changed after it was signed, or the signature is not one"}
+		return "", false, &archive.TamperError{Archive: from, File: archive.SignatureName, Msg: err.Error() + ": the manifest was changed after it was signed, or the signature is not one"}
 	}
 	trusted, file, err := o.Env.TrustedSigners()
 	if err != nil {
-		return "", err
+		return "", false, err
 	}
 	fp := sshsig.Fingerprint(pub)
 	if s, ok := sshsig.Find(trusted, pub); ok {
-		return "signed by " + s.Principals + " (" + fp + ")", nil
+		return "signed by " + s.Principals + " (" + fp + ")", true, nil
 	}
 	if o.AllowUntrusted {
-		return "signed by " + fp + ", a key you do not trust (accepted: --allow-untrusted)", nil
+		return "signed by " + fp + ", a key you do not trust (accepted: --allow-untrusted)", false, nil
 	}
-	return "", &TrustError{Archive: from,
+	return "", false, &TrustError{Archive: from,
 		Msg: fmt.Sprintf("signed by %s, a key you do not trust: if it is the authors' key (compare the fingerprint with the one they published), add the line %q to %s, or pass --allow-untrusted",
 			fp, sshsig.AllowedLine("authors", pub), file)}
 }
@@ -227,6 +233,7 @@ func crossCheck(ctx context.Context, from, ledgerPath, resultsPath string, m arc
 type Checked struct {
 	Manifest archive.Manifest
 	Signed   string // "signed by NAME (SHA256:...)", or how it was accepted
+	Trusted  bool   // signed by a trusted key
 	Ledger   string
 	tmp      string
 }
@@ -268,7 +275,7 @@ func Check(ctx context.Context, o *Options) (*Checked, error) {
 	if err != nil {
 		return fail(refuse(err))
 	}
-	if c.Signed, err = checkSignature(o, o.From, c.Manifest); err != nil {
+	if c.Signed, c.Trusted, err = checkSignature(o, o.From, c.Manifest); err != nil {
 		return fail(refuse(err))
 	}
 	// An archive whose ledger is not one (the manifest can vouch only for
@@ -327,6 +334,12 @@ func Import(ctx context.Context, o *Options) error {
 		return refuse(err)
 	}
 	m := c.Manifest
+	if !c.Trusted {
+		if err := l.MarkUnverified(ctx, pipeline.RunID(m.Run), "imported from "+o.From+", "+c.Signed); err != nil {
+			return err
+		}
+		fmt.Fprintf(o.Env.Stderr, "run %s is marked unverified until \"inflatrace verify %s\" recomputes it\n", m.Run, m.Run)
+	}
 	fmt.Fprintf(o.Env.Stderr, "imported run %s (inflatrace %s) from %s, %s: %d run(s), %d node(s) new; %d node(s) already here\n",
 		m.Run, m.ToolVersion, o.From, c.Signed, rep.Runs, rep.Nodes, rep.NodesKept)
 	return nil

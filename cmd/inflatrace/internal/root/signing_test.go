@@ -78,6 +78,23 @@ func TestSignedReleases(t *testing.T) {
 	if _, errs, code := referee.run("import", dir); code != app.ExitRunFailed || !strings.Contains(errs, "a key you do not trust") || !strings.Contains(errs, "allowed_signers") {
 		t.Errorf("import signed by an unknown key: exit %d, %q; want 3 saying how to trust it", code, errs)
 	}
+	// Accepted from an untrusted key: marked unverified until verify RUN.
+	skeptic := newHarness(t)
+	if _, errs, code := skeptic.run("import", dir, "--allow-untrusted"); code != 0 || !strings.Contains(errs, "marked unverified") {
+		t.Errorf("import --allow-untrusted: exit %d, %q", code, errs)
+	}
+	if out := skeptic.mustRun("show", r.Run); !strings.Contains(out, "UNVERIFIED") {
+		t.Errorf("show of an unverified run says nothing:\n%s", out)
+	}
+	if _, errs, code := skeptic.run("export", r.Run, "--out", filepath.Join(skeptic.dir, "laundered")); code == 0 || !strings.Contains(errs, "unverified") {
+		t.Errorf("export of an unverified run under one's own signature: exit %d, %q; want a refusal", code, errs)
+	}
+	if _, errs, code := skeptic.run("verify", r.Run); code != 0 || !strings.Contains(errs, "no longer marked unverified") {
+		t.Errorf("verify RUN of an unverified run: exit %d, %q", code, errs)
+	}
+	if out := skeptic.mustRun("show", r.Run); strings.Contains(out, "UNVERIFIED") {
+		t.Error("the run is still marked unverified after verify RUN")
+	}
 	trust(t, author, referee)
 	// verify ARCHIVE checks it as import does, without importing it.
 	if out, errs, code := referee.run("verify", dir); code != 0 || !strings.Contains(out, "intact") {

@@ -62,7 +62,10 @@ type Node struct {
 
 // Output is the JSON shape of show --json.
 type Output struct {
-	Run         string `json:"run"`
+	Run string `json:"run"`
+	// Unverified says why the run's numbers are not vouched for (imported
+	// unsigned or from an untrusted key), until verify RUN.
+	Unverified  string `json:"unverified,omitempty"`
 	Status      string `json:"status"`
 	Started     string `json:"started"`
 	Finished    string `json:"finished,omitempty"`
@@ -134,6 +137,11 @@ func Run(ctx context.Context, o *Options) error {
 		ToolVersion: run.ToolVersion, ConfigPath: run.ConfigPath, ConfigHash: run.ConfigHash, Config: run.ConfigText,
 		Error: run.Error, Results: results}
 	out.DerivedFrom = string(run.DerivedFrom)
+	if why, marked, err := l.Unverified(ctx, id); err != nil {
+		return err
+	} else if marked {
+		out.Unverified = why
+	}
 	for _, p := range run.Parts {
 		out.AssembledFrom = append(out.AssembledFrom, string(p))
 	}
@@ -159,6 +167,9 @@ func Run(ctx context.Context, o *Options) error {
 		out.Run, out.Status, out.Started, out.Finished, out.ToolVersion, out.ConfigPath, out.ConfigHash)
 	if out.Error != "" {
 		fmt.Fprintf(w, "error     %s\n", out.Error)
+	}
+	if out.Unverified != "" {
+		fmt.Fprintf(w, "UNVERIFIED %s; \"inflatrace verify %s\" recomputes it\n", out.Unverified, out.Run)
 	}
 	if out.DerivedFrom != "" {
 		note := ""

@@ -265,6 +265,14 @@ func Run(ctx context.Context, o *Options) error {
 	if counts[Different] > 0 {
 		return &app.RunFailedError{Run: id, Failed: counts[Different], First: fmt.Errorf("recomputed outputs differ")}
 	}
+	if why, marked, err := l.Unverified(ctx, id); err != nil {
+		return err
+	} else if marked {
+		if err := l.ClearUnverified(ctx, id); err != nil {
+			return err
+		}
+		fmt.Fprintf(o.Env.Stderr, "verify %s: every node recomputed as recorded: the run is no longer marked unverified (it was %s)\n", id, why)
+	}
 	return nil
 }
 
