@@ -302,6 +302,7 @@ func TestImportRefusesHostileTarballs(t *testing.T) {
 	for _, arc := range []string{r.writeTar(t, "intact.tar.gz", r.entries(t)), r.writeTar(t, "older.tar.gz", sorted)} {
 		other := filepath.Join(h.dir, filepath.Base(arc)+".db")
 		h.mustRun("--ledger", other, "import", arc, "--allow-unsigned")
+		h.mustRun("--ledger", other, "verify", r.run) // accepted unsigned: unverified until recomputed
 		if got := h.mustRun("--ledger", other, "show", r.run, "--json"); got != h.mustRun("show", r.run, "--json") {
 			t.Errorf("%s: the imported run differs from the original", filepath.Base(arc))
 		}
@@ -391,6 +392,7 @@ func TestImportRefusesHostileFolders(t *testing.T) {
 		dir := r.copyDir(t, "intact")
 		other := filepath.Join(h.dir, "intact.db")
 		h.mustRun("--ledger", other, "import", dir, "--allow-unsigned")
+		h.mustRun("--ledger", other, "verify", r.run) // accepted unsigned: unverified until recomputed
 		if got := h.mustRun("--ledger", other, "show", r.run, "--json"); got != h.mustRun("show", r.run, "--json") {
 			t.Error("the imported run differs from the original")
 		}
