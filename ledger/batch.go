@@ -72,7 +72,7 @@ func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch 
 			cols       int
 			rows       [][]any
 		}{
-			{"INSERT INTO nodes (" + nodeInsertColumns + ") VALUES ", "", 12, bs.nodeRows},
+			{"INSERT INTO nodes (" + nodeInsertColumns + ") VALUES ", "", 13, bs.nodeRows},
 			{"INSERT INTO node_inputs (node, position, input) VALUES ", "", 3, bs.inputRows},
 			// A run executed in chunks may reuse one node in several: it is
 			// linked once.
@@ -341,6 +341,10 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 						return err
 					}
 					l.suspect.put(out[i].rec.Key, err.Error())
+					continue
+				}
+				if p := l.macProblem(out[i].rec, out[i].mac); p != "" {
+					l.suspect.put(out[i].rec.Key, p)
 					continue
 				}
 				kept = append(kept, out[i])

@@ -53,6 +53,8 @@ type Ledger struct {
 	suspect keyMemo[string]
 	// sealSigner, when set, signs every seal the ledger writes.
 	sealSigner func(msg []byte) ([]byte, error)
+	// macKey, when set, authenticates nodes (WithNodeKey).
+	macKey []byte
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)

@@ -11,7 +11,7 @@ import (
 )
 
 // nodeColumns are the columns scanNode reads, from table alias n.
-const nodeColumns = "n.id, n.key, n.tool, n.stage, n.stage_version, n.params, n.description, n.outputs, n.output_hash, n.status, n.error, n.duration_ns"
+const nodeColumns = "n.id, n.key, n.tool, n.stage, n.stage_version, n.params, n.description, n.outputs, n.output_hash, n.status, n.error, n.duration_ns, n.mac"
 
 type scanner interface{ Scan(dest ...any) error }
 
@@ -24,6 +24,7 @@ type storedRow struct {
 	// fields once the inputs are known.
 	derived bool
 	rec     pipeline.NodeRecord
+	mac     []byte // the row's authentication code (nil: none)
 }
 
 // stored is what recording the row's reuse needs of it.
@@ -44,7 +45,7 @@ func scanNode(s scanner, extra ...any) (storedRow, error) {
 		durationNS      int64
 	)
 	rec := &row.rec
-	dest := append([]any{&row.id, &key, &row.tool, &rec.Stage, &rec.Version, &params, &description, &outputs, &hash, &status, &rec.Error, &durationNS}, extra...)
+	dest := append([]any{&row.id, &key, &row.tool, &rec.Stage, &rec.Version, &params, &description, &outputs, &hash, &status, &rec.Error, &durationNS, &row.mac}, extra...)
 	if err := s.Scan(dest...); err != nil {
 		return row, err
 	}

@@ -75,6 +75,12 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 			l.suspect.put(key, err.Error())
 			found, err = false, nil
 		}
+		if found && row.rec.Status == pipeline.NodeOK {
+			if p := l.macProblem(row.rec, row.mac); p != "" {
+				l.suspect.put(key, p)
+				found = false
+			}
+		}
 		return err
 	})
 	if err != nil {
@@ -224,6 +230,16 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 				return err
 			}
 		case old.status == pipeline.NodeOK:
+			if suspect != "" && strings.HasPrefix(suspect, unvouched) && old.outputHash == rec.OutputHash {
+				// Computed again as recorded: the row earns this user's code.
+				if _, err := tx.ExecContext(ctx, "UPDATE nodes SET mac = ? WHERE id = ?", l.macOf(rec.Key, rec.Status, rec.OutputHash), old.id); err != nil {
+					return err
+				}
+				if bs != nil {
+					bs.healed = append(bs.healed, rec.Key)
+				}
+				break
+			}
 			if suspect != "" {
 				// A look-up found the row edited: keep it as found, and
 				// rewrite it with what this run computed.
@@ -344,12 +360,19 @@ func (l *Ledger) insertNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecor
 	if err != nil {
 		return 0, err
 	}
-	return l.insertNodeIn(ctx, tx, rec, text, nil)
+	return l.insertNodeInAs(ctx, tx, rec, text, nil, false)
 }
 
 // insertNodeIn is insertNode given the row text; in a batch the rows
 // are queued and the id is the batch's next one.
 func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, text rowText, bs *batchState) (int64, error) {
+	return l.insertNodeInAs(ctx, tx, rec, text, bs, true)
+}
+
+// insertNodeInAs is insertNodeIn; vouch gives the row this user's code (a
+// node this process computed), which a node copied from another ledger
+// does not get (Vouch gives it one once its run is vouched for).
+func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, text rowText, bs *batchState, vouch bool) (int64, error) {
 	ups := make([]int64, len(rec.Inputs))
 	for i, in := range rec.Inputs {
 		up, ok, err := readStoredIn(ctx, tx, in.Key, bs)
@@ -382,8 +405,14 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 	} else {
 		now = formatTime(l.now())
 	}
+	var mac any
+	if vouch && rec.Status == pipeline.NodeOK {
+		if m := l.macOf(rec.Key, rec.Status, rec.OutputHash); m != nil {
+			mac = m
+		}
+	}
 	row := []any{nil, keyArg(rec.Key), tool, rec.Stage, rec.Version, text.params, text.outputs, hash,
-		string(rec.Status), rec.Error, int64(rec.Duration), now}
+		string(rec.Status), rec.Error, int64(rec.Duration), now, mac}
 	var id int64
 	if bs != nil {
 		if bs.kinds == nil {
@@ -404,7 +433,7 @@ func (l *Ledger) insertNodeIn(ctx context.Context, tx *qtx, rec pipeline.NodeRec
 	if err := insertKind(ctx, tx, nodeKind{tool, rec.Stage, rec.Version}); err != nil {
 		return 0, err
 	}
-	res, err := tx.ExecContext(ctx, "INSERT INTO nodes ("+nodeInsertColumns+") VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", row...)
+	res, err := tx.ExecContext(ctx, "INSERT INTO nodes ("+nodeInsertColumns+") VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", row...)
 	if err != nil {
 		return 0, fmt.Errorf("insert node: %w", err)
 	}
@@ -434,20 +463,31 @@ func outputHashArg(rec pipeline.NodeRecord) (any, error) {
 
 // nodeInsertColumns are the columns a new node row is written with (its
 // description is re-derived when read, so it is not stored).
-const nodeInsertColumns = "id, key, tool, stage, stage_version, params, outputs, output_hash, status, error, duration_ns, recorded_at"
+const nodeInsertColumns = "id, key, tool, stage, stage_version, params, outputs, output_hash, status, error, duration_ns, recorded_at, mac"
 
 // updateNode rewrites the mutable part of a row that is currently failed:
 // to ok with outputs, or to failed with a newer error. The WHERE clause
 // makes "an ok row never changes" hold even if the caller got it wrong.
 func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, outputs string) error {
+	return l.updateNodeAs(ctx, tx, rec, outputs, true)
+}
+
+// updateNodeAs is updateNode; vouch gives the row this user's code.
+func (l *Ledger) updateNodeAs(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, outputs string, vouch bool) error {
 	hash, err := outputHashArg(rec)
 	if err != nil {
 		return err
 	}
+	var mac any
+	if vouch && rec.Status == pipeline.NodeOK {
+		if m := l.macOf(rec.Key, rec.Status, rec.OutputHash); m != nil {
+			mac = m
+		}
+	}
 	res, err := tx.ExecContext(ctx, `UPDATE nodes
-		SET outputs = ?, output_hash = ?, status = ?, error = ?, duration_ns = ?, recorded_at = ?
+		SET outputs = ?, output_hash = ?, status = ?, error = ?, duration_ns = ?, recorded_at = ?, mac = ?
 		WHERE key = ? AND status = 'failed'`,
-		outputs, hash, string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now()), keyArg(rec.Key))
+		outputs, hash, string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now()), mac, keyArg(rec.Key))
 	if err != nil {
 		return fmt.Errorf("update node: %w", err)
 	}
@@ -694,9 +734,13 @@ func (l *Ledger) quarantine(ctx context.Context, tx *qtx, run pipeline.RunID, id
 	if err != nil {
 		return fmt.Errorf("%w: description: %v", ErrIntegrity, err)
 	}
+	var mac any
+	if m := l.macOf(rec.Key, rec.Status, rec.OutputHash); m != nil {
+		mac = m
+	}
 	if _, err := tx.ExecContext(ctx, `UPDATE nodes SET tool = ?, stage = ?, stage_version = ?, params = ?, description = NULL, outputs = ?, output_hash = ?,
-		status = 'ok', error = '', recorded_at = ? WHERE id = ?`,
-		tool, rec.Stage, rec.Version, text.params, text.outputs, hash, now, id); err != nil {
+		status = 'ok', error = '', recorded_at = ?, mac = ? WHERE id = ?`,
+		tool, rec.Stage, rec.Version, text.params, text.outputs, hash, now, mac, id); err != nil {
 		return fmt.Errorf("rewrite node %s: %w", rec.Key, err)
 	}
 	// Its inputs as the computation named them.

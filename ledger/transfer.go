@@ -44,6 +44,8 @@ type MergeReport struct {
 	Runs, RunsKept   int // runs written; runs already present (identical)
 	Nodes, NodesKept int // nodes written; nodes already present (identical)
 	Tags             int // tags written
+	// Written are the runs written, in order.
+	Written []pipeline.RunID
 }
 
 // read collects a snapshot of the given runs (all runs when ids is nil).
@@ -146,7 +148,7 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 				if err != nil {
 					return err
 				}
-				if err := l.updateNode(ctx, tx, rec, text.outputs); err != nil {
+				if err := l.updateNodeAs(ctx, tx, rec, text.outputs, false); err != nil {
 					return err
 				}
 				rep.Nodes++
@@ -203,6 +205,7 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 				}
 			}
 			rep.Runs++
+			rep.Written = append(rep.Written, run.ID)
 		}
 		names := make([]string, 0, len(s.tags))
 		for n := range s.tags {

@@ -2,6 +2,7 @@ package ledger
 
 import (
 	"context"
+	"crypto/hmac"
 	"crypto/sha256"
 	"database/sql"
 	"encoding/binary"
@@ -101,9 +102,9 @@ func (w *workRow) rowCheck() []byte {
 
 const workColumns = "id, key, nodes, actions, results, errors, span, summary, digest, row_check"
 
-func scanWork(s scanner) (workRow, error) {
+func scanWork(s scanner, extra ...any) (workRow, error) {
 	var w workRow
-	err := s.Scan(&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, &w.summary, &w.digest, &w.check)
+	err := s.Scan(append([]any{&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, &w.summary, &w.digest, &w.check}, extra...)...)
 	return w, err
 }
 
@@ -126,7 +127,8 @@ func (l *Ledger) LookupWork(ctx context.Context, key pipeline.WorkID) (pipeline.
 	var out pipeline.RecordedWork
 	found := false
 	err = l.inReadTx(ctx, func(tx *qtx) error {
-		w, err := scanWork(tx.QueryRowContext(ctx, "SELECT "+workColumns+" FROM works WHERE key = ?", kb))
+		var mac []byte
+		w, err := scanWork(tx.QueryRowContext(ctx, "SELECT "+workColumns+", mac FROM works WHERE key = ?", kb), &mac)
 		if errors.Is(err, sql.ErrNoRows) {
 			return nil
 		}
@@ -135,6 +137,11 @@ func (l *Ledger) LookupWork(ctx context.Context, key pipeline.WorkID) (pipeline.
 		}
 		if err := w.checked(); err != nil {
 			return err
+		}
+		if l.macKey != nil && !hmac.Equal(mac, l.workMAC(w.digest)) {
+			// Not this user's, nor vouched for: evaluated again (node by
+			// node), which confirms it and gives it a code.
+			return nil
 		}
 		found = true
 		out = pipeline.RecordedWork{ID: w.id, Key: key, Nodes: len(w.actions), Span: w.span, Summary: w.summary}
@@ -288,6 +295,12 @@ func (l *Ledger) insertWork(ctx context.Context, tx *qtx, w *pipeline.Work, bs *
 			if string(digest) != string(row.digest) {
 				return 0, fmt.Errorf("%w: conflicting works for key %s: the ledger holds digest %x, this run's is %x", ErrIntegrity, w.Key, digest, row.digest)
 			}
+			// This run evaluated the work and found the same account.
+			if m := l.workMAC(row.digest); m != nil {
+				if _, err := tx.ExecContext(ctx, "UPDATE works SET mac = ? WHERE id = ?", m, id); err != nil {
+					return 0, err
+				}
+			}
 			return id, nil
 		case !errors.Is(err, sql.ErrNoRows):
 			return 0, err
@@ -297,8 +310,12 @@ func (l *Ledger) insertWork(ctx context.Context, tx *qtx, w *pipeline.Work, bs *
 	if acct.key != nil {
 		keyArgV = acct.key
 	}
-	res, err := tx.ExecContext(ctx, "INSERT INTO works (key, nodes, actions, results, errors, span, summary, digest, row_check, recorded_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
-		keyArgV, row.nodes, row.actions, row.results, row.errorsTxt, row.span, row.summary, row.digest, row.check, bs.now)
+	var mac any
+	if m := l.workMAC(row.digest); m != nil {
+		mac = m
+	}
+	res, err := tx.ExecContext(ctx, "INSERT INTO works (key, nodes, actions, results, errors, span, summary, digest, row_check, recorded_at, mac) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
+		keyArgV, row.nodes, row.actions, row.results, row.errorsTxt, row.span, row.summary, row.digest, row.check, bs.now, mac)
 	if err != nil {
 		return 0, fmt.Errorf("insert work: %w", err)
 	}

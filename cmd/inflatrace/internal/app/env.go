@@ -102,7 +102,15 @@ func (e *Env) LedgerPath(g *Globals) string {
 // OpenLedger opens the resolved ledger.
 func (e *Env) OpenLedger(g *Globals) (*ledger.Ledger, error) {
 	path := e.LedgerPath(g)
-	l, err := ledger.Open(path, ledger.WithClock(e.Now), ledger.WithSealSigner(e.signSeal))
+	opts := []ledger.Option{ledger.WithClock(e.Now)}
+	if nk, err := e.nodeKey(); err == nil {
+		opts = append(opts, ledger.WithNodeKey(nk), ledger.WithSealSigner(e.signSeal))
+	} else {
+		// Without a key (a read-only home, say) nodes are neither given
+		// codes nor checked for them; seals cannot be signed either.
+		fmt.Fprintf(e.Stderr, "warning: no signing key (%v): nodes are recorded and reused without authentication codes, and seals are not signed\n", err)
+	}
+	l, err := ledger.Open(path, opts...)
 	if err != nil {
 		return nil, fmt.Errorf("open ledger %s: %w", path, err)
 	}

@@ -1,6 +1,7 @@
 package app
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -10,6 +11,8 @@ import (
 	"golang.org/x/crypto/ssh"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/sshsig"
+	"github.com/inflatrace/inflatrace/ledger"
+	"github.com/inflatrace/inflatrace/pipeline"
 )
 
 // KeyEnv names a signing-key file to use instead of the one in the user's
@@ -112,4 +115,52 @@ func (e *Env) signSeal(msg []byte) ([]byte, error) {
 		return nil, err
 	}
 	return sshsig.Sign(s, SealNamespace, msg)
+}
+
+// nodeKey is the secret the user's nodes are authenticated under
+// (ledger.WithNodeKey), derived from their signing key (made if needed).
+func (e *Env) nodeKey() ([]byte, error) {
+	if _, err := e.SigningKey(); err != nil {
+		return nil, err
+	}
+	p, err := e.KeyPath()
+	if err != nil {
+		return nil, err
+	}
+	return sshsig.Secret(p, "inflatrace node authentication v1\n")
+}
+
+// VouchTrusted gives the user's authentication codes to the nodes of
+// those of runs whose seals are signed by a key the user trusts (runs
+// merged from the user's own cluster shards, or a trusted colleague's),
+// and names the others, whose nodes a later run computes again rather
+// than reuse.
+func (e *Env) VouchTrusted(ctx context.Context, l *ledger.Ledger, runs []pipeline.RunID) error {
+	if len(runs) == 0 {
+		return nil
+	}
+	trusted, file, err := e.TrustedSigners()
+	if err != nil {
+		return err
+	}
+	for _, id := range runs {
+		d, err := l.Run(ctx, id)
+		if err != nil {
+			return err
+		}
+		ok := false
+		if d.Seal != "" && d.SealSignature != "" {
+			if pub, err := sshsig.Verify([]byte(d.SealSignature), SealNamespace, ledger.SealMessage(id, d.Seal)); err == nil {
+				_, ok = sshsig.Find(trusted, pub)
+			}
+		}
+		if !ok {
+			fmt.Fprintf(e.Stderr, "run %s is not sealed by a key you trust (%s lists them): its nodes are not reused until verify %s recomputes it\n", id, file, id)
+			continue
+		}
+		if _, err := l.Vouch(ctx, id); err != nil {
+			return err
+		}
+	}
+	return nil
 }

@@ -334,11 +334,18 @@ func Import(ctx context.Context, o *Options) error {
 		return refuse(err)
 	}
 	m := c.Manifest
-	if !c.Trusted {
+	if c.Trusted {
+		// Signed by a trusted key: its nodes may be reused.
+		for _, id := range rep.Written {
+			if _, err := l.Vouch(ctx, id); err != nil {
+				return err
+			}
+		}
+	} else {
 		if err := l.MarkUnverified(ctx, pipeline.RunID(m.Run), "imported from "+o.From+", "+c.Signed); err != nil {
 			return err
 		}
-		fmt.Fprintf(o.Env.Stderr, "run %s is marked unverified until \"inflatrace verify %s\" recomputes it\n", m.Run, m.Run)
+		fmt.Fprintf(o.Env.Stderr, "run %s is marked unverified (its nodes are not reused) until \"inflatrace verify %s\" recomputes it\n", m.Run, m.Run)
 	}
 	fmt.Fprintf(o.Env.Stderr, "imported run %s (inflatrace %s) from %s, %s: %d run(s), %d node(s) new; %d node(s) already here\n",
 		m.Run, m.ToolVersion, o.From, c.Signed, rep.Runs, rep.Nodes, rep.NodesKept)

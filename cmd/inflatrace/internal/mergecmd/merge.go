@@ -72,6 +72,10 @@ func Run(ctx context.Context, o *Options) error {
 		}
 		fmt.Fprintf(o.Env.Stderr, "merged %s: %d run(s), %d node(s) new; %d run(s), %d node(s) already here\n",
 			p, rep.Runs, rep.Nodes, rep.RunsKept, rep.NodesKept)
+		if err := o.Env.VouchTrusted(ctx, l, rep.Written); err != nil {
+			l.Close()
+			return err
+		}
 	}
 	if o.NoAssemble {
 		return l.Close()

@@ -1,7 +1,9 @@
 package root
 
 import (
+	"crypto/sha256"
 	"database/sql"
+	"math/rand"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -80,11 +82,21 @@ func TestSignedReleases(t *testing.T) {
 	}
 	// Accepted from an untrusted key: marked unverified until verify RUN.
 	skeptic := newHarness(t)
+	skeptic.rng = rand.New(rand.NewSource(99)) // run ids of its own, not the author's
 	if _, errs, code := skeptic.run("import", dir, "--allow-untrusted"); code != 0 || !strings.Contains(errs, "marked unverified") {
 		t.Errorf("import --allow-untrusted: exit %d, %q", code, errs)
 	}
 	if out := skeptic.mustRun("show", r.Run); !strings.Contains(out, "UNVERIFIED") {
 		t.Errorf("show of an unverified run says nothing:\n%s", out)
+	}
+	// Its nodes and works are not reused: the same study computes again
+	// (and its outputs agree, which vouches for the rows).
+	again := decodeRun(t, skeptic.mustRun("run", skeptic.write("a.toml", studyA), "--json"))
+	if again.Computed == 0 || again.Reused != 0 {
+		t.Errorf("a run over an unverified import: %d computed, %d reused; want nothing reused", again.Computed, again.Reused)
+	}
+	if third := decodeRun(t, skeptic.mustRun("run", skeptic.write("a.toml", studyA), "--json")); third.Computed != 0 {
+		t.Errorf("after the recomputation agreed: %d computed, want 0", third.Computed)
 	}
 	if _, errs, code := skeptic.run("export", r.Run, "--out", filepath.Join(skeptic.dir, "laundered")); code == 0 || !strings.Contains(errs, "unverified") {
 		t.Errorf("export of an unverified run under one's own signature: exit %d, %q; want a refusal", code, errs)
@@ -180,5 +192,51 @@ func TestSignedSeals(t *testing.T) {
 	trust(t, other, h2)
 	if _, errs, _ := h2.run("verify", "--all"); strings.Contains(errs, "do not trust") {
 		t.Errorf("verify --all after trusting the key: %q", errs)
+	}
+}
+
+// A node row edited consistently (its outputs and their hash rewritten
+// together, so every hash check passes) is reported by verify --all (its
+// authentication code no longer matches) and never reused: the next run
+// that needs it computes it again, quarantines the edited row and gives
+// the prediction first computed.
+func TestConsistentNodeEditIsNotReused(t *testing.T) {
+	h := newHarness(t)
+	first := decodeRun(t, h.mustRun("run", demoPath(t), "--json"))
+	db, err := sql.Open("sqlite3", h.ledger)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var id int64
+	var outputs string
+	if err := db.QueryRow("SELECT id, outputs FROM nodes WHERE stage = 'reheat' ORDER BY id LIMIT 1").Scan(&id, &outputs); err != nil {
+		t.Fatal(err)
+	}
+	edited := strings.Replace(outputs, "n_s f 0.9", "n_s f 0.8", 1)
+	if edited == outputs {
+		t.Fatal("the edit changed nothing")
+	}
+	sum := sha256.Sum256([]byte(edited))
+	if _, err := db.Exec("UPDATE nodes SET outputs = ?, output_hash = ? WHERE id = ?", edited, sum[:], id); err != nil {
+		t.Fatal(err)
+	}
+	db.Close()
+	if out, _, code := h.run("verify", "--all"); code != app.ExitRunFailed || !strings.Contains(out, "authentication code does not match") {
+		t.Errorf("verify --all after a consistent edit: exit %d, %q", code, out)
+	}
+	text, err := os.ReadFile(demoPath(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	changed := strings.Replace(string(text), "cmb-combined-2025", "planck2018-bk18", 1)
+	out, errs, code := h.run("run", h.write("d2.toml", changed), "--json")
+	if code != 0 || !strings.Contains(errs, "found edited") {
+		t.Fatalf("run over a consistently edited node: exit %d, %q", code, errs)
+	}
+	second := decodeRun(t, out)
+	for i, r := range second.Results {
+		if r["n_s"] != first.Results[i]["n_s"] {
+			t.Errorf("result %d: n_s %v, first computed %v: the edited row was served", i, r["n_s"], first.Results[i]["n_s"])
+		}
 	}
 }

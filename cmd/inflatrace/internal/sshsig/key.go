@@ -3,6 +3,7 @@ package sshsig
 import (
 	"crypto/ed25519"
 	"crypto/rand"
+	"crypto/sha256"
 	"encoding/pem"
 	"errors"
 	"fmt"
@@ -71,4 +72,31 @@ func Create(path, comment string) (ssh.Signer, error) {
 		return nil, fmt.Errorf("signing key %s.pub: %w", path, err)
 	}
 	return s, nil
+}
+
+// Secret derives a 32-byte secret from the ed25519 key at path, for
+// authentication codes only its holder can make: SHA-256 of a label and
+// the key's seed.
+func Secret(path, label string) ([]byte, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("signing key: %w", err)
+	}
+	raw, err := ssh.ParseRawPrivateKey(data)
+	if err != nil {
+		return nil, fmt.Errorf("signing key %s: %w", path, err)
+	}
+	var seed []byte
+	switch k := raw.(type) {
+	case *ed25519.PrivateKey:
+		seed = k.Seed()
+	case ed25519.PrivateKey:
+		seed = k.Seed()
+	default:
+		return nil, fmt.Errorf("signing key %s: a %T, want ed25519", path, raw)
+	}
+	h := sha256.New()
+	h.Write([]byte(label))
+	h.Write(seed)
+	return h.Sum(nil), nil
 }

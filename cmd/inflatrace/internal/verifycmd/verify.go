@@ -144,6 +144,14 @@ func Run(ctx context.Context, o *Options) error {
 			return err
 		}
 		probs = append(probs, sigProbs...)
+		macProbs, without, err := l.MACProblems(ctx)
+		if err != nil {
+			return err
+		}
+		probs = append(probs, macProbs...)
+		if without > 0 {
+			fmt.Fprintf(o.Env.Stderr, "%d node(s) carry no authentication code of yours (merged from runs you have not vouched for, or written before codes): a run computes them again rather than reuse them\n", without)
+		}
 		if len(unsealed) > 0 {
 			fmt.Fprintf(o.Env.Stderr, "%d finished run(s) carry no seal (finished before seals): their node rows are checked, their run rows cannot be\n", len(unsealed))
 		}
@@ -264,6 +272,11 @@ func Run(ctx context.Context, o *Options) error {
 	}
 	if counts[Different] > 0 {
 		return &app.RunFailedError{Run: id, Failed: counts[Different], First: fmt.Errorf("recomputed outputs differ")}
+	}
+	// Every node recomputed as recorded, the seal intact: the run's nodes
+	// earn this user's authentication codes.
+	if _, err := l.Vouch(ctx, id); err != nil && sealed {
+		return err
 	}
 	if why, marked, err := l.Unverified(ctx, id); err != nil {
 		return err
