@@ -1,5 +1,5 @@
 -- 0016_node_macs: a node's authentication code under its recording
--- user's secret key (HMAC-SHA256 of its key, status and output hash; see
+-- user's secret key (HMAC-SHA256, truncated to 128 bits, of its key, status and output hash; see
 -- ledger/mac.go). A run reuses a node only when the code is its user's:
 -- a row edited consistently (outputs and output hash rewritten) by anyone
 -- without the key, or merged from a ledger the user has not vouched for,
