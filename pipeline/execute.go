@@ -174,13 +174,7 @@ func (s *Session) Execute(ctx context.Context, g *Graph) (*Report, error) {
 			return nil, err
 		}
 	}
-	rep, err := s.schedule(ctx, g)
-	if rep != nil {
-		s.Totals.Computed += rep.Computed
-		s.Totals.Reused += rep.Reused
-		s.Totals.Failed += rep.Failed
-		s.Totals.Skipped += rep.Skipped
-	}
+	rep, err := s.scheduleCounted(ctx, g)
 	if err != nil {
 		return rep, err
 	}
@@ -200,6 +194,18 @@ func (s *Session) Execute(ctx context.Context, g *Graph) (*Report, error) {
 		return rep, fmt.Errorf("record results of run %s: %w", s.info.ID, err)
 	}
 	return rep, nil
+}
+
+// scheduleCounted evaluates g and adds its counts to the session's.
+func (s *Session) scheduleCounted(ctx context.Context, g *Graph) (*Report, error) {
+	rep, err := s.schedule(ctx, g)
+	if rep != nil {
+		s.Totals.Computed += rep.Computed
+		s.Totals.Reused += rep.Reused
+		s.Totals.Failed += rep.Failed
+		s.Totals.Skipped += rep.Skipped
+	}
+	return rep, err
 }
 
 // Committed is the number of the run's results, counted in order over its

@@ -119,14 +119,8 @@ func (s *Session) ExecuteWork(ctx context.Context, g *Graph, key WorkID, summari
 		return nil, err
 	}
 	s.inWork = true
-	rep, err := s.schedule(ctx, g)
+	rep, err := s.scheduleCounted(ctx, g)
 	s.inWork = false
-	if rep != nil {
-		s.Totals.Computed += rep.Computed
-		s.Totals.Reused += rep.Reused
-		s.Totals.Failed += rep.Failed
-		s.Totals.Skipped += rep.Skipped
-	}
 	if err != nil {
 		return rep, err
 	}

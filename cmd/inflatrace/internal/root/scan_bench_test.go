@@ -55,7 +55,7 @@ func BenchmarkScanCold(b *testing.B) {
 var lastLedger string
 
 // ledgerBytes is the ledger's size once its WAL is checkpointed into it.
-func ledgerBytes(b *testing.B, path string) int64 {
+func ledgerBytes(b testing.TB, path string) int64 {
 	db, err := sql.Open("sqlite3", path)
 	if err != nil {
 		b.Fatal(err)

@@ -15,28 +15,6 @@ import (
 	"github.com/inflatrace/inflatrace/pipeline"
 )
 
-// pages is the ledger's size in bytes as SQLite counts it (WAL frames
-// included once checkpointed; we checkpoint first).
-func pages(t *testing.T, path string) int64 {
-	t.Helper()
-	db, err := sql.Open("sqlite3", path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer db.Close()
-	if _, err := db.Exec("PRAGMA wal_checkpoint(TRUNCATE)"); err != nil {
-		t.Fatal(err)
-	}
-	var n, size int64
-	if err := db.QueryRow("PRAGMA page_count").Scan(&n); err != nil {
-		t.Fatal(err)
-	}
-	if err := db.QueryRow("PRAGMA page_size").Scan(&size); err != nil {
-		t.Fatal(err)
-	}
-	return n * size
-}
-
 // A re-run of an unchanged study reuses its works whole: the same output
 // to the byte (run --json, with every result's key and row), every node
 // reused, a few hundred bytes of ledger per work (a run row and one link
@@ -51,10 +29,10 @@ func TestWarmRunReusesWorks(t *testing.T) {
 	h := newHarness(t)
 	coldOut := h.mustRun("run", demoPath(t), "--json")
 	cold := decodeRun(t, coldOut)
-	before := pages(t, h.ledger)
+	before := ledgerBytes(t, h.ledger)
 	warmOut := h.mustRun("run", demoPath(t), "--json")
 	warm := decodeRun(t, warmOut)
-	grown := pages(t, h.ledger) - before
+	grown := ledgerBytes(t, h.ledger) - before
 	if warm.Computed != 0 || warm.Reused != cold.Computed+cold.Reused {
 		t.Errorf("warm run: %d computed, %d reused; want 0 and %d", warm.Computed, warm.Reused, cold.Computed+cold.Reused)
 	}
@@ -163,12 +141,7 @@ func TestEditedNodeIsRecomputed(t *testing.T) {
 	}
 	// The same study with another constraint set: its works are new, its
 	// reheat nodes are looked up, the edited one among them.
-	text, err := os.ReadFile(demoPath(t))
-	if err != nil {
-		t.Fatal(err)
-	}
-	changed := strings.Replace(string(text), "cmb-combined-2025", "planck2018-bk18", 1)
-	out, errs, code := h.run("run", h.write("d2.toml", changed), "--json")
+	out, errs, code := h.run("run", demoOtherSet(t, h), "--json")
 	if code != 0 || !strings.Contains(errs, "found edited") {
 		t.Fatalf("run over an edited node: exit %d, %q", code, errs)
 	}
@@ -181,4 +154,15 @@ func TestEditedNodeIsRecomputed(t *testing.T) {
 			t.Errorf("result %d: n_s %v, first computed %v", i, r["n_s"], first.Results[i]["n_s"])
 		}
 	}
+}
+
+// demoOtherSet writes the demo study with another constraint set: its
+// works are new, and its reheat nodes are looked up one by one.
+func demoOtherSet(t *testing.T, h *harness) string {
+	t.Helper()
+	text, err := os.ReadFile(demoPath(t))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return h.write("d2.toml", strings.Replace(string(text), "cmb-combined-2025", "planck2018-bk18", 1))
 }
