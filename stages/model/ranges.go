@@ -56,19 +56,67 @@ func onDomain(lo, hi float64, v func(num.Jet) num.Jet) func(num.Jet) num.Jet {
 // reach's bracket. Unlike reach it does not overshoot (reach may double
 // the field), for potentials that flatten to the last bit of a float
 // beyond it: there V' rounds to zero and no e-fold integral exists.
+//
+// The bisection's comparisons are answered without evaluating efolds
+// wherever the midpoint lies clearly on one side of the crossing: a
+// Brent root search (num.BrentF, a handful of evaluations) first narrows
+// the crossing to a bracket of relative width about 1e-12, and only
+// midpoints within that bracket are evaluated. For efolds growing with
+// the field this gives the bisection's answer to the bit, at a third of
+// its evaluations (a family's default range is rebuilt by every stage
+// that reads the model). Where the root search cannot run (efolds not
+// finite at the bracket's end) every midpoint is evaluated.
 func reachAt(efolds func(phi float64) float64, from, w float64) float64 {
 	hi := reach(efolds, from, w)
 	lo := from
 	if d := hi - from; d > w {
 		lo = from + d/2
 	}
+	reached := func(phi float64) bool {
+		n := efolds(phi)
+		return n >= rangeEfolds || math.IsInf(n, 1) || math.IsNaN(n)
+	}
+	below, above := crossing(efolds, lo, hi)
 	for i := 0; i < 200 && hi-lo > 1e-9*math.Abs(hi); i++ { // the range need not be exact
 		mid := lo + (hi-lo)/2
-		if n := efolds(mid); n >= rangeEfolds || math.IsInf(n, 1) || math.IsNaN(n) {
+		var r bool
+		switch {
+		case mid < below:
+			r = false
+		case mid > above:
+			r = true
+		default:
+			r = reached(mid)
+		}
+		if r {
 			hi = mid
 		} else {
 			lo = mid
 		}
 	}
 	return hi
+}
+
+// crossing returns field values below and above which efolds, growing
+// with the field, is below and at least rangeEfolds, from a Brent search
+// on [lo, hi]: the root's bracket widened by a margin, so that every
+// value outside [below, above] is on the side its position says. Where
+// the search cannot run, it returns (-Inf, +Inf), which decides nothing.
+func crossing(efolds func(phi float64) float64, lo, hi float64) (below, above float64) {
+	none := func() (float64, float64) { return math.Inf(-1), math.Inf(1) }
+	f := func(phi float64) float64 { return efolds(phi) - rangeEfolds }
+	flo, fhi := f(lo), f(hi)
+	if !(flo < 0) || !(fhi >= 0) || math.IsInf(fhi, 0) || math.IsInf(flo, 0) {
+		return none()
+	}
+	xtol := 1e-12 * math.Abs(hi)
+	r, err := num.BrentF(f, lo, hi, flo, fhi, &num.RootSettings{XTol: xtol})
+	if err != nil {
+		return none()
+	}
+	// Brent stops with the root within tol = 2 eps |x| + xtol/2 of its
+	// answer (the half-width of its last bracket); the margin is twice
+	// that, and more than the rounding of efolds could move a crossing.
+	margin := 2 * (4*2.220446049250313e-16*math.Abs(r.X) + xtol)
+	return r.X - margin, r.X + margin
 }
