@@ -184,7 +184,7 @@ func reheatOutputs(params, in pipeline.Values, history string, progress pipeline
 		if err := check(pr); err != nil {
 			return nil, err
 		}
-		out := predictionValues(pr)
+		out := predictionValues(pr, 2+specCount(in))
 		out["reheating"] = pipeline.String(history)
 		out["A_s"] = params["A_s"]
 		return out, nil
@@ -241,7 +241,7 @@ func reheatOutputs(params, in pipeline.Values, history string, progress pipeline
 	if err := check(pr); err != nil {
 		return nil, err
 	}
-	out := predictionValues(pr)
+	out := predictionValues(pr, 7+specCount(in))
 	out["reheating"] = pipeline.String(history)
 	out["A_s"] = params["A_s"]
 	out["T_reh_GeV"] = pipeline.Float(reheat.GeV(pr.TReh), pipeline.UnitGeV)
@@ -252,11 +252,12 @@ func reheatOutputs(params, in pipeline.Values, history string, progress pipeline
 	return out, nil
 }
 
-// predictionValues encodes a normalised prediction.
-func predictionValues(pr reheat.Prediction) pipeline.Values {
-	// Room for the values the callers add: the history's and the model's
-	// specification.
-	vs := make(pipeline.Values, 32)
+// predictionValues encodes a normalised prediction, in a map with room
+// for extra more values (the history's and the model's specification,
+// which the callers add: a map sized for what it will hold is built once,
+// where one sized by a round guess is twice as large or grows).
+func predictionValues(pr reheat.Prediction, extra int) pipeline.Values {
+	vs := make(pipeline.Values, 15+extra)
 	vs["N_star"] = pipeline.Float(pr.N, pipeline.UnitNone)
 	vs["phi_star"] = pipeline.Float(pr.Point.Phi, pipeline.UnitMp)
 	vs["phi_end"] = pipeline.Float(pr.PhiEnd, pipeline.UnitMp) // the end N* is counted from
@@ -316,22 +317,24 @@ func evaluator(in pipeline.Values, n reheat.Normalisation, nMax float64) (reheat
 	sp := decodeSlowRoll(in)
 	checkWith := func(c func(N float64) slowroll.PivotCheck) func(reheat.Prediction) error {
 		return func(pr reheat.Prediction) error {
-			name := sol.Model.Describe()
+			// The model's description names it in an error only: written
+			// on demand (it costs more than the checks that pass).
+			name := sol.Model.Describe
 			if !(pr.N > 0) || !finite(pr.N) {
-				return &slowroll.ConsistencyError{Model: name, N: pr.N, Msg: fmt.Sprintf("N* = %g", pr.N)}
+				return &slowroll.ConsistencyError{Model: name(), N: pr.N, Msg: fmt.Sprintf("N* = %g", pr.N)}
 			}
 			if err := sol.CheckPivot(pr.Point.Phi, c(pr.N)); err != nil {
 				return err
 			}
-			if err := slowroll.CheckObservables(name, pr.N, pr.Obs); err != nil {
+			if err := sol.CheckObservables(pr.N, pr.Obs); err != nil {
 				return err
 			}
-			for _, v := range []struct {
+			for _, v := range [...]struct {
 				what string
 				x    float64
 			}{{"V0", pr.Scale.V0}, {"V*", pr.Scale.Vstar}, {"H*", pr.Scale.Hstar}, {"rho_end", pr.Scale.RhoEnd}} {
 				if !(v.x > 0) || !finite(v.x) {
-					return &slowroll.ConsistencyError{Model: name, Phi: pr.Point.Phi, N: pr.N, Msg: fmt.Sprintf("%s = %g after normalisation to A_s", v.what, v.x)}
+					return &slowroll.ConsistencyError{Model: name(), Phi: pr.Point.Phi, N: pr.N, Msg: fmt.Sprintf("%s = %g after normalisation to A_s", v.what, v.x)}
 				}
 			}
 			return nil

@@ -113,6 +113,32 @@ func carrySpec(in, out pipeline.Values) {
 	}
 }
 
+// specCount returns the number of values carrySpec copies from vs.
+func specCount(vs pipeline.Values) int {
+	if f, err := model.Lookup(text(vs, keyFamily)); err == nil {
+		n := 1 + len(f.Params)
+		if _, ok := vs[keyFieldLo]; ok {
+			n++
+		}
+		if _, ok := vs[keyFieldHi]; ok {
+			n++
+		}
+		return n
+	}
+	n := 0
+	for k := range vs {
+		if k == keyFamily || k == keyFieldLo || k == keyFieldHi || strings.HasPrefix(k, ParamPrefix) {
+			n++
+		}
+	}
+	for _, k := range customKeys {
+		if _, ok := vs[k]; ok {
+			n++
+		}
+	}
+	return n
+}
+
 // specOf returns the specification to carry forward from a node whose
 // input specified m, in a map with room for extra more values.
 func specOf(m *model.Model, in pipeline.Values, extra int) pipeline.Values {

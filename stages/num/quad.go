@@ -102,7 +102,9 @@ func Integrate(f func(float64) float64, a, b float64, s *QuadSettings) (QuadResu
 		a, b, sign = b, a, -1
 	}
 	v, e := gk15(f, a, b)
-	pieces := []quadPiece{{a, b, v, e}}
+	// Most integrals need a few pieces: those live on the stack.
+	var buf [16]quadPiece
+	pieces := append(buf[:0], quadPiece{a, b, v, e})
 	res := QuadResult{Evals: 15}
 	total, totalErr := v, e
 	for {

@@ -98,16 +98,26 @@ func (sol *Solution) CheckPivot(phi float64, c PivotCheck) error {
 
 // CheckObservables refuses observables that are not finite numbers.
 func CheckObservables(model string, N float64, o Observables) error {
-	for _, v := range []struct {
+	return checkObservables(func() string { return model }, N, o)
+}
+
+// CheckObservables is the package's CheckObservables for the solution's
+// model, whose description is written only when the check fails.
+func (sol *Solution) CheckObservables(N float64, o Observables) error {
+	return checkObservables(sol.Model.Describe, N, o)
+}
+
+func checkObservables(model func() string, N float64, o Observables) error {
+	for _, v := range [...]struct {
 		name string
 		x    float64
 	}{{"n_s", o.Ns}, {"r", o.R}, {"alpha_s", o.AlphaS}, {"n_t", o.Nt}} {
 		if !finite(v.x) {
-			return &ConsistencyError{Model: model, N: N, Msg: fmt.Sprintf("%s = %g is not a finite number", v.name, v.x)}
+			return &ConsistencyError{Model: model(), N: N, Msg: fmt.Sprintf("%s = %g is not a finite number", v.name, v.x)}
 		}
 	}
 	if !(o.R >= 0) {
-		return &ConsistencyError{Model: model, N: N, Msg: fmt.Sprintf("r = %g is negative", o.R)}
+		return &ConsistencyError{Model: model(), N: N, Msg: fmt.Sprintf("r = %g is negative", o.R)}
 	}
 	return nil
 }
