@@ -229,11 +229,22 @@ func (l *Ledger) runNodesIn(ctx context.Context, id pipeline.RunID, table string
 			return err
 		}
 		rows.Close()
-		for i := range stored {
-			if err := completeNode(ctx, tx, &stored[i]); err != nil {
+		// Inputs 500 nodes a query (a query a node made show of a large
+		// scan take minutes).
+		for lo := 0; lo < len(stored); lo += 500 {
+			part := map[int64]*storedRow{}
+			for i := lo; i < min(lo+500, len(stored)); i++ {
+				part[stored[i].id] = &stored[i]
+			}
+			if err := loadInputs(ctx, tx, part); err != nil {
 				return err
 			}
-			out[i].NodeRecord = stored[i].rec
+			for i := lo; i < min(lo+500, len(stored)); i++ {
+				if err := finishNode(&stored[i]); err != nil {
+					return err
+				}
+				out[i].NodeRecord = stored[i].rec
+			}
 		}
 		return nil
 	})
