@@ -234,12 +234,16 @@ func (l *Ledger) runNodesIn(ctx context.Context, id pipeline.RunID, table string
 		for lo := 0; lo < len(stored); lo += 500 {
 			part := map[int64]*storedRow{}
 			for i := lo; i < min(lo+500, len(stored)); i++ {
-				part[stored[i].id] = &stored[i]
+				if _, dup := part[stored[i].id]; !dup {
+					part[stored[i].id] = &stored[i]
+				}
 			}
 			if err := loadInputs(ctx, tx, part); err != nil {
 				return err
 			}
 			for i := lo; i < min(lo+500, len(stored)); i++ {
+				// A node a run linked twice (a point met in two works).
+				stored[i].rec.Inputs = part[stored[i].id].rec.Inputs
 				if err := finishNode(&stored[i]); err != nil {
 					return err
 				}
