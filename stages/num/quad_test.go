@@ -117,3 +117,71 @@ func TestIntegrateProperties(t *testing.T) {
 		t.Errorf("RelTol 1e-6: %.12g vs %.12g", loose.Value, whole.Value)
 	}
 }
+
+// TestQuadRuleExactness checks the tabulated nodes and weights of both
+// rule pairs against the exactness that defines them: an n-point Gauss
+// rule integrates polynomials of degree <= 2n - 1 exactly, and its
+// (2n+1)-point Kronrod extension those of degree <= 3n + 1 (n even) or
+// 3n + 2 (n odd) (Kronrod 1965; Laurie 1997, Math. Comp. 66, 1133,
+// "Calculation of Gauss-Kronrod quadrature rules", sect. 1; from memory):
+// 5 and 11 for GK7, 13 and 22 for GK15. On [0, 1] the integral of x^k is
+// 1/(k+1), and the estimate |K - G| vanishes where the Gauss rule is exact
+// too. The next even degree, on [-1, 1] (where odd powers integrate to 0
+// by symmetry alone), must be off for each rule, else a wrong node could
+// pass. Tolerance 4e-16: sums of a few products of numbers below 1.
+func TestQuadRuleExactness(t *testing.T) {
+	for _, c := range []struct {
+		name             string
+		rule             func(func(float64) float64, float64, float64) (float64, float64)
+		gaussDeg, kroDeg int
+	}{{"GK7", gk7, 5, 11}, {"GK15", gk15, 13, 22}} {
+		pow := func(k int) func(float64) float64 { return func(x float64) float64 { return math.Pow(x, float64(k)) } }
+		for k := 0; k <= c.kroDeg; k++ {
+			kro, est := c.rule(pow(k), 0, 1)
+			if want := 1 / float64(k+1); math.Abs(kro-want) > 4e-16 {
+				t.Errorf("%s: x^%d on [0, 1]: %.17g, want %.17g", c.name, k, kro, want)
+			}
+			if k <= c.gaussDeg && est > 4e-16 {
+				t.Errorf("%s: x^%d on [0, 1]: |K - G| = %g, want 0 (both rules exact)", c.name, k, est)
+			}
+		}
+		beyond := func(deg int) int { return deg + 1 + (deg+1)%2 }
+		k := beyond(c.kroDeg)
+		if kro, _ := c.rule(pow(k), -1, 1); math.Abs(kro-2/float64(k+1)) <= 4e-16 {
+			t.Errorf("%s: x^%d on [-1, 1] integrated exactly, beyond the Kronrod rule's degree", c.name, k)
+		}
+		k = beyond(c.gaussDeg)
+		if _, est := c.rule(pow(k), -1, 1); est <= 4e-16 {
+			t.Errorf("%s: x^%d on [-1, 1]: |K - G| = %g, but the Gauss rule is not exact there", c.name, k, est)
+		}
+	}
+}
+
+// TestIntegrateGK7: the GK7 rule gives the closed forms of
+// TestIntegrateClosedForms too (more subintervals, about half the
+// evaluations per subinterval), and a constant in one subinterval of 7
+// evaluations.
+func TestIntegrateGK7(t *testing.T) {
+	s := &QuadSettings{Rule: GK7}
+	for _, c := range []struct {
+		name string
+		f    func(float64) float64
+		a, b float64
+		want float64
+		tol  float64
+	}{
+		{"e^x on [0,1]", math.Exp, 0, 1, math.E - 1, 1e-14},
+		{"4/(1+x^2) on [0,1]", func(x float64) float64 { return 4 / (1 + x*x) }, 0, 1, math.Pi, 1e-13},
+		{"Gaussian on [-10,10]", func(x float64) float64 { return math.Exp(-x * x) }, -10, 10, math.Sqrt(math.Pi) * math.Erf(10), 1e-13},
+		{"sqrt(x) on [0,4]", math.Sqrt, 0, 4, 16.0 / 3, 1e-12},
+	} {
+		r, err := Integrate(c.f, c.a, c.b, s)
+		if err != nil || !within(r.Value, c.want, c.tol, 0) {
+			t.Errorf("%s: got %.17g (%v), want %.17g", c.name, r.Value, err, c.want)
+		}
+	}
+	r, err := Integrate(func(float64) float64 { return 2.5 }, -3, 7, s)
+	if err != nil || r.Value != 25 || r.Evals != 7 || r.Intervals != 1 {
+		t.Errorf("constant: %+v, %v; want 25 from 7 evaluations", r, err)
+	}
+}
