@@ -45,34 +45,48 @@ var tModel = &Family{
 	build: func(p map[string]float64) (*Model, error) {
 		alpha, n := p["alpha"], p["n"]
 		s := math.Sqrt(6 * alpha)
-		return &Model{
-			Family: "t-model", Params: p,
-			V: func(phi num.Jet) num.Jet {
-				return num.PowConst(num.Tanh(num.Scale(1/s, phi)), 2*n)
-			},
-			// The range ends where N(phi) = (3 alpha/(4n)) (cosh(2 phi/s) - 1),
-			// the slow-roll e-folds from phi = 0 (V/V' = (s/(4n)) sinh(2 phi/s),
-			// integrated), reaches rangeEfolds: for large alpha that is
-			// phi^2/(4n) of the monomial, for small alpha a few s beyond the
-			// end; and at least 14 s, well onto the plateau (N ~ e^28 alpha
-			// there). A range fixed in M_p would reach, at small alpha, where
-			// cosh(phi/s)^2 overflows and V' rounds to 0.
-			Lo: 0, Hi: math.Max(14*s, reachAt(func(phi float64) float64 { return 3 * alpha / (4 * n) * (math.Cosh(2*phi/s) - 1) }, 0, s/8)),
-			Native: &NativeField{
-				Name: "chi", Lo: -s, Hi: s, Origin: 0,
-				Kinetic: func(x float64) float64 {
-					q := 1 - x*x/(6*alpha)
-					return 1 / (q * q)
-				},
-				V: func(x num.Jet) num.Jet {
-					return num.PowConst(num.Scale(1/(6*alpha), num.Mul(x, x)), n)
-				},
-				ToCanonical:   func(x float64) float64 { return s * math.Atanh(x/s) },
-				FromCanonical: func(phi float64) float64 { return s * math.Tanh(phi/s) },
-				MapFormula:    "chi = sqrt(6 alpha) tanh(phi/sqrt(6 alpha))",
-			},
-		}, nil
+		// The range ends where N(phi) = (3 alpha/(4n)) (cosh(2 phi/s) - 1),
+		// the slow-roll e-folds from phi = 0 (V/V' = (s/(4n)) sinh(2 phi/s),
+		// integrated), reaches rangeEfolds: for large alpha that is
+		// phi^2/(4n) of the monomial, for small alpha a few s beyond the
+		// end; and at least 14 s, well onto the plateau (N ~ e^28 alpha
+		// there). A range fixed in M_p would reach, at small alpha, where
+		// cosh(phi/s)^2 overflows and V' rounds to 0.
+		hi := math.Max(14*s, reachAt(func(phi float64) float64 { return 3 * alpha / (4 * n) * (math.Cosh(2*phi/s) - 1) }, 0, s/8))
+		return newTModel(p, 0, hi), nil
 	},
+	buildOn: func(p map[string]float64, lo, hi float64) (*Model, error) { return newTModel(p, lo, hi), nil },
+}
+
+// newTModel returns the T-model on the canonical range (lo, hi).
+func newTModel(p map[string]float64, lo, hi float64) *Model {
+	alpha, n := p["alpha"], p["n"]
+	s := math.Sqrt(6 * alpha)
+	return &Model{
+		Family: "t-model", Params: p,
+		V: func(phi num.Jet) num.Jet {
+			return num.PowConst(num.Tanh(num.Scale(1/s, phi)), 2*n)
+		},
+		Lo: lo, Hi: hi,
+		Efolds: func(a, b float64) float64 { return coshEfolds(s*s/(4*n), s, a, b) },
+		// epsilon_V = 8 n^2/(s^2 sinh^2(2 phi/s)) falls monotonically on
+		// phi > 0 and is 1 where sinh(2 phi/s) = 2 sqrt(2) n/s (derived
+		// here).
+		EpsilonEnd: func() float64 { return s / 2 * math.Asinh(2*math.Sqrt2*n/s) },
+		Native: &NativeField{
+			Name: "chi", Lo: -s, Hi: s, Origin: 0,
+			Kinetic: func(x float64) float64 {
+				q := 1 - x*x/(6*alpha)
+				return 1 / (q * q)
+			},
+			V: func(x num.Jet) num.Jet {
+				return num.PowConst(num.Scale(1/(6*alpha), num.Mul(x, x)), n)
+			},
+			ToCanonical:   func(x float64) float64 { return s * math.Atanh(x/s) },
+			FromCanonical: func(phi float64) float64 { return s * math.Tanh(phi/s) },
+			MapFormula:    "chi = sqrt(6 alpha) tanh(phi/sqrt(6 alpha))",
+		},
+	}
 }
 
 // eModel is the alpha-attractor E-model,
@@ -92,30 +106,44 @@ var eModel = &Family{
 	build: func(p map[string]float64) (*Model, error) {
 		alpha, n := p["alpha"], p["n"]
 		b := math.Sqrt(2 / (3 * alpha))
-		return &Model{
-			Family: "e-model", Params: p,
-			V: func(phi num.Jet) num.Jet { return plateauExp(phi, b, 2*n) },
-			// The range ends where N(phi) = (3 alpha/(4n)) (e^(b phi) - 1 - b phi),
-			// the slow-roll e-folds from phi = 0 (V/V' = (e^(b phi) - 1)/(2 n b),
-			// integrated), reaches rangeEfolds: phi^2/(4n) for large alpha, a
-			// few 1/b beyond the end for small alpha, where a fixed range in M_p
-			// would reach y = e^(b phi) beyond the largest float; and at least
-			// 30/b, well onto the plateau.
-			Lo: 0, Hi: math.Max(30/b, reachAt(func(phi float64) float64 {
-				return 3 * alpha / (4 * n) * (math.Expm1(b*phi) - b*phi)
-			}, 0, 1/(8*b))),
-			Native: &NativeField{
-				Name: "y", Lo: 0, Hi: inf, Origin: 1,
-				Kinetic: func(y float64) float64 { return 3 * alpha / (2 * y * y) },
-				V: func(y num.Jet) num.Jet {
-					return num.PowConst(num.Sub(num.Const(1), num.Recip(y)), 2*n)
-				},
-				ToCanonical:   func(y float64) float64 { return math.Log(y) / b },
-				FromCanonical: func(phi float64) float64 { return math.Exp(b * phi) },
-				MapFormula:    "y = exp(sqrt(2/(3 alpha)) phi)",
-			},
-		}, nil
+		// The range ends where N(phi) = (3 alpha/(4n)) (e^(b phi) - 1 - b phi),
+		// the slow-roll e-folds from phi = 0 (V/V' = (e^(b phi) - 1)/(2 n b),
+		// integrated), reaches rangeEfolds: phi^2/(4n) for large alpha, a
+		// few 1/b beyond the end for small alpha, where a fixed range in M_p
+		// would reach y = e^(b phi) beyond the largest float; and at least
+		// 30/b, well onto the plateau.
+		hi := math.Max(30/b, reachAt(func(phi float64) float64 {
+			return 3 * alpha / (4 * n) * (math.Expm1(b*phi) - b*phi)
+		}, 0, 1/(8*b)))
+		return newEModel(p, 0, hi), nil
 	},
+	buildOn: func(p map[string]float64, lo, hi float64) (*Model, error) { return newEModel(p, lo, hi), nil },
+}
+
+// newEModel returns the E-model on the canonical range (lo, hi).
+func newEModel(p map[string]float64, lo, hi float64) *Model {
+	alpha, n := p["alpha"], p["n"]
+	b := math.Sqrt(2 / (3 * alpha))
+	return &Model{
+		Family: "e-model", Params: p,
+		V:  func(phi num.Jet) num.Jet { return plateauExp(phi, b, 2*n) },
+		Lo: lo, Hi: hi,
+		Efolds: func(lo, hi float64) float64 { return plateauEfolds(3*alpha/(4*n), b, lo, hi) },
+		// epsilon_V = 2 n^2 b^2/(e^(b phi) - 1)^2 falls monotonically on
+		// phi > 0 and is 1 where e^(b phi) = 1 + sqrt(2) n b (derived
+		// here).
+		EpsilonEnd: func() float64 { return math.Log1p(math.Sqrt2*n*b) / b },
+		Native: &NativeField{
+			Name: "y", Lo: 0, Hi: inf, Origin: 1,
+			Kinetic: func(y float64) float64 { return 3 * alpha / (2 * y * y) },
+			V: func(y num.Jet) num.Jet {
+				return num.PowConst(num.Sub(num.Const(1), num.Recip(y)), 2*n)
+			},
+			ToCanonical:   func(y float64) float64 { return math.Log(y) / b },
+			FromCanonical: func(phi float64) float64 { return math.Exp(b * phi) },
+			MapFormula:    "y = exp(sqrt(2/(3 alpha)) phi)",
+		},
+	}
 }
 
 // plateauExp returns (1 - exp(-b phi))^q.
@@ -137,6 +165,10 @@ var starobinsky = &Family{
 			Family: "starobinsky", Params: p,
 			V:  func(phi num.Jet) num.Jet { return plateauExp(phi, b, 2) },
 			Lo: 0, Hi: 30 / b,
+			// The e-model's count at alpha = 1, n = 1: c = 1/(2 n b^2) = 3/4.
+			Efolds: func(lo, hi float64) float64 { return plateauEfolds(0.75, b, lo, hi) },
+			// The e-model's end at alpha = 1, n = 1: e^(b phi) = 1 + sqrt(2) b.
+			EpsilonEnd: func() float64 { return math.Log1p(math.Sqrt2*b) / b },
 		}, nil
 	},
 }
@@ -161,6 +193,10 @@ var powerLaw = &Family{
 			// N(phi) = (phi^2 - phi_end^2)/(2p) with phi_end = p/sqrt(2): the
 			// range holds 1.44 x 600 e-folds beyond the end.
 			Lo: 0, Hi: 1.2 * math.Sqrt(2*q*rangeEfolds+q*q/2),
+			// V/V' = phi/p: the count from a to b is (b^2 - a^2)/(2p).
+			Efolds: func(a, b float64) float64 { return (b - a) * (b + a) / (2 * q) },
+			// epsilon_V = p^2/(2 phi^2): the end is at phi = p/sqrt(2).
+			EpsilonEnd: func() float64 { return q / math.Sqrt2 },
 		}, nil
 	},
 }

@@ -53,6 +53,10 @@ type Family struct {
 	// field ends in a minimum.
 	AsymptoticW func(params map[string]float64) (w float64, ok bool)
 	build       func(p map[string]float64) (*Model, error)
+	// buildOn, when not nil, builds the model on a given canonical range
+	// without computing the default one (NewOn), for families whose
+	// default range costs a root search.
+	buildOn func(p map[string]float64, lo, hi float64) (*Model, error)
 }
 
 // ParamNames returns the declared parameter names in order.
@@ -81,6 +85,43 @@ func (e *ParamError) Error() string {
 // checking every value against its declared range. Unknown and missing
 // parameters are errors that list the allowed names.
 func (f *Family) New(given map[string]float64) (*Model, error) {
+	p, err := f.params(given)
+	if err != nil {
+		return nil, err
+	}
+	// A build fails only where the model is computed (a numerical canonical
+	// map); its error already names the family.
+	return f.build(p)
+}
+
+// NewOn is New followed by WithRange(lo, hi) for a range that New (and
+// WithRange) already accepted for these parameters: the range a model's
+// specification records. A family that computes its default range by a
+// root search (the alpha-attractors) builds the model on (lo, hi) without
+// computing the default range, so the range is not checked against it
+// again; the model is the one New and WithRange would give. Parameters are
+// checked as by New.
+func (f *Family) NewOn(given map[string]float64, lo, hi float64) (*Model, error) {
+	if f.buildOn == nil {
+		m, err := f.New(given)
+		if err != nil || (lo == m.Lo && hi == m.Hi) {
+			return m, err
+		}
+		return m.WithRange(lo, hi)
+	}
+	if !(lo < hi) || math.IsNaN(lo) || math.IsNaN(hi) {
+		return nil, fmt.Errorf("field range [%g, %g] is empty", lo, hi)
+	}
+	p, err := f.params(given)
+	if err != nil {
+		return nil, err
+	}
+	return f.buildOn(p, lo, hi)
+}
+
+// params returns the parameters New builds with: given, with defaults
+// applied, each checked against its declared range.
+func (f *Family) params(given map[string]float64) (map[string]float64, error) {
 	var unknown []string
 	for n := range given {
 		if !f.hasParam(n) {
@@ -105,9 +146,7 @@ func (f *Family) New(given map[string]float64) (*Model, error) {
 		}
 		p[d.Name] = v
 	}
-	// A build fails only where the model is computed (a numerical canonical
-	// map); its error already names the family.
-	return f.build(p)
+	return p, nil
 }
 
 // hasParam reports whether the family declares a parameter named n.

@@ -239,3 +239,57 @@ func TestParamInterval(t *testing.T) {
 		}
 	}
 }
+
+// TestNewOnIsNewWithRange: NewOn on a range New and WithRange accept gives
+// the model they give (property): the same range, parameters, potential
+// and closed forms, for every family, on its default range and on a
+// narrower one; and it checks parameters as New does.
+func TestNewOnIsNewWithRange(t *testing.T) {
+	for _, name := range Names() {
+		f, _ := Lookup(name)
+		given := map[string]float64{}
+		for _, p := range f.Params {
+			if math.IsNaN(p.Default) {
+				given[p.Name] = map[string]float64{"alpha": 1, "p": 2, "f": 7, "mu": 10, "q": 1, "v": 20, "xi": 1e4, "gamma": 50}[p.Name]
+			}
+		}
+		def, err := f.New(given)
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		narrow, err := def.WithRange(def.Lo+0.25*(def.Hi-def.Lo), def.Lo+0.75*(def.Hi-def.Lo))
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		for _, want := range []*Model{def, narrow} {
+			got, err := f.NewOn(given, want.Lo, want.Hi)
+			if err != nil {
+				t.Errorf("%s on (%g, %g): %v", name, want.Lo, want.Hi, err)
+				continue
+			}
+			if got.Lo != want.Lo || got.Hi != want.Hi || got.Describe() != want.Describe() || (got.Native == nil) != (want.Native == nil) ||
+				(got.Efolds == nil) != (want.Efolds == nil) || (got.EpsilonEnd == nil) != (want.EpsilonEnd == nil) {
+				t.Errorf("%s: NewOn gives %s on (%g, %g), want %s on (%g, %g)", name, got.Describe(), got.Lo, got.Hi, want.Describe(), want.Lo, want.Hi)
+				continue
+			}
+			for i := 1; i < 8; i++ {
+				phi := want.Lo + (want.Hi-want.Lo)*float64(i)/8
+				if g, w := got.At(phi), want.At(phi); g != w && !(g.V != g.V && w.V != w.V) {
+					t.Errorf("%s: V(%g) = %+v, want %+v", name, phi, g, w)
+				}
+				if want.Efolds != nil && got.Efolds(want.Lo, phi) != want.Efolds(want.Lo, phi) {
+					t.Errorf("%s: Efolds differ at %g", name, phi)
+				}
+			}
+			if want.EpsilonEnd != nil && got.EpsilonEnd() != want.EpsilonEnd() {
+				t.Errorf("%s: EpsilonEnd differs", name)
+			}
+		}
+		if _, err := f.NewOn(map[string]float64{"nonsense": 1}, def.Lo, def.Hi); err == nil || !strings.Contains(err.Error(), "unknown parameter") {
+			t.Errorf("%s: NewOn with an unknown parameter: %v", name, err)
+		}
+		if _, err := f.NewOn(given, def.Hi, def.Lo); err == nil {
+			t.Errorf("%s: NewOn on an empty range: no error", name)
+		}
+	}
+}

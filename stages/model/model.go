@@ -25,6 +25,21 @@ type Model struct {
 	// Native describes the field the model is written in when its kinetic
 	// term is not canonical; nil for canonical models.
 	Native *NativeField
+	// Efolds, when not nil, is the first-order slow-roll e-fold count from
+	// a to b in closed form, the integral from a to b of V/V' dphi, for
+	// a and b inside the range; nil where V/V' has no elementary
+	// antiderivative (the count is then integrated numerically). The
+	// slow-roll stage counts with it, and checks it at every reported pivot
+	// against an independent quadrature (slowroll.CheckPivot).
+	Efolds func(a, b float64) float64
+	// EpsilonEnd, when not nil, returns in closed form the canonical field
+	// value where epsilon_V = 1, for families whose epsilon_V is monotonic
+	// on the range (so that it is the only end there). The slow-roll
+	// stage's end search starts from it and confirms the sign change of
+	// epsilon_V - 1 there, to the last bit, from the potential itself
+	// (slowroll.FindEnd); nil where there is no closed form or no single
+	// end (the range is then scanned).
+	EpsilonEnd func() float64
 }
 
 // NativeField is a model's own field variable x with Lagrangian

@@ -63,6 +63,11 @@ var exponentialPlateau = &Family{
 			Family: "exponential-plateau", Params: p,
 			V:  onDomain(0, inf, func(phi num.Jet) num.Jet { return num.Neg(expm1(num.Scale(-q, phi))) }),
 			Lo: 0, Hi: reach(n, 0, 1/q),
+			// V/V' = (e^(q phi) - 1)/q: the e-model's count with b = q,
+			// c = 1/q^2.
+			Efolds: func(a, b float64) float64 { return plateauEfolds(1/(q*q), q, a, b) },
+			// The end e^(q phi) = 1 + q/sqrt(2) of the comment above.
+			EpsilonEnd: func() float64 { return math.Log1p(q/math.Sqrt2) / q },
 		}, nil
 	},
 }

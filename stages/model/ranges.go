@@ -17,13 +17,24 @@ const rangeEfolds = 600
 // which efolds, the slow-roll e-folds counted from the edge where
 // inflation ends, reaches rangeEfolds (efolds must grow with the field).
 func reach(efolds func(phi float64) float64, from, w float64) float64 {
+	phi, _, _, _ := reachBracket(efolds, from, w)
+	return phi
+}
+
+// reachBracket is reach, returning also efolds at the value found (nHi)
+// and at the step before it (prev, nPrev; prev = from and nPrev = NaN
+// when the first step reaches).
+func reachBracket(efolds func(phi float64) float64, from, w float64) (phi, nHi, prev, nPrev float64) {
+	prev, nPrev = from, math.NaN()
 	for k := 0; k < 2000; k++ {
-		phi := from + math.Ldexp(w, k)
-		if n := efolds(phi); n >= rangeEfolds || math.IsInf(n, 1) || math.IsNaN(n) {
-			return phi
+		phi = from + math.Ldexp(w, k)
+		n := efolds(phi)
+		if n >= rangeEfolds || math.IsInf(n, 1) || math.IsNaN(n) {
+			return phi, n, prev, nPrev
 		}
+		prev, nPrev = phi, n
 	}
-	return from + math.Ldexp(w, 2000)
+	return from + math.Ldexp(w, 2000), math.NaN(), prev, nPrev
 }
 
 // expm1 returns exp(a) - 1, accurate for small a.
@@ -67,7 +78,7 @@ func onDomain(lo, hi float64, v func(num.Jet) num.Jet) func(num.Jet) num.Jet {
 // that reads the model). Where the root search cannot run (efolds not
 // finite at the bracket's end) every midpoint is evaluated.
 func reachAt(efolds func(phi float64) float64, from, w float64) float64 {
-	hi := reach(efolds, from, w)
+	hi, nHi, prev, nPrev := reachBracket(efolds, from, w)
 	lo := from
 	if d := hi - from; d > w {
 		lo = from + d/2
@@ -76,7 +87,12 @@ func reachAt(efolds func(phi float64) float64, from, w float64) float64 {
 		n := efolds(phi)
 		return n >= rangeEfolds || math.IsInf(n, 1) || math.IsNaN(n)
 	}
-	below, above := crossing(efolds, lo, hi)
+	// reach's last two steps bracket the crossing: they are from + d/2 =
+	// lo and hi, whose values are known.
+	below, above := math.Inf(-1), math.Inf(1)
+	if prev == lo {
+		below, above = crossing(efolds, lo, hi, nPrev, nHi)
+	}
 	for i := 0; i < 200 && hi-lo > 1e-9*math.Abs(hi); i++ { // the range need not be exact
 		mid := lo + (hi-lo)/2
 		var r bool
@@ -99,13 +115,16 @@ func reachAt(efolds func(phi float64) float64, from, w float64) float64 {
 
 // crossing returns field values below and above which efolds, growing
 // with the field, is below and at least rangeEfolds, from a Brent search
-// on [lo, hi]: the root's bracket widened by a margin, so that every
+// on [lo, hi] (where efolds is nLo, NaN when not evaluated, and nHi): the root's bracket widened by a margin, so that every
 // value outside [below, above] is on the side its position says. Where
 // the search cannot run, it returns (-Inf, +Inf), which decides nothing.
-func crossing(efolds func(phi float64) float64, lo, hi float64) (below, above float64) {
+func crossing(efolds func(phi float64) float64, lo, hi, nLo, nHi float64) (below, above float64) {
 	none := func() (float64, float64) { return math.Inf(-1), math.Inf(1) }
 	f := func(phi float64) float64 { return efolds(phi) - rangeEfolds }
-	flo, fhi := f(lo), f(hi)
+	if math.IsNaN(nLo) { // reach's first step reached: lo is from, not evaluated
+		nLo = efolds(lo)
+	}
+	flo, fhi := nLo-rangeEfolds, nHi-rangeEfolds
 	if !(flo < 0) || !(fhi >= 0) || math.IsInf(fhi, 0) || math.IsInf(flo, 0) {
 		return none()
 	}
