@@ -135,6 +135,9 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 	if err := e.Check(); err != nil {
 		return Prediction{}, err
 	}
+	if f, ok := ev.(FirstOrder); ok {
+		return f.match(h, e, start)
+	}
 	N := start
 	var prevN, prevG float64
 	lo, hi := math.NaN(), math.NaN() // g(lo) > lo, g(hi) < hi once seen

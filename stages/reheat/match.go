@@ -144,6 +144,115 @@ func (f FirstOrder) At(N float64) (Prediction, error) {
 	return Prediction{N: N, PhiEnd: f.Cal.PhiEnd, Point: p, Obs: o, Scale: Normalise(p, end, f.Norm)}, nil
 }
 
+// end returns the end of inflation the first-order count is taken from
+// (the exact end with Cal) and the e-folds the count adds beyond the
+// first-order count from the slow-roll end.
+func (f FirstOrder) end() (end slowroll.End, shift float64) {
+	if f.Cal == nil {
+		return f.Sol.End, 0
+	}
+	return slowroll.End{Phi: f.Cal.PhiEnd, Direction: f.Sol.End.Direction, V: f.Sol.Model.At(f.Cal.PhiEnd).V}, FirstOrderEndShift(f.Cal)
+}
+
+// atField is At at a pivot field whose first-order count from the
+// slow-roll end is n (so N = n + shift), with the slope dN/dphi = V/V'
+// there.
+func (f FirstOrder) atField(phi, n, shift float64, end slowroll.End) (Prediction, float64) {
+	j := f.Sol.Model.At(phi)
+	p := slowroll.FromJet(phi, j)
+	p.N = n + shift
+	return Prediction{N: p.N, PhiEnd: end.Phi, Point: p, Obs: slowroll.FirstOrder(p), Scale: Normalise(p, end, f.Norm)}, j.V / j.D1
+}
+
+// match is Match for a first-order evaluator, iterating on the pivot
+// field instead of on N*. At first order N*(phi) is one integral of V/V',
+// so every iterate is a field value phi_k with its e-fold count n_k =
+// n_(k-1) + the integral from phi_(k-1) to phi_k, and the prediction at
+// (phi_k, n_k) is exact: no iterate needs N(phi) = N solved first, as
+// At(N) would (each such solve costs several quadratures). The iteration
+// is Match's in the field: F = N*_history - N at each iterate; the first
+// step is the fixed-point step (the field F more e-folds back, phi + F
+// V'/V... that is phi + F/(V/V')), then secant steps on F(phi), replaced
+// by bisection when they leave a bracket of iterates with F of both signs.
+// It stops as Match does (|F| < 1e-11, or the bracket closed to 1e-10 N)
+// and starts from Solution.Near(start), so the result depends only on
+// start. An iterate outside the field range (behind the end or beyond the
+// edge) is replaced by Near's point for its count, which reports a count
+// the range cannot hold as a *slowroll.RangeError.
+func (f FirstOrder) match(h History, e Era, start float64) (Prediction, error) {
+	sol := f.Sol
+	end, shift := f.end()
+	if !(start-shift >= 0) {
+		return Prediction{}, fmt.Errorf("reheating matching at N* = %.6g: %s: N = %g is inside the exact end of inflation (shift %.4g e-folds)", start, sol.Model.Describe(), start, shift)
+	}
+	phi, n, err := sol.Near(start - shift)
+	if err != nil {
+		return Prediction{}, fmt.Errorf("reheating matching at N* = %.6g: %w", start, err)
+	}
+	inside := func(x float64) bool {
+		return finite(x) && (x-sol.End.Phi)*(sol.End.Direction) < 0 && x > sol.Model.Lo && x < sol.Model.Hi
+	}
+	var prevPhi, prevF float64
+	lo, hi := math.NaN(), math.NaN() // F(lo) > 0, F(hi) <= 0 once seen
+	var nLo, nHi float64
+	for iter := 0; iter < 200; iter++ {
+		pr, slope := f.atField(phi, n, shift, end)
+		m, err := h.efolds(pr.Scale, e, true) // T_max is checked once converged
+		if err != nil {
+			return Prediction{}, err
+		}
+		if !finite(m.N) || m.N <= 0 {
+			return Prediction{}, fmt.Errorf("reheating matching gives N* = %g (from N = %g)", m.N, pr.N)
+		}
+		F := m.N - pr.N
+		if F > 0 {
+			lo, nLo = phi, pr.N
+		} else {
+			hi, nHi = phi, pr.N
+		}
+		converged := math.Abs(F) < 1e-11 || (!math.IsNaN(lo) && !math.IsNaN(hi) && math.Abs(nHi-nLo) < 1e-10*math.Max(1, pr.N))
+		next := phi + F/slope
+		if iter > 0 && phi != prevPhi {
+			if d := F - prevF; d != 0 && finite(d) {
+				next = phi - F*(phi-prevPhi)/d
+			}
+		}
+		if !math.IsNaN(lo) && !math.IsNaN(hi) && !((next-lo)*(next-hi) < 0) {
+			next = 0.5 * (lo + hi)
+		}
+		// A step below the field's resolution (a steep potential, where
+		// one unit in the last place of phi moves N by more than 1e-11)
+		// ends the search too: phi is as close as a float64 can be.
+		if converged || next == phi {
+			fm, err := h.Efolds(pr.Scale, e)
+			if err != nil {
+				return Prediction{}, err
+			}
+			pr.TReh, pr.TMax, pr.NReh, pr.W = fm.T, fm.TMax, fm.NReh, e.W
+			if e.Kind == EraInstant {
+				pr.W = 1.0 / 3
+			}
+			return pr, nil
+		}
+		var nNext float64
+		if inside(next) {
+			dn, err := sol.EfoldsBetween(phi, next)
+			if err != nil {
+				return Prediction{}, fmt.Errorf("reheating matching at N* = %.6g: %w", pr.N+F, err)
+			}
+			nNext = n + dn
+		} else {
+			target := n + F // the fixed-point step's count
+			if next, nNext, err = sol.Near(math.Max(target, 0)); err != nil {
+				return Prediction{}, fmt.Errorf("reheating matching at N* = %.6g: %w", target+shift, err)
+			}
+		}
+		prevPhi, prevF = phi, F
+		phi, n = next, nNext
+	}
+	return Prediction{}, fmt.Errorf("reheating matching: N* did not converge in 200 iterations (last %g)", n+shift)
+}
+
 // Instant solves the matching for instantaneous reheating self-consistently
 // at first order (Match with EraInstant).
 func Instant(sol *slowroll.Solution, h History, n Normalisation) (Prediction, error) {

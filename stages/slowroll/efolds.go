@@ -38,12 +38,21 @@ func (sol *Solution) dNdphi(phi float64) float64 {
 	return j.V / j.D1
 }
 
-// Efolds returns N(phi) = integral from phi_end to phi of V/V' dphi.
+// Efolds returns N(phi) = integral from phi_end to phi of V/V' dphi (in
+// closed form where the model has one, model.Model.Efolds).
 func (sol *Solution) Efolds(phi float64) (float64, error) {
 	return sol.segment(sol.End.Phi, phi)
 }
 
+// segment returns the first-order e-folds from a to b: the model's closed
+// form (model.Model.Efolds) where it has one and it is finite, else the
+// adaptive quadrature of V/V'.
 func (sol *Solution) segment(a, b float64) (float64, error) {
+	if f := sol.Model.Efolds; f != nil {
+		if n := f(a, b); finite(n) {
+			return n, nil
+		}
+	}
 	r, err := settleQuad(num.Integrate(sol.dNdphi, a, b, sol.Settings.quad()))
 	if err != nil {
 		return 0, fmt.Errorf("%s: e-fold integral from phi=%g to %g: %w", sol.Model.Describe(), a, b, err)
@@ -82,12 +91,54 @@ func (sol *Solution) PhiAt(N float64) (float64, error) {
 	return sol.solveIn(c, N)
 }
 
+// EfoldsBetween returns the first-order e-folds from a to b, the integral
+// of V/V' from a to b (positive when b lies behind a, towards earlier
+// times), computed as Efolds computes it.
+func (sol *Solution) EfoldsBetween(a, b float64) (float64, error) {
+	return sol.segment(a, b)
+}
+
+// Near returns a field value about N e-folds before the end of inflation
+// and its e-fold count n = N(phi), for a search that needs a point of
+// known count near N rather than N itself (reheat's matching, which
+// solves for N* and the pivot together). phi is the inverse Hermite
+// interpolant of PhiAt's bracket cell for N, and n is integrated from the
+// nearer end of the cell: one quadrature, where PhiAt would go on to solve
+// N(phi) = N. Like PhiAt, the result is a function of N alone, and a
+// count beyond the field range is a *RangeError.
+func (sol *Solution) Near(N float64) (phi, n float64, err error) {
+	if !(N >= 0) || math.IsInf(N, 0) {
+		return 0, 0, fmt.Errorf("e-folds N = %g: want a finite N >= 0", N)
+	}
+	if N == 0 {
+		return sol.End.Phi, 0, nil
+	}
+	c, err := sol.bracket(N)
+	if err != nil {
+		return 0, 0, err
+	}
+	x := hermiteInverse(c, N)
+	if !finite(x) || (x-c.a)*(x-c.b) >= 0 {
+		x = c.a + (c.b-c.a)*(N-c.Na)/(c.Nb-c.Na)
+	}
+	from, Nfrom := c.a, c.Na
+	if math.Abs(c.b-x) < math.Abs(x-c.a) {
+		from, Nfrom = c.b, c.Nb
+	}
+	dN, err := sol.segment(from, x)
+	if err != nil {
+		return 0, 0, err
+	}
+	return x, Nfrom + dN, nil
+}
+
 // efoldGrid is PhiAt's bracket: field values behind the end of inflation
 // (the first is End.Phi), at steps that start at about one e-fold (|V/V'|
-// at the end) and double, each at most 90% of the way to the edge of the
-// range (the integrand may diverge there), with N accumulated segment by
-// segment. It is extended on demand; its points depend only on the
-// solution.
+// at the end) and double while N less than quintuples across one, each
+// shortened where N would grow more than 16-fold, and each at most 90% of
+// the way to the edge of the range (the integrand may diverge there),
+// with N accumulated segment by segment. It is extended on demand; its
+// points depend only on the solution.
 type efoldGrid struct {
 	model    *model.Model
 	end      End
@@ -158,11 +209,14 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 			return cell{}, err
 		}
 		grow := math.Max(Na, 1)
-		if !(dN <= 3*grow) && step > 1e-12*math.Max(1, math.Abs(a)) {
-			// N would more than quadruple across the step (or the
+		if !(dN <= 15*grow) && step > 1e-12*math.Max(1, math.Abs(a)) {
+			// N would grow more than 16-fold across the step (or the
 			// integral is not finite): take a shorter one, so that a cell
-			// spans a modest range of N and its interpolant is a good
-			// start for Newton's method.
+			// spans a modest range of N and its interpolant (in ln N) is a
+			// good start for Newton's method. (Cells of up to 16x, with
+			// steps doubled while N less than quintuples, cost a third fewer
+			// quadratures than cells of 4x, for at most one more Newton
+			// step.)
 			g.h = step / 4
 			continue
 		}
@@ -172,7 +226,7 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 				fmt.Sprintf("the e-fold integral diverges at phi = %.6g (V' = 0 there: the field would stop before %g e-folds)", b, N)}
 		}
 		g.pts = append(g.pts, gridPoint{phi: b, n: Na + dN, slope: sol.dNdphi(b)})
-		if dN < grow {
+		if dN < 4*grow {
 			g.h *= 2
 		}
 	}

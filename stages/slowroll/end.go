@@ -100,8 +100,50 @@ func scanFractions(n int) []float64 {
 // model's field range. It refuses a range in which inflation never ends,
 // never happens, or where the field would climb the potential, and a range
 // with several separate ends.
+//
+// A model with a closed-form end (model.Model.EpsilonEnd: a family whose
+// epsilon_V is monotonic, so that the end is unique) is not scanned: the
+// end is the sign change of epsilon_V - 1 nearest the closed form, found
+// to the last bit by num.Polish from the potential itself, as the scan's
+// root is. Where that sign change is not where the closed form says (the
+// closed form and the potential disagree, or the field would climb the
+// potential there), the range is scanned as for any model.
 func FindEnd(m *model.Model, s *Settings) (End, error) {
+	if m.EpsilonEnd != nil {
+		if e, ok := closedFormEnd(m, EpsilonVCondition, m.EpsilonEnd()); ok {
+			return e, nil
+		}
+	}
 	return FindEndWhere(m, EpsilonVCondition, s)
+}
+
+// closedFormEnd confirms an end of inflation at phi0 for cond: inside the
+// range, with cond changing sign within 1e-9 max(1, |phi0|) of it and the
+// inflating side (cond < 0) behind the end along the roll, the end being
+// the sign change nearest phi0 (num.Polish). ok is false where any of it
+// fails.
+func closedFormEnd(m *model.Model, cond Condition, phi0 float64) (End, bool) {
+	if !(phi0 > m.Lo && phi0 < m.Hi) {
+		return End{}, false
+	}
+	w := 1e-9 * math.Max(1, math.Abs(phi0))
+	lo, hi := math.Max(phi0-w, m.Lo), math.Min(phi0+w, m.Hi)
+	f := func(x float64) float64 { return cond.Minus(At(m, x)) }
+	flo, fhi := f(lo), f(hi)
+	if !((flo < 0) != (fhi < 0)) || math.IsNaN(flo) || math.IsNaN(fhi) {
+		return End{}, false
+	}
+	phi := num.Polish(f, phi0, lo, hi)
+	j := m.At(phi)
+	if !finite(j.D1) || j.D1 == 0 || !(j.V > 0) {
+		return End{}, false
+	}
+	dir := -math.Copysign(1, j.D1)
+	// Inflating behind the end: below it when the field grows.
+	if (dir > 0) != (flo < 0) {
+		return End{}, false
+	}
+	return End{Phi: phi, Direction: dir, V: j.V}, true
 }
 
 // Condition is a slow-roll criterion for the end of inflation, evaluated

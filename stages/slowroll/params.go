@@ -4,6 +4,7 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/model"
+	"github.com/inflatrace/inflatrace/stages/num"
 )
 
 // Point holds the potential slow-roll parameters at one field value.
@@ -17,8 +18,12 @@ type Point struct {
 }
 
 // At evaluates the slow-roll parameters of m at phi.
-func At(m *model.Model, phi float64) Point {
-	j := m.At(phi)
+func At(m *model.Model, phi float64) Point { return FromJet(phi, m.At(phi)) }
+
+// FromJet returns the slow-roll parameters at phi from the potential's
+// jet there (V and its first three derivatives, m.At(phi)), for a caller
+// that needs the jet itself too.
+func FromJet(phi float64, j num.Jet) Point {
 	u := j.D1 / j.V
 	return Point{
 		Phi:     phi,
