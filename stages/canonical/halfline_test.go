@@ -53,8 +53,9 @@ func TestHalfLineQuadrature(t *testing.T) {
 }
 
 // TestVerifyCatchesWrongHalfLineMaps: wrong maps and kinetic functions on
-// the E-model's half-plane (quadrature in ln y) fail Verify, naming the
-// map.
+// the E-model's half-plane (quadrature in ln y, where the integrand is
+// constant and each stretch is accepted from one 3-7 Gauss–Kronrod panel)
+// fail Verify, naming the map.
 func TestVerifyCatchesWrongHalfLineMaps(t *testing.T) {
 	for _, alpha := range []float64{1e-2, 1, 1e2} {
 		b := math.Sqrt(2 / (3 * alpha))
@@ -67,6 +68,7 @@ func TestVerifyCatchesWrongHalfLineMaps(t *testing.T) {
 			{"map off by 1e-6", func(y float64) float64 { return (1 + 1e-6) * math.Log(y) / b },
 				func(phi float64) float64 { return math.Exp(b * phi / (1 + 1e-6)) }, nil},
 			{"kinetic function not squared", nil, nil, func(y float64) float64 { return 3 * alpha / (2 * y) }},
+			{"kinetic function 1e-6 too large", nil, nil, func(y float64) float64 { return (1 + 1e-6) * 3 * alpha / (2 * y * y) }},
 		} {
 			m := mustNew(t, "e-model", map[string]float64{"alpha": alpha})
 			cp := *m

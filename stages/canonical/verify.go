@@ -170,6 +170,17 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 // was tried) integrates the rounding noise of K over a long interval: the
 // quadrature then fails to converge (two-plateau, alpha = 1), where the
 // one in x, whose neighbourhood of the edge is short, converges.
+//
+// The returned function is cumulative: an x farther from the origin than
+// the farthest one already integrated on its side is integrated from
+// there, adding only the new stretch (the sample points come in order of
+// distance on each side, so each stretch of the domain is integrated
+// once); any other x is integrated from the origin. Each stretch is
+// first tried with the Gauss–Kronrod 3-7 pair on one subinterval, which
+// accepts a smooth stretch (the E-model's constant integrand in u) with
+// its error estimate at the tolerance in 7 evaluations; a stretch it does
+// not accept is integrated by the adaptive 7-15 quadrature. The results
+// depend only on the sequence of x asked for, which Verify fixes.
 func quadratureOfSqrtK(nf *model.NativeField, quad *num.QuadSettings, floor float64) func(x float64) (float64, error) {
 	// settle accepts (num.AcceptAtFloor) a quadrature that stopped short of its own tolerance
 	// only when its error estimate is still far (floor, a thousandth of
@@ -181,20 +192,56 @@ func quadratureOfSqrtK(nf *model.NativeField, quad *num.QuadSettings, floor floa
 		q, err = num.AcceptAtFloor(q, err, floor)
 		return q.Value, err
 	}
-
+	first := *quad
+	first.Rule, first.MaxIntervals = num.GK7, 1
+	var f func(float64) float64
+	v0, toV := nf.Origin, func(x float64) float64 { return x }
 	if nf.Lo >= 0 && nf.Origin > 0 {
-		f := func(u float64) float64 {
+		f = func(u float64) float64 {
 			x := math.Exp(u)
 			return math.Sqrt(nf.Kinetic(x)) * x
 		}
-		u0 := math.Log(nf.Origin)
-		return func(x float64) (float64, error) {
-			return settle(num.Integrate(f, u0, math.Log(x), quad))
-		}
+		v0, toV = math.Log(nf.Origin), math.Log
+	} else {
+		f = func(x float64) float64 { return math.Sqrt(nf.Kinetic(x)) }
 	}
-	f := func(x float64) float64 { return math.Sqrt(nf.Kinetic(x)) }
+	// A stretch added to the integral base is integrated to the tolerance
+	// of the whole: its absolute tolerance is at least RelTol |base| (each
+	// of the at most few dozen stretches then adds an error below the
+	// tolerance relative to the sum).
+	stretch := func(a, b, base float64) (float64, error) {
+		s, t := first, *quad
+		if abs := quad.RelTol * math.Abs(base); abs > quad.AbsTol {
+			s.AbsTol, t.AbsTol = abs, abs
+		}
+		if r, err := num.Integrate(f, a, b, &s); err == nil {
+			return r.Value, nil
+		}
+		return settle(num.Integrate(f, a, b, &t))
+	}
+	// The farthest point integrated on each side of the origin (index 0
+	// below it, 1 above) and the integral there.
+	var far, at [2]float64
+	var have [2]bool
 	return func(x float64) (float64, error) {
-		return settle(num.Integrate(f, nf.Origin, x, quad))
+		v := toV(x)
+		side := 0
+		if v > v0 {
+			side = 1
+		}
+		from, base := v0, 0.0
+		if have[side] && math.Abs(v-v0) >= math.Abs(far[side]-v0) {
+			from, base = far[side], at[side]
+		}
+		d, err := stretch(from, v, base)
+		if err != nil {
+			return 0, err
+		}
+		q := base + d
+		if !have[side] || math.Abs(v-v0) >= math.Abs(far[side]-v0) {
+			far[side], at[side], have[side] = v, q, true
+		}
+		return q, nil
 	}
 }
 

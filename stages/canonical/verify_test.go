@@ -190,3 +190,49 @@ func TestVerifyTolerance(t *testing.T) {
 		t.Errorf("MapDev %g, want about 1e-6", rep.MapDev)
 	}
 }
+
+// TestQuadratureOfSqrtKCumulative: the check's quadrature adds stretches
+// to the farthest point integrated on each side; asked for points in
+// order (as Verify asks) or each on its own, it gives the same integral,
+// and both agree with the analytic maps phi(x) - phi(origin) (Kallosh,
+// Linde & Roest 2013, arXiv:1311.0472), to 1e-12 relative: each stretch
+// is integrated to 1e-13 of the whole, but near the disk's edge K is
+// known only to the rounding of x and the quadratures there are accepted
+// at their floor (about 1e-13 relative each).
+func TestQuadratureOfSqrtKCumulative(t *testing.T) {
+	quad := &num.QuadSettings{RelTol: 1e-13, AbsTol: 1e-14}
+	for _, c := range []struct {
+		family string
+		alpha  float64
+	}{{"e-model", 1e-2}, {"e-model", 1}, {"e-model", 1e2}, {"t-model", 1e-2}, {"t-model", 1}, {"t-model", 1e2}} {
+		m := mustNew(t, c.family, map[string]float64{"alpha": c.alpha})
+		nf := m.Native
+		cumulative := quadratureOfSqrtK(nf, quad, 1e-13)
+		pts := samplePoints(m)
+		// Both sides of the origin, and a point back towards the origin.
+		pts = append(pts, -pts[2], -pts[5], pts[1])
+		for _, phi := range pts {
+			x := nf.FromCanonical(phi)
+			if !(x > nf.Lo && x < nf.Hi) || edgeGap(x, nf.Lo, nf.Hi) < 1e-6 {
+				continue
+			}
+			got, err := cumulative(x)
+			if err != nil {
+				t.Errorf("%s alpha=%g: x = %g: %v", c.family, c.alpha, x, err)
+				continue
+			}
+			alone, err := quadratureOfSqrtK(nf, quad, 1e-13)(x)
+			if err != nil {
+				t.Errorf("%s alpha=%g: x = %g alone: %v", c.family, c.alpha, x, err)
+				continue
+			}
+			want := nf.ToCanonical(x) - nf.ToCanonical(nf.Origin)
+			if d := math.Abs(got-alone) / math.Max(1, math.Abs(alone)); d > 1e-12 {
+				t.Errorf("%s alpha=%g: x = %g: cumulative %.17g, alone %.17g", c.family, c.alpha, x, got, alone)
+			}
+			if d := math.Abs(got-want) / math.Max(1, math.Abs(want)); d > 1e-12 {
+				t.Errorf("%s alpha=%g: x = %g: quadrature %.17g, map %.17g", c.family, c.alpha, x, got, want)
+			}
+		}
+	}
+}
