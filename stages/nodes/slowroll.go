@@ -172,7 +172,7 @@ func (SlowRoll) Run(_ context.Context, params pipeline.Values, inputs []pipeline
 	if err := sp.Check(); err != nil {
 		return nil, err
 	}
-	m, err := buildModel(in)
+	m, err := rebuildModel(in)
 	if err != nil {
 		return nil, err
 	}
@@ -213,7 +213,7 @@ func (SlowRoll) Run(_ context.Context, params pipeline.Values, inputs []pipeline
 // solutionFrom rebuilds the slow-roll solution from a slow-roll node's
 // outputs, without searching for the end again.
 func solutionFrom(in pipeline.Values) (*slowroll.Solution, error) {
-	m, err := buildModel(in)
+	m, err := rebuildModel(in)
 	if err != nil {
 		return nil, err
 	}

@@ -49,8 +49,18 @@ func ModelParams(family string, params map[string]float64, fieldRange []float64)
 	return vs, nil
 }
 
-// buildModel rebuilds a model from values holding its specification.
-func buildModel(vs pipeline.Values) (*model.Model, error) {
+// buildModel builds a model from values holding its specification,
+// checking a given field range against the family's default (New and
+// WithRange): for the model node's parameters.
+func buildModel(vs pipeline.Values) (*model.Model, error) { return modelFrom(vs, false) }
+
+// rebuildModel rebuilds a model from the specification a model node
+// recorded (carried forward by the stages below it), on its recorded field
+// range, which the model node checked: the family does not compute its
+// default range again (model.Family.NewOn).
+func rebuildModel(vs pipeline.Values) (*model.Model, error) { return modelFrom(vs, true) }
+
+func modelFrom(vs pipeline.Values, recorded bool) (*model.Model, error) {
 	family, err := vs.Text(keyFamily)
 	if err != nil {
 		return nil, err
@@ -72,23 +82,25 @@ func buildModel(vs pipeline.Values) (*model.Model, error) {
 			given[name] = v.Float
 		}
 	}
-	m, err := fam.New(given)
-	if err != nil {
-		return nil, err
-	}
 	_, hasLo := vs[keyFieldLo]
 	_, hasHi := vs[keyFieldHi]
 	if hasLo != hasHi {
 		return nil, fmt.Errorf("field range needs both %s and %s", keyFieldLo, keyFieldHi)
 	}
-	if hasLo {
-		lo, _ := number(vs, keyFieldLo)
-		hi, _ := number(vs, keyFieldHi)
-		if lo != m.Lo || hi != m.Hi {
-			if m, err = m.WithRange(lo, hi); err != nil {
-				return nil, err
-			}
-		}
+	if !hasLo {
+		return fam.New(given)
+	}
+	lo, _ := number(vs, keyFieldLo)
+	hi, _ := number(vs, keyFieldHi)
+	if recorded {
+		return fam.NewOn(given, lo, hi)
+	}
+	m, err := fam.New(given)
+	if err != nil {
+		return nil, err
+	}
+	if lo != m.Lo || hi != m.Hi {
+		return m.WithRange(lo, hi)
 	}
 	return m, nil
 }
