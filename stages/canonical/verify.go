@@ -78,14 +78,14 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 		return Report{Canonical: true, Field: "phi", MapFormula: "phi (canonical kinetic term)"}, nil
 	}
 	tol := 1e-9
-	quad := &num.QuadSettings{RelTol: 1e-13, AbsTol: 1e-14}
+	quad := num.QuadSettings{RelTol: 1e-13, AbsTol: 1e-14}
 	numTol := 0.0
 	if s != nil {
 		if s.Tol > 0 {
 			tol = s.Tol
 		}
 		if s.Quad != nil {
-			quad = s.Quad
+			quad = *s.Quad
 		}
 		numTol = s.NumericalMapTol
 	}
@@ -97,7 +97,7 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 			rep.MapTol = numTol
 		}
 	}
-	integral := quadratureOfSqrtK(nf, quad, 1e-3*rep.MapTol)
+	sqrtK := newSqrtKQuadrature(nf, &quad, 1e-3*rep.MapTol)
 	phi0 := nf.ToCanonical(nf.Origin)
 	for _, phi := range samplePoints(m) {
 		x := nf.FromCanonical(phi)
@@ -114,7 +114,7 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 		if !(k > 0) || math.IsInf(k, 0) {
 			return rep, fmt.Errorf("%s: kinetic function K(%s = %g) = %g, want a positive finite value", m.Describe(), nf.Name, x, k)
 		}
-		q, err := integral(x)
+		q, err := sqrtK.integral(x)
 		if err != nil {
 			return rep, fmt.Errorf("%s: quadrature of sqrt(K) to %s = %g: %w", m.Describe(), nf.Name, x, err)
 		}
@@ -182,67 +182,89 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 // not accept is integrated by the adaptive 7-15 quadrature. The results
 // depend only on the sequence of x asked for, which Verify fixes.
 func quadratureOfSqrtK(nf *model.NativeField, quad *num.QuadSettings, floor float64) func(x float64) (float64, error) {
-	// settle accepts (num.AcceptAtFloor) a quadrature that stopped short of its own tolerance
-	// only when its error estimate is still far (floor, a thousandth of
-	// the check's tolerance, relative) below what the check resolves: near a
-	// pole of K the integrand is known only to the rounding of x relative
-	// to the pole, so no partition reaches 1e-13 there, while the
-	// comparison with the analytic map is still decisive.
-	settle := func(q num.QuadResult, err error) (float64, error) {
-		q, err = num.AcceptAtFloor(q, err, floor)
-		return q.Value, err
-	}
-	first := *quad
-	first.Rule, first.MaxIntervals = num.GK7, 1
-	var f func(float64) float64
-	v0, toV := nf.Origin, func(x float64) float64 { return x }
+	q := newSqrtKQuadrature(nf, quad, floor)
+	return q.integral
+}
+
+// sqrtKQuadrature is quadratureOfSqrtK's state: the integrand's variable
+// (x, or u = ln x), the settings and the farthest point integrated on
+// each side of the origin (index 0 below it, 1 above) with the integral
+// there.
+type sqrtKQuadrature struct {
+	nf          *model.NativeField
+	inLog       bool
+	v0          float64
+	quad, first num.QuadSettings
+	floor       float64
+	far, at     [2]float64
+	have        [2]bool
+}
+
+func newSqrtKQuadrature(nf *model.NativeField, quad *num.QuadSettings, floor float64) sqrtKQuadrature {
+	q := sqrtKQuadrature{nf: nf, v0: nf.Origin, quad: *quad, first: *quad, floor: floor}
+	q.first.Rule, q.first.MaxIntervals = num.GK7, 1
 	if nf.Lo >= 0 && nf.Origin > 0 {
-		f = func(u float64) float64 {
-			x := math.Exp(u)
-			return math.Sqrt(nf.Kinetic(x)) * x
-		}
-		v0, toV = math.Log(nf.Origin), math.Log
-	} else {
-		f = func(x float64) float64 { return math.Sqrt(nf.Kinetic(x)) }
+		q.inLog, q.v0 = true, math.Log(nf.Origin)
 	}
-	// A stretch added to the integral base is integrated to the tolerance
-	// of the whole: its absolute tolerance is at least RelTol |base| (each
-	// of the at most few dozen stretches then adds an error below the
-	// tolerance relative to the sum).
-	stretch := func(a, b, base float64) (float64, error) {
-		s, t := first, *quad
-		if abs := quad.RelTol * math.Abs(base); abs > quad.AbsTol {
-			s.AbsTol, t.AbsTol = abs, abs
-		}
-		if r, err := num.Integrate(f, a, b, &s); err == nil {
-			return r.Value, nil
-		}
-		return settle(num.Integrate(f, a, b, &t))
+	return q
+}
+
+// integrand is sqrt(K) in the quadrature's variable.
+func (q *sqrtKQuadrature) integrand(v float64) float64 {
+	if q.inLog {
+		x := math.Exp(v)
+		return math.Sqrt(q.nf.Kinetic(x)) * x
 	}
-	// The farthest point integrated on each side of the origin (index 0
-	// below it, 1 above) and the integral there.
-	var far, at [2]float64
-	var have [2]bool
-	return func(x float64) (float64, error) {
-		v := toV(x)
-		side := 0
-		if v > v0 {
-			side = 1
-		}
-		from, base := v0, 0.0
-		if have[side] && math.Abs(v-v0) >= math.Abs(far[side]-v0) {
-			from, base = far[side], at[side]
-		}
-		d, err := stretch(from, v, base)
-		if err != nil {
-			return 0, err
-		}
-		q := base + d
-		if !have[side] || math.Abs(v-v0) >= math.Abs(far[side]-v0) {
-			far[side], at[side], have[side] = v, q, true
-		}
-		return q, nil
+	return math.Sqrt(q.nf.Kinetic(v))
+}
+
+// stretch integrates from a to b, a stretch to be added to the integral
+// base, to the tolerance of the whole: its absolute tolerance is at least
+// RelTol |base| (each of the at most few dozen stretches then adds an
+// error below the tolerance relative to the sum). settle accepts
+// (num.AcceptAtFloor) a quadrature that stopped short of its own
+// tolerance only when its error estimate is still far (floor, a
+// thousandth of the check's tolerance, relative) below what the check
+// resolves: near a pole of K the integrand is known only to the rounding
+// of x relative to the pole, so no partition reaches 1e-13 there, while
+// the comparison with the analytic map is still decisive.
+func (q *sqrtKQuadrature) stretch(a, b, base float64) (float64, error) {
+	first, rest := q.first, q.quad
+	if abs := q.quad.RelTol * math.Abs(base); abs > q.quad.AbsTol {
+		first.AbsTol, rest.AbsTol = abs, abs
 	}
+	if r, err := num.Integrate(q.integrand, a, b, &first); err == nil {
+		return r.Value, nil
+	}
+	r, err := num.Integrate(q.integrand, a, b, &rest)
+	r, err = num.AcceptAtFloor(r, err, q.floor)
+	return r.Value, err
+}
+
+// integral returns the integral of sqrt(K) from the origin to x.
+func (q *sqrtKQuadrature) integral(x float64) (float64, error) {
+	v := x
+	if q.inLog {
+		v = math.Log(x)
+	}
+	side := 0
+	if v > q.v0 {
+		side = 1
+	}
+	beyond := !q.have[side] || math.Abs(v-q.v0) >= math.Abs(q.far[side]-q.v0)
+	from, base := q.v0, 0.0
+	if q.have[side] && beyond {
+		from, base = q.far[side], q.at[side]
+	}
+	d, err := q.stretch(from, v, base)
+	if err != nil {
+		return 0, err
+	}
+	in := base + d
+	if beyond {
+		q.far[side], q.at[side], q.have[side] = v, in, true
+	}
+	return in, nil
 }
 
 // samplePoints returns the canonical field values to check: fractions of

@@ -122,29 +122,38 @@ func (f *Family) NewOn(given map[string]float64, lo, hi float64) (*Model, error)
 // params returns the parameters New builds with: given, with defaults
 // applied, each checked against its declared range.
 func (f *Family) params(given map[string]float64) (map[string]float64, error) {
-	var unknown []string
-	for n := range given {
-		if !f.hasParam(n) {
-			unknown = append(unknown, n)
+	// Declared names are looked up, not the given ones iterated: a count
+	// of those found tells whether any given name is unknown.
+	p := make(map[string]float64, len(f.Params))
+	found := 0
+	for _, d := range f.Params {
+		if v, ok := given[d.Name]; ok {
+			p[d.Name] = v
+			found++
 		}
 	}
-	if len(unknown) > 0 {
+	if found < len(given) {
+		var unknown []string
+		for n := range given {
+			if !f.hasParam(n) {
+				unknown = append(unknown, n)
+			}
+		}
 		sort.Strings(unknown)
 		return nil, &ParamError{Family: f.Name, Param: unknown[0], Msg: "unknown parameter (allowed: " + f.allowed() + ")"}
 	}
-	p := make(map[string]float64, len(f.Params))
 	for _, d := range f.Params {
-		v, ok := given[d.Name]
+		v, ok := p[d.Name]
 		if !ok {
 			if math.IsNaN(d.Default) {
 				return nil, &ParamError{Family: f.Name, Param: d.Name, Msg: "missing (required: " + f.allowed() + ")"}
 			}
 			v = d.Default
+			p[d.Name] = v
 		}
 		if err := d.check(v); err != nil {
 			return nil, &ParamError{Family: f.Name, Param: d.Name, Msg: err.Error()}
 		}
-		p[d.Name] = v
 	}
 	return p, nil
 }

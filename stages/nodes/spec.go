@@ -77,9 +77,19 @@ func modelFrom(vs pipeline.Values, recorded bool) (*model.Model, error) {
 		return nil, err
 	}
 	given := make(map[string]float64, len(fam.Params))
-	for n, v := range vs {
-		if name, ok := strings.CutPrefix(n, ParamPrefix); ok {
-			given[name] = v.Float
+	if recorded {
+		// A recorded specification holds the family's parameters and no
+		// others (specValues wrote it): they are looked up by name.
+		for i, k := range paramKeys(fam) {
+			if v, ok := vs[k]; ok {
+				given[fam.Params[i].Name] = v.Float
+			}
+		}
+	} else {
+		for n, v := range vs {
+			if name, ok := strings.CutPrefix(n, ParamPrefix); ok {
+				given[name] = v.Float
+			}
 		}
 	}
 	_, hasLo := vs[keyFieldLo]
@@ -113,6 +123,21 @@ var customKeys = []string{"potential", "kinetic", "field", "origin", "domain_lo"
 // family, its parameters, the search range and, for a user-written model,
 // its expressions and domain.
 func carrySpec(in, out pipeline.Values) {
+	if f, err := model.Lookup(text(in, keyFamily)); err == nil {
+		// A built-in family's specification is the values specValues
+		// writes: looked up by name.
+		for _, k := range [...]string{keyFamily, keyFieldLo, keyFieldHi} {
+			if v, ok := in[k]; ok {
+				out[k] = v
+			}
+		}
+		for _, k := range paramKeys(f) {
+			if v, ok := in[k]; ok {
+				out[k] = v
+			}
+		}
+		return
+	}
 	for k, v := range in {
 		if k == keyFamily || k == keyFieldLo || k == keyFieldHi || strings.HasPrefix(k, ParamPrefix) {
 			out[k] = v
@@ -171,12 +196,41 @@ func specValues(m *model.Model, extra int) pipeline.Values {
 	fam, _ := model.Lookup(m.Family)
 	vs := make(pipeline.Values, 3+len(fam.Params)+extra)
 	vs[keyFamily] = pipeline.String(m.Family)
-	for _, p := range fam.Params {
-		vs[ParamPrefix+p.Name] = pipeline.Float(m.Params[p.Name], p.Unit)
+	for i, k := range paramKeys(fam) {
+		p := fam.Params[i]
+		vs[k] = pipeline.Float(m.Params[p.Name], p.Unit)
 	}
 	vs[keyFieldLo] = pipeline.Float(m.Lo, pipeline.UnitMp)
 	vs[keyFieldHi] = pipeline.Float(m.Hi, pipeline.UnitMp)
 	return vs
+}
+
+// familyParamKeys holds, for each built-in family, its parameters' value
+// names (ParamPrefix + name, in declared order), written once rather than
+// for every node.
+var familyParamKeys = func() map[*model.Family][]string {
+	keys := map[*model.Family][]string{}
+	for _, n := range model.Names() {
+		f, _ := model.Lookup(n)
+		ks := make([]string, len(f.Params))
+		for i, p := range f.Params {
+			ks[i] = ParamPrefix + p.Name
+		}
+		keys[f] = ks
+	}
+	return keys
+}()
+
+// paramKeys returns the value names of f's parameters, in declared order.
+func paramKeys(f *model.Family) []string {
+	if ks, ok := familyParamKeys[f]; ok {
+		return ks
+	}
+	ks := make([]string, len(f.Params))
+	for i, p := range f.Params {
+		ks[i] = ParamPrefix + p.Name
+	}
+	return ks
 }
 
 // number returns the float named n and whether there is one (a missing

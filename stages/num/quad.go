@@ -110,6 +110,15 @@ func gk7(f func(float64) float64, a, b float64) (val, errEst float64) {
 	return k * h, math.Abs((k - g) * h)
 }
 
+// apply is the rule on [a, b]: a direct call of each (a function value
+// would let f escape to the heap, and every closure passed with it).
+func (r QuadRule) apply(f func(float64) float64, a, b float64) (val, errEst float64) {
+	if r == GK7 {
+		return gk7(f, a, b)
+	}
+	return gk15(f, a, b)
+}
+
 type quadPiece struct {
 	a, b, val, err float64
 }
@@ -138,10 +147,10 @@ func gk15(f func(float64) float64, a, b float64) (val, errEst float64) {
 // interval; a NaN or Inf value is an error.
 func Integrate(f func(float64) float64, a, b float64, s *QuadSettings) (QuadResult, error) {
 	absTol, relTol, maxInt := 1e-13, 1e-12, 2000
-	rule, evals := gk15, 15
+	rule, evals := GK15, 15
 	if s != nil {
 		if s.Rule == GK7 {
-			rule, evals = gk7, 7
+			rule, evals = GK7, 7
 		}
 		if s.AbsTol > 0 {
 			absTol = s.AbsTol
@@ -160,7 +169,7 @@ func Integrate(f func(float64) float64, a, b float64, s *QuadSettings) (QuadResu
 	if a > b {
 		a, b, sign = b, a, -1
 	}
-	v, e := rule(f, a, b)
+	v, e := rule.apply(f, a, b)
 	// Most integrals need a few pieces: those live on the stack.
 	var buf [16]quadPiece
 	pieces := append(buf[:0], quadPiece{a, b, v, e})
@@ -190,8 +199,8 @@ func Integrate(f func(float64) float64, a, b float64, s *QuadSettings) (QuadResu
 			res.Value, res.ErrEst, res.Intervals = sign*total, totalErr, len(pieces)
 			return res, fmt.Errorf("quadrature on [%g, %g]: interval near %g cannot be split further at float64 resolution (error estimate %g)", a, b, p.a, totalErr)
 		}
-		v1, e1 := rule(f, p.a, m)
-		v2, e2 := rule(f, m, p.b)
+		v1, e1 := rule.apply(f, p.a, m)
+		v2, e2 := rule.apply(f, m, p.b)
 		res.Evals += 2 * evals
 		pieces[worst] = quadPiece{p.a, m, v1, e1}
 		pieces = append(pieces, quadPiece{m, p.b, v2, e2})

@@ -89,7 +89,7 @@ func (h History) Efolds(s Scale, e Era) (Matched, error) { return h.efolds(s, e,
 func (h History) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
 	kOverT0 := h.PivotPerMpc * PerMpcInGeV / KelvinInGeV(h.T0K)
 	g := math.Pi * math.Pi * h.GReh / 30
-	tmax := math.Pow(s.RhoEnd/g, 0.25)
+	tmax := fourthRoot(s.RhoEnd / g)
 	m := Matched{TMax: tmax}
 	switch e.Kind {
 	case EraInstant:
@@ -102,7 +102,7 @@ func (h History) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
 		m.NReh = math.Log(s.RhoEnd/(g*e.T*e.T*e.T*e.T)) / (3 * (1 + e.W))
 	case EraEfolds:
 		m.NReh = e.NReh
-		m.T = math.Pow(s.RhoEnd*math.Exp(-3*(1+e.W)*e.NReh)/g, 0.25)
+		m.T = fourthRoot(s.RhoEnd * math.Exp(-3*(1+e.W)*e.NReh) / g)
 	default:
 		return m, fmt.Errorf("unknown reheating era %d", e.Kind)
 	}

@@ -103,7 +103,7 @@ func (h History) Check() error {
 // reheating phase). All energies in units of M_p.
 func (h History) InstantEfolds(s Scale) (N, TReh float64) {
 	kOverT0 := h.PivotPerMpc * PerMpcInGeV / KelvinInGeV(h.T0K) // dimensionless
-	TReh = math.Pow(30*s.RhoEnd/(math.Pi*math.Pi*h.GReh), 0.25)
+	TReh = fourthRoot(30 * s.RhoEnd / (math.Pi * math.Pi * h.GReh))
 	N = -math.Log(kOverT0) + math.Log(h.GS0/h.GSReh)/3 + math.Log(s.Hstar/TReh)
 	return N, TReh
 }
