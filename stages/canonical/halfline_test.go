@@ -54,8 +54,8 @@ func TestHalfLineQuadrature(t *testing.T) {
 
 // TestVerifyCatchesWrongHalfLineMaps: wrong maps and kinetic functions on
 // the E-model's half-plane (quadrature in ln y, where the integrand is
-// constant and each stretch is accepted from one 3-7 Gauss–Kronrod panel)
-// fail Verify, naming the map.
+// constant and each stretch is accepted from one panel of the 3-point
+// Gauss rule with the midpoint rule embedded) fail Verify, naming the map.
 func TestVerifyCatchesWrongHalfLineMaps(t *testing.T) {
 	for _, alpha := range []float64{1e-2, 1, 1e2} {
 		b := math.Sqrt(2 / (3 * alpha))

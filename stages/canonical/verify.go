@@ -54,8 +54,8 @@ type Report struct {
 // numericalFractions, up to the top of the range, between and beyond the
 // analytic sample.
 var (
-	sampleFractions    = []float64{0.01, 0.03, 0.07, 0.12, 0.2, 0.3, 0.4, 0.5}
-	numericalFractions = []float64{1e-6, 1e-3, 0.045, 0.25, 0.6, 0.7, 0.8, 0.9, 0.97, 0.999}
+	sampleFractions    = [...]float64{0.01, 0.03, 0.07, 0.12, 0.2, 0.3, 0.4, 0.5}
+	numericalFractions = [...]float64{1e-6, 1e-3, 0.045, 0.25, 0.6, 0.7, 0.8, 0.9, 0.97, 0.999}
 )
 
 // Verify checks the canonical map of m numerically. For a canonical model
@@ -99,7 +99,8 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 	}
 	sqrtK := newSqrtKQuadrature(nf, &quad, 1e-3*rep.MapTol)
 	phi0 := nf.ToCanonical(nf.Origin)
-	for _, phi := range samplePoints(m) {
+	var buf [len(sampleFractions) + len(numericalFractions) + 2*len(edgeGaps)]float64
+	for _, phi := range appendSamplePoints(buf[:0], m) {
 		x := nf.FromCanonical(phi)
 		if !(x >= nf.Lo && x <= nf.Hi) {
 			return rep, fmt.Errorf("%s: the map sends phi = %g to %s = %g, outside its domain (%g, %g)", m.Describe(), phi, nf.Name, x, nf.Lo, nf.Hi)
@@ -118,16 +119,17 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 		if err != nil {
 			return rep, fmt.Errorf("%s: quadrature of sqrt(K) to %s = %g: %w", m.Describe(), nf.Name, x, err)
 		}
-		pa := nf.ToCanonical(x) - phi0
-		rep.MapDev = math.Max(rep.MapDev, math.Abs(q-pa)/math.Max(1, math.Abs(pa)))
-		rep.InverseDev = math.Max(rep.InverseDev, math.Abs(nf.FromCanonical(nf.ToCanonical(x))-x)/math.Max(1, math.Abs(x)))
+		toC := nf.ToCanonical(x)
+		pa := toC - phi0
+		rep.MapDev = maxDev(rep.MapDev, math.Abs(q-pa)/max1(math.Abs(pa)))
+		rep.InverseDev = maxDev(rep.InverseDev, math.Abs(nf.FromCanonical(toC)-x)/max1(math.Abs(x)))
 		vn := nf.V(num.Var(x))
 		vc := m.At(pa)
-		rep.PotDev = math.Max(rep.PotDev, relDev(vn.V, vc.V))
-		rep.SlopeDev = math.Max(rep.SlopeDev, relDev(vn.D1/math.Sqrt(k), vc.D1))
+		rep.PotDev = maxDev(rep.PotDev, relDev(vn.V, vc.V))
+		rep.SlopeDev = maxDev(rep.SlopeDev, relDev(vn.D1/math.Sqrt(k), vc.D1))
 		if rep.Numerical && nf.KineticJet != nil {
 			kj := nf.KineticJet(num.Var(x))
-			rep.CurvatureDev = math.Max(rep.CurvatureDev, relDev(vn.D2/kj.V-vn.D1*kj.D1/(2*kj.V*kj.V), vc.D2))
+			rep.CurvatureDev = maxDev(rep.CurvatureDev, relDev(vn.D2/kj.V-vn.D1*kj.D1/(2*kj.V*kj.V), vc.D2))
 		}
 		rep.Points++
 	}
@@ -176,10 +178,12 @@ func Verify(m *model.Model, s *Settings) (Report, error) {
 // there, adding only the new stretch (the sample points come in order of
 // distance on each side, so each stretch of the domain is integrated
 // once); any other x is integrated from the origin. Each stretch is
-// first tried with the Gauss–Kronrod 3-7 pair on one subinterval, which
-// accepts a smooth stretch (the E-model's constant integrand in u) with
-// its error estimate at the tolerance in 7 evaluations; a stretch it does
-// not accept is integrated by the adaptive 7-15 quadrature. The results
+// first tried on one subinterval with the midpoint rule embedded in the
+// 3-point Gauss rule (num.GK3: accepts a constant integrand, the E-model's
+// in u, in 3 evaluations), then with the Gauss–Kronrod 3-7 pair (a smooth
+// one, in 7), each accepted only with its error estimate at the
+// tolerance; a stretch neither accepts is integrated by the adaptive 7-15
+// quadrature. The results
 // depend only on the sequence of x asked for, which Verify fixes.
 func quadratureOfSqrtK(nf *model.NativeField, quad *num.QuadSettings, floor float64) func(x float64) (float64, error) {
 	q := newSqrtKQuadrature(nf, quad, floor)
@@ -191,18 +195,18 @@ func quadratureOfSqrtK(nf *model.NativeField, quad *num.QuadSettings, floor floa
 // each side of the origin (index 0 below it, 1 above) with the integral
 // there.
 type sqrtKQuadrature struct {
-	nf          *model.NativeField
-	inLog       bool
-	v0          float64
-	quad, first num.QuadSettings
-	floor       float64
-	far, at     [2]float64
-	have        [2]bool
+	nf    *model.NativeField
+	inLog bool
+	v0    float64
+	quad  num.QuadSettings
+	floor float64
+	far   [2]float64
+	at    [2]float64
+	have  [2]bool
 }
 
 func newSqrtKQuadrature(nf *model.NativeField, quad *num.QuadSettings, floor float64) sqrtKQuadrature {
-	q := sqrtKQuadrature{nf: nf, v0: nf.Origin, quad: *quad, first: *quad, floor: floor}
-	q.first.Rule, q.first.MaxIntervals = num.GK7, 1
+	q := sqrtKQuadrature{nf: nf, v0: nf.Origin, quad: *quad, floor: floor}
 	if nf.Lo >= 0 && nf.Origin > 0 {
 		q.inLog, q.v0 = true, math.Log(nf.Origin)
 	}
@@ -229,14 +233,21 @@ func (q *sqrtKQuadrature) integrand(v float64) float64 {
 // of x relative to the pole, so no partition reaches 1e-13 there, while
 // the comparison with the analytic map is still decisive.
 func (q *sqrtKQuadrature) stretch(a, b, base float64) (float64, error) {
-	first, rest := q.first, q.quad
+	s := q.quad
 	if abs := q.quad.RelTol * math.Abs(base); abs > q.quad.AbsTol {
-		first.AbsTol, rest.AbsTol = abs, abs
+		s.AbsTol = abs
 	}
-	if r, err := num.Integrate(q.integrand, a, b, &first); err == nil {
-		return r.Value, nil
+	// One panel of the 1-3 pair (a constant integrand), then one of the
+	// 3-7 pair (a smooth one), then the adaptive 7-15 quadrature.
+	one := s
+	one.MaxIntervals = 1
+	for _, rule := range [...]num.QuadRule{num.GK3, num.GK7} {
+		one.Rule = rule
+		if r, err := num.Integrate(q.integrand, a, b, &one); err == nil {
+			return r.Value, nil
+		}
 	}
-	r, err := num.Integrate(q.integrand, a, b, &rest)
+	r, err := num.Integrate(q.integrand, a, b, &s)
 	r, err = num.AcceptAtFloor(r, err, q.floor)
 	return r.Value, err
 }
@@ -271,9 +282,15 @@ func (q *sqrtKQuadrature) integral(x float64) (float64, error) {
 // the canonical range, and the images of points spread over the native
 // domain towards a finite edge (where a pole of K compresses the whole
 // plateau into a sliver of the native field), all inside (Lo, Hi).
-func samplePoints(m *model.Model) []float64 {
+func samplePoints(m *model.Model) []float64 { return appendSamplePoints(nil, m) }
+
+// edgeGaps are the fractions of the distance from the origin to a finite
+// edge of the native domain left between the sampled x and the edge.
+var edgeGaps = [...]float64{0.7, 0.4, 0.2, 0.1, 1e-2, 1e-3, 1e-4, 1e-5}
+
+// appendSamplePoints appends samplePoints to out.
+func appendSamplePoints(out []float64, m *model.Model) []float64 {
 	nf := m.Native
-	var out []float64
 	for _, t := range sampleFractions {
 		out = append(out, m.Lo+(m.Hi-m.Lo)*t)
 	}
@@ -282,11 +299,11 @@ func samplePoints(m *model.Model) []float64 {
 			out = append(out, m.Lo+(m.Hi-m.Lo)*t)
 		}
 	}
-	for _, edge := range []float64{nf.Lo, nf.Hi} {
+	for _, edge := range [...]float64{nf.Lo, nf.Hi} {
 		if math.IsInf(edge, 0) {
 			continue
 		}
-		for _, gap := range []float64{0.7, 0.4, 0.2, 0.1, 1e-2, 1e-3, 1e-4, 1e-5} {
+		for _, gap := range edgeGaps {
 			x := nf.Origin + (edge-nf.Origin)*(1-gap)
 			if phi := nf.ToCanonical(x); phi > m.Lo && phi < m.Hi {
 				out = append(out, phi)
@@ -311,5 +328,30 @@ func relDev(a, b float64) float64 {
 	if a == b {
 		return 0
 	}
-	return math.Abs(a-b) / math.Max(math.Abs(a), math.Abs(b))
+	m := math.Abs(a)
+	if mb := math.Abs(b); mb > m || mb != mb {
+		m = mb
+	}
+	return math.Abs(a-b) / m
+}
+
+// maxDev is math.Max for deviations (never -0 or -Inf), written out to be
+// inlined (math.Max is not, on amd64): a NaN deviation stays NaN, so that
+// the check fails on it.
+func maxDev(a, b float64) float64 {
+	if a != a || b != b {
+		return math.NaN()
+	}
+	if b > a {
+		return b
+	}
+	return a
+}
+
+// max1 is max(1, x) for x >= 0 or NaN (NaN stays NaN, as with math.Max).
+func max1(x float64) float64 {
+	if x < 1 {
+		return 1
+	}
+	return x
 }

@@ -52,7 +52,9 @@ var tModel = &Family{
 		// end; and at least 14 s, well onto the plateau (N ~ e^28 alpha
 		// there). A range fixed in M_p would reach, at small alpha, where
 		// cosh(phi/s)^2 overflows and V' rounds to 0.
-		hi := math.Max(14*s, reachAt(func(phi float64) float64 { return 3 * alpha / (4 * n) * (math.Cosh(2*phi/s) - 1) }, 0, s/8))
+		// N = (3 alpha/(2n)) sinh^2(phi/s) = rangeEfolds at
+		// sinh(phi/s) = sqrt(2 n rangeEfolds/(3 alpha)).
+		hi := math.Max(14*s, s*math.Asinh(math.Sqrt(2*n*rangeEfolds/(3*alpha))))
 		return newTModel(p, 0, hi), nil
 	},
 	buildOn: func(p map[string]float64, lo, hi float64) (*Model, error) { return newTModel(p, lo, hi), nil },
@@ -112,9 +114,10 @@ var eModel = &Family{
 		// few 1/b beyond the end for small alpha, where a fixed range in M_p
 		// would reach y = e^(b phi) beyond the largest float; and at least
 		// 30/b, well onto the plateau.
-		hi := math.Max(30/b, reachAt(func(phi float64) float64 {
-			return 3 * alpha / (4 * n) * (math.Expm1(b*phi) - b*phi)
-		}, 0, 1/(8*b)))
+		hi := 30 / b
+		if c := 3 * alpha / (4 * n); c*expm1MinusX(30) < rangeEfolds {
+			hi = plateauReach(c, b) // beyond 30/b: alpha below 1e-10 n or so
+		}
 		return newEModel(p, 0, hi), nil
 	},
 	buildOn: func(p map[string]float64, lo, hi float64) (*Model, error) { return newEModel(p, lo, hi), nil },

@@ -139,7 +139,8 @@ func (Reheat) Run(ctx context.Context, params pipeline.Values, inputs []pipeline
 	if err != nil {
 		return nil, err
 	}
-	if As, _ := params.Num("A_s"); !(As > 0) {
+	As, _ := params.Num("A_s")
+	if !(As > 0) {
 		return nil, fmt.Errorf("A_s = %g, want > 0", As)
 	}
 	history, _ := params.Text("history")
@@ -149,7 +150,7 @@ func (Reheat) Run(ctx context.Context, params pipeline.Values, inputs []pipeline
 		progress, end = pipeline.Progress(ctx)
 		defer end()
 	}
-	out, err := reheatOutputs(params, in, history, progress)
+	out, err := reheatOutputs(params, in, As, history, progress)
 	if err != nil {
 		return nil, err
 	}
@@ -160,8 +161,7 @@ func (Reheat) Run(ctx context.Context, params pipeline.Values, inputs []pipeline
 	return out, nil
 }
 
-func reheatOutputs(params, in pipeline.Values, history string, progress pipeline.ProgressFunc) (pipeline.Values, error) {
-	As, _ := params.Num("A_s")
+func reheatOutputs(params, in pipeline.Values, As float64, history string, progress pipeline.ProgressFunc) (pipeline.Values, error) {
 	nMax := 100.0 // room for the matched N* of any history
 	if history == HistoryFixed {
 		if N, err := params.Num("N_star"); err == nil {

@@ -119,7 +119,12 @@ func decodeSlowRoll(vs pipeline.Values) SlowRollParams {
 	var p SlowRollParams
 	p.Method = text(vs, "method")
 	p.End = text(vs, "end")
-	p.EndPhi, _ = number(vs, "end_phi")
+	if p.End == EndField {
+		p.EndPhi, _ = number(vs, "end_phi")
+	}
+	if p.Method == MethodFirst && p.End != EndEpsilonHOne {
+		return p // no exact background: Values writes no exact settings
+	}
 	for _, k := range exactKeys {
 		if x, ok := number(vs, k); ok {
 			if p.Exact == nil {

@@ -92,16 +92,15 @@ func modelFrom(vs pipeline.Values, recorded bool) (*model.Model, error) {
 			}
 		}
 	}
-	_, hasLo := vs[keyFieldLo]
-	_, hasHi := vs[keyFieldHi]
+	vLo, hasLo := vs[keyFieldLo]
+	vHi, hasHi := vs[keyFieldHi]
 	if hasLo != hasHi {
 		return nil, fmt.Errorf("field range needs both %s and %s", keyFieldLo, keyFieldHi)
 	}
 	if !hasLo {
 		return fam.New(given)
 	}
-	lo, _ := number(vs, keyFieldLo)
-	hi, _ := number(vs, keyFieldHi)
+	lo, hi := floatOf(vLo), floatOf(vHi)
 	if recorded {
 		return fam.NewOn(given, lo, hi)
 	}
@@ -241,6 +240,14 @@ func number(vs pipeline.Values, n string) (float64, bool) {
 		return 0, false
 	}
 	return v.Float, true
+}
+
+// floatOf is v's float, 0 when it holds none (as number gives).
+func floatOf(v pipeline.Value) float64 {
+	if v.Kind != pipeline.KindFloat {
+		return 0
+	}
+	return v.Float
 }
 
 // text returns the string named n, or "" when there is none.

@@ -12,8 +12,8 @@ import (
 // Versions of the stages. Bump one whenever its numerics or its outputs
 // change: the version is part of every key of that stage.
 const (
-	ModelVersion     = 2 // 2: alpha-attractor field ranges adapt to alpha
-	CanonicalVersion = 4 // 2: quadrature of sqrt(K) in ln x on a positive native domain; 3: a quadrature at its rounding floor near a pole is accepted; 4: the check's quadrature adds stretches between sample points, each tried first with one Gauss–Kronrod 3-7 panel
+	ModelVersion     = 3 // 2: alpha-attractor field ranges adapt to alpha; 3: those ranges from closed forms (T-model) and Newton's method (E-model) where they pass the plateau floor (alpha below about 1e-10)
+	CanonicalVersion = 5 // 2: quadrature of sqrt(K) in ln x on a positive native domain; 3: a quadrature at its rounding floor near a pole is accepted; 4: the check's quadrature adds stretches between sample points, each tried first with one Gauss–Kronrod 3-7 panel; 5: and before it one panel of the midpoint rule in the 3-point Gauss rule
 	SlowRollVersion  = 4 // 2: PhiAt on a shared e-fold bracket with a final Newton correction (second-order calibration, exact start); 3: the bracket's steps follow the slope's scale and N's growth; 4: exact method: modes start at k/(aH) = 10 with eighth-order adiabatic data, integrated together (background start moved accordingly); also closed-form ends of inflation and e-fold counts where the family has them, and e-fold bracket cells spanning up to 16x in N
 	ReheatVersion    = 6 // 2: secant steps for the self-consistent N*; PhiAt as in slow roll 2; 3: PhiAt as in slow roll 3; 4: self-consistency checks, phi_end of the end used; 5: first order matched on the pivot field; closed-form e-fold counts (alpha-attractors, Starobinsky, power law, exponential plateau); the e-fold bracket's cells span up to 16x in N; 6: fourth roots (T_max, T_reh, the GeV scales) as two square roots
 	CompareVersion   = 1

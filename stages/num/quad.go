@@ -13,7 +13,7 @@ type QuadSettings struct {
 	// MaxIntervals bounds the number of subintervals; default 2000.
 	MaxIntervals int
 	// Rule is the pair of embedded rules applied to each subinterval:
-	// GK15 (the default) or GK7.
+	// GK15 (the default), GK7 or GK3.
 	Rule QuadRule
 }
 
@@ -29,6 +29,13 @@ const (
 	// integrands smooth on the scale of the interval (a constant, a low
 	// polynomial), where one subinterval is already exact to rounding.
 	GK7
+	// GK3 is the midpoint rule and its Kronrod extension, which is the
+	// 3-point Gauss rule (exact to degree 1 and 5; Kronrod 1965, from
+	// memory): its error estimate is that of the midpoint rule, so it
+	// accepts an interval on which the integrand is linear to rounding (a
+	// constant), in 3 evaluations, and little else: a first try on one
+	// subinterval (MaxIntervals 1), not an adaptive rule.
+	GK3
 )
 
 // QuadResult is the outcome of an adaptive quadrature.
@@ -113,10 +120,24 @@ func gk7(f func(float64) float64, a, b float64) (val, errEst float64) {
 // apply is the rule on [a, b]: a direct call of each (a function value
 // would let f escape to the heap, and every closure passed with it).
 func (r QuadRule) apply(f func(float64) float64, a, b float64) (val, errEst float64) {
-	if r == GK7 {
+	switch r {
+	case GK7:
 		return gk7(f, a, b)
+	case GK3:
+		return gk3(f, a, b)
 	}
 	return gk15(f, a, b)
+}
+
+// gk3 is the 3-point Gauss rule (nodes 0 and ±sqrt(3/5), weights 8/9 and
+// 5/9, as gk7x[1] and g3w) with the midpoint rule embedded.
+func gk3(f func(float64) float64, a, b float64) (val, errEst float64) {
+	c := 0.5 * (a + b)
+	h := 0.5 * (b - a)
+	fc := f(c)
+	dx := h * gk7x[1]
+	g := g3w[1]*fc + g3w[0]*(f(c-dx)+f(c+dx))
+	return g * h, math.Abs((g - 2*fc) * h)
 }
 
 type quadPiece struct {
@@ -142,15 +163,18 @@ func gk15(f func(float64) float64, a, b float64) (val, errEst float64) {
 
 // Integrate computes the integral of f over [a, b] (a > b gives the
 // negative) by globally adaptive Gauss–Kronrod 7-15 quadrature (3-7 with
-// Rule GK7): the subinterval with the largest error estimate is bisected
+// Rule GK7, 1-3 with GK3): the subinterval with the largest error estimate is bisected
 // until the total estimate meets the tolerance. The integrand must be finite on the open
 // interval; a NaN or Inf value is an error.
 func Integrate(f func(float64) float64, a, b float64, s *QuadSettings) (QuadResult, error) {
 	absTol, relTol, maxInt := 1e-13, 1e-12, 2000
 	rule, evals := GK15, 15
 	if s != nil {
-		if s.Rule == GK7 {
+		switch s.Rule {
+		case GK7:
 			rule, evals = GK7, 7
+		case GK3:
+			rule, evals = GK3, 3
 		}
 		if s.AbsTol > 0 {
 			absTol = s.AbsTol
@@ -179,7 +203,13 @@ func Integrate(f func(float64) float64, a, b float64, s *QuadSettings) (QuadResu
 		if math.IsNaN(total) || math.IsInf(total, 0) {
 			return res, fmt.Errorf("integrand is not finite on [%g, %g]", a, b)
 		}
-		if totalErr <= math.Max(absTol, relTol*math.Abs(total)) {
+		// max(absTol, relTol |total|), written out: math.Max is not
+		// inlined on amd64, and total is finite here.
+		tol := relTol * math.Abs(total)
+		if tol < absTol {
+			tol = absTol
+		}
+		if totalErr <= tol {
 			break
 		}
 		if len(pieces) >= maxInt {

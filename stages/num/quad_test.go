@@ -124,7 +124,8 @@ func TestIntegrateProperties(t *testing.T) {
 // (2n+1)-point Kronrod extension those of degree <= 3n + 1 (n even) or
 // 3n + 2 (n odd) (Kronrod 1965; Laurie 1997, Math. Comp. 66, 1133,
 // "Calculation of Gauss-Kronrod quadrature rules", sect. 1; from memory):
-// 5 and 11 for GK7, 13 and 22 for GK15. On [0, 1] the integral of x^k is
+// 1 and 5 for GK3 (the midpoint rule, whose extension is the 3-point
+// Gauss rule), 5 and 11 for GK7, 13 and 22 for GK15. On [0, 1] the integral of x^k is
 // 1/(k+1), and the estimate |K - G| vanishes where the Gauss rule is exact
 // too. The next even degree, on [-1, 1] (where odd powers integrate to 0
 // by symmetry alone), must be off for each rule, else a wrong node could
@@ -134,7 +135,7 @@ func TestQuadRuleExactness(t *testing.T) {
 		name             string
 		rule             func(func(float64) float64, float64, float64) (float64, float64)
 		gaussDeg, kroDeg int
-	}{{"GK7", gk7, 5, 11}, {"GK15", gk15, 13, 22}} {
+	}{{"GK3", gk3, 1, 5}, {"GK7", gk7, 5, 11}, {"GK15", gk15, 13, 22}} {
 		pow := func(k int) func(float64) float64 { return func(x float64) float64 { return math.Pow(x, float64(k)) } }
 		for k := 0; k <= c.kroDeg; k++ {
 			kro, est := c.rule(pow(k), 0, 1)
@@ -183,5 +184,15 @@ func TestIntegrateGK7(t *testing.T) {
 	r, err := Integrate(func(float64) float64 { return 2.5 }, -3, 7, s)
 	if err != nil || r.Value != 25 || r.Evals != 7 || r.Intervals != 1 {
 		t.Errorf("constant: %+v, %v; want 25 from 7 evaluations", r, err)
+	}
+	// GK3: a line in one panel of 3 evaluations; e^x on [0, 1] is not
+	// accepted from one panel (the midpoint rule is off by 1e-2 there).
+	s = &QuadSettings{Rule: GK3, MaxIntervals: 1}
+	r, err = Integrate(func(x float64) float64 { return 1 + 2*x }, 0, 3, s)
+	if err != nil || r.Value != 12 || r.Evals != 3 || r.Intervals != 1 {
+		t.Errorf("GK3, a line: %+v, %v; want 12 from 3 evaluations", r, err)
+	}
+	if r, err := Integrate(math.Exp, 0, 1, s); err == nil {
+		t.Errorf("GK3, e^x on [0, 1]: %+v accepted from one panel", r)
 	}
 }
