@@ -28,10 +28,13 @@ alpha = {log = [0.01, 100], points = 6000}
 
 // ptyBand is one model with a band of 500 x 500 reheating histories: five
 // nodes, one of which runs for a second or more.
+// ptyBand is a band of ptyBandHistories histories: long enough (about
+// a second since the stages got faster) that its bar must show, past
+// ProgressDelay, and advance.
 const ptyBand = `[[reheating]]
 history = "band"
-n_w = 500
-n_T = 500
+n_w = 1500
+n_T = 1500
 
 [[constraint]]
 use = "cmb-combined-2025"
@@ -40,11 +43,14 @@ use = "cmb-combined-2025"
 family = "starobinsky"
 `
 
+// ptyBandHistories is n_w * n_T of ptyBand.
+const ptyBandHistories = 1500 * 1500
+
 // barFrame is a frame of the run's progress bar: "nodes 1234 / 30000 [".
 var barFrame = regexp.MustCompile(`nodes (\d+) / (\d+) \[`)
 
 // insideFrame is a frame of the line of progress inside a running node.
-var insideFrame = regexp.MustCompile(`inside 1 running node: \[[=>-]+\] +\d+%  (\d+) / 250000`)
+var insideFrame = regexp.MustCompile(`inside 1 running node: \[[=>-]+\] +\d+%  (\d+) / 2250000`)
 
 // ptyRun runs the binary with args; each of stdout and stderr goes to a
 // new pseudo-terminal when its flag says so (sized 80 x 24 when sized,
@@ -154,7 +160,7 @@ func TestProgressBarOnTerminal(t *testing.T) {
 		if len(inside) == 0 {
 			t.Fatalf("no frame of the band's progress; stderr:\n%q", ptyTail(stderr))
 		}
-		if n, _ := strconv.Atoi(inside[0][1]); n >= 250000 {
+		if n, _ := strconv.Atoi(inside[0][1]); n >= ptyBandHistories {
 			t.Errorf("the band's first frame is at its end (%s): it did not advance on screen", inside[0][0])
 		}
 		if len(frames("band", stderr)) == 0 {
