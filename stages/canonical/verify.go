@@ -314,12 +314,16 @@ func appendSamplePoints(out []float64, m *model.Model) []float64 {
 }
 
 func edgeGap(x, lo, hi float64) float64 {
+	// x lies in [lo, hi] (Verify checks it first): no NaN to carry, so
+	// the minimum is written out (math.Min is not inlined on amd64).
 	g := math.Inf(1)
 	if !math.IsInf(lo, 0) {
-		g = math.Min(g, (x-lo)/math.Max(1, math.Abs(lo)+math.Abs(x)))
+		g = (x - lo) / max1(math.Abs(lo)+math.Abs(x))
 	}
 	if !math.IsInf(hi, 0) {
-		g = math.Min(g, (hi-x)/math.Max(1, math.Abs(hi)+math.Abs(x)))
+		if v := (hi - x) / max1(math.Abs(hi)+math.Abs(x)); v < g {
+			g = v
+		}
 	}
 	return g
 }

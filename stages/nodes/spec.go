@@ -149,17 +149,11 @@ func carrySpec(in, out pipeline.Values) {
 	}
 }
 
-// specCount returns the number of values carrySpec copies from vs.
+// specCount returns the number of values carrySpec copies from vs (at
+// most: for a built-in family, the values specValues writes).
 func specCount(vs pipeline.Values) int {
 	if f, err := model.Lookup(text(vs, keyFamily)); err == nil {
-		n := 1 + len(f.Params)
-		if _, ok := vs[keyFieldLo]; ok {
-			n++
-		}
-		if _, ok := vs[keyFieldHi]; ok {
-			n++
-		}
-		return n
+		return 3 + len(f.Params) // family, range (always recorded) and parameters
 	}
 	n := 0
 	for k := range vs {

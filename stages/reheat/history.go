@@ -87,8 +87,23 @@ func (h History) Efolds(s Scale, e Era) (Matched, error) { return h.efolds(s, e,
 // efolds is Efolds; with allowAbove, a temperature above T_max is allowed
 // (a negative N_reh), as intermediate iterates of Match may need.
 func (h History) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
+	return h.terms().efolds(s, e, allowAbove)
+}
+
+// historyTerms are the parts of Efolds that depend on the history alone,
+// computed once for a matching's iterates: ln(a_0 T_0/k*) +
+// (1/3) ln(g_s0/g_s,reh), and pi^2 g_reh/30 of rho = (pi^2/30) g T^4.
+type historyTerms struct {
+	base, g float64
+}
+
+func (h History) terms() historyTerms {
 	kOverT0 := h.PivotPerMpc * PerMpcInGeV / KelvinInGeV(h.T0K)
-	g := math.Pi * math.Pi * h.GReh / 30
+	return historyTerms{base: -math.Log(kOverT0) + math.Log(h.GS0/h.GSReh)/3, g: math.Pi * math.Pi * h.GReh / 30}
+}
+
+func (t historyTerms) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
+	g := t.g
 	tmax := fourthRoot(s.RhoEnd / g)
 	m := Matched{TMax: tmax}
 	switch e.Kind {
@@ -106,7 +121,7 @@ func (h History) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
 	default:
 		return m, fmt.Errorf("unknown reheating era %d", e.Kind)
 	}
-	m.N = -math.Log(kOverT0) + math.Log(h.GS0/h.GSReh)/3 + math.Log(s.Hstar/m.T) - m.NReh
+	m.N = t.base + math.Log(s.Hstar/m.T) - m.NReh
 	return m, nil
 }
 
@@ -138,6 +153,7 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 	if f, ok := ev.(FirstOrder); ok {
 		return f.match(h, e, start)
 	}
+	terms := h.terms()
 	N := start
 	var prevN, prevG float64
 	lo, hi := math.NaN(), math.NaN() // g(lo) > lo, g(hi) < hi once seen
@@ -146,7 +162,7 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 		if err != nil {
 			return Prediction{}, fmt.Errorf("reheating matching at N* = %.6g: %w", N, err)
 		}
-		m, err := h.efolds(pr.Scale, e, true) // T_max is checked once converged
+		m, err := terms.efolds(pr.Scale, e, true) // T_max is checked once converged
 		if err != nil {
 			return Prediction{}, err
 		}
@@ -163,7 +179,7 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 		// evaluator's e-fold count (1e-9 relative at worst,
 		// slowroll.quadFloor), where no step can do better.
 		if math.Abs(F) < 1e-11 || math.Abs(hi-lo) < 1e-10*math.Max(1, N) {
-			fm, err := h.Efolds(pr.Scale, e)
+			fm, err := terms.efolds(pr.Scale, e, false)
 			if err != nil {
 				return Prediction{}, err
 			}

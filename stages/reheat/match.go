@@ -192,12 +192,13 @@ func (f FirstOrder) match(h History, e Era, start float64) (Prediction, error) {
 	inside := func(x float64) bool {
 		return finite(x) && (x-sol.End.Phi)*(sol.End.Direction) < 0 && x > sol.Model.Lo && x < sol.Model.Hi
 	}
+	terms := h.terms()
 	var prevPhi, prevF float64
 	lo, hi := math.NaN(), math.NaN() // F(lo) > 0, F(hi) <= 0 once seen
 	var nLo, nHi float64
 	for iter := 0; iter < 200; iter++ {
 		pr, slope := f.atField(phi, n, shift, end)
-		m, err := h.efolds(pr.Scale, e, true) // T_max is checked once converged
+		m, err := terms.efolds(pr.Scale, e, true) // T_max is checked once converged
 		if err != nil {
 			return Prediction{}, err
 		}
@@ -224,7 +225,7 @@ func (f FirstOrder) match(h History, e Era, start float64) (Prediction, error) {
 		// one unit in the last place of phi moves N by more than 1e-11)
 		// ends the search too: phi is as close as a float64 can be.
 		if converged || next == phi {
-			fm, err := h.Efolds(pr.Scale, e)
+			fm, err := terms.efolds(pr.Scale, e, false)
 			if err != nil {
 				return Prediction{}, err
 			}

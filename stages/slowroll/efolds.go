@@ -144,9 +144,10 @@ type efoldGrid struct {
 	end      End
 	settings *Settings
 	pts      []gridPoint
-	h        float64 // the next step
-	edge     bool    // the edge of the range is reached: no further point
-	err      error   // a quadrature failure while extending
+	first    [8]gridPoint // pts' first backing array: a grid of a closed-form count has about six points
+	h        float64      // the next step
+	edge     bool         // the edge of the range is reached: no further point
+	err      error        // a quadrature failure while extending
 }
 
 // gridPoint is one point of the e-fold grid: the field, N there and the
@@ -180,8 +181,8 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 		if !(h > 0) || !finite(h) {
 			h = 1e-3
 		}
-		g = &efoldGrid{model: sol.Model, end: sol.End, settings: sol.Settings, h: h,
-			pts: append(make([]gridPoint, 0, 16), gridPoint{phi: sol.End.Phi, slope: s0})}
+		g = &efoldGrid{model: sol.Model, end: sol.End, settings: sol.Settings, h: h}
+		g.pts = append(g.first[:0], gridPoint{phi: sol.End.Phi, slope: s0})
 		sol.grid = g
 	}
 	back := -sol.End.Direction // the direction of earlier times
