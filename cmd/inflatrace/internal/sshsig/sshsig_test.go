@@ -115,3 +115,33 @@ func TestOpenSSHInterop(t *testing.T) {
 		t.Errorf("Find: %v %v", got, ok)
 	}
 }
+
+// Processes that make the key at once (a cluster's shards) agree on one.
+func TestLoadOrCreateRace(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "cfg", "signing_key")
+	const n = 16
+	keys := make(chan string, n)
+	errs := make(chan error, n)
+	for range n {
+		go func() {
+			s, _, err := LoadOrCreate(path, "race")
+			if err != nil {
+				errs <- err
+				return
+			}
+			keys <- Fingerprint(s.PublicKey())
+		}()
+	}
+	seen := map[string]bool{}
+	for range n {
+		select {
+		case err := <-errs:
+			t.Fatalf("LoadOrCreate: %v", err)
+		case k := <-keys:
+			seen[k] = true
+		}
+	}
+	if len(seen) != 1 {
+		t.Errorf("%d different keys from %d simultaneous first uses, want 1", len(seen), n)
+	}
+}
