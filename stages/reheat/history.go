@@ -90,6 +90,20 @@ func (h History) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
 	return h.terms().efolds(s, e, allowAbove)
 }
 
+// finish completes a matched prediction with the history's reheating
+// figures at its scale (an instantaneous era reheats as radiation).
+func (t historyTerms) finish(pr Prediction, e Era) (Prediction, error) {
+	fm, err := t.efolds(pr.Scale, e, false)
+	if err != nil {
+		return Prediction{}, err
+	}
+	pr.TReh, pr.TMax, pr.NReh, pr.W = fm.T, fm.TMax, fm.NReh, e.W
+	if e.Kind == EraInstant {
+		pr.W = 1.0 / 3
+	}
+	return pr, nil
+}
+
 // historyTerms are the parts of Efolds that depend on the history alone,
 // computed once for a matching's iterates: ln(a_0 T_0/k*) +
 // (1/3) ln(g_s0/g_s,reh), and pi^2 g_reh/30 of rho = (pi^2/30) g T^4.
@@ -179,15 +193,7 @@ func Match(ev Evaluator, h History, e Era, start float64) (Prediction, error) {
 		// evaluator's e-fold count (1e-9 relative at worst,
 		// slowroll.quadFloor), where no step can do better.
 		if math.Abs(F) < 1e-11 || math.Abs(hi-lo) < 1e-10*math.Max(1, N) {
-			fm, err := terms.efolds(pr.Scale, e, false)
-			if err != nil {
-				return Prediction{}, err
-			}
-			pr.TReh, pr.TMax, pr.NReh, pr.W = fm.T, fm.TMax, fm.NReh, e.W
-			if e.Kind == EraInstant {
-				pr.W = 1.0 / 3
-			}
-			return pr, nil
+			return terms.finish(pr, e)
 		}
 		next := m.N
 		if iter > 0 && N != prevN {

@@ -225,15 +225,7 @@ func (f FirstOrder) match(h History, e Era, start float64) (Prediction, error) {
 		// one unit in the last place of phi moves N by more than 1e-11)
 		// ends the search too: phi is as close as a float64 can be.
 		if converged || next == phi {
-			fm, err := terms.efolds(pr.Scale, e, false)
-			if err != nil {
-				return Prediction{}, err
-			}
-			pr.TReh, pr.TMax, pr.NReh, pr.W = fm.T, fm.TMax, fm.NReh, e.W
-			if e.Kind == EraInstant {
-				pr.W = 1.0 / 3
-			}
-			return pr, nil
+			return terms.finish(pr, e)
 		}
 		var nNext float64
 		if inside(next) {
