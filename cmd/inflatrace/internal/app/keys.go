@@ -150,9 +150,8 @@ func (e *Env) VouchTrusted(ctx context.Context, l *ledger.Ledger, runs []pipelin
 		}
 		ok := false
 		if d.Seal != "" && d.SealSignature != "" {
-			if pub, err := sshsig.Verify([]byte(d.SealSignature), SealNamespace, ledger.SealMessage(id, d.Seal)); err == nil {
-				_, ok = sshsig.Find(trusted, pub)
-			}
+			pub, err := SealSigner(id, d.Seal, d.SealSignature)
+			ok = err == nil && Trusted(trusted, pub)
 		}
 		if !ok {
 			fmt.Fprintf(e.Stderr, "run %s is not sealed by a key you trust (%s lists them): its nodes are not reused until verify %s recomputes it\n", id, file, id)
@@ -163,4 +162,15 @@ func (e *Env) VouchTrusted(ctx context.Context, l *ledger.Ledger, runs []pipelin
 		}
 	}
 	return nil
+}
+
+// SealSigner checks a seal's signature and returns the key that made it.
+func SealSigner(run pipeline.RunID, seal, signature string) (ssh.PublicKey, error) {
+	return sshsig.Verify([]byte(signature), SealNamespace, ledger.SealMessage(run, seal))
+}
+
+// Trusted says whether key is among the trusted signers.
+func Trusted(trusted []sshsig.Signer, key ssh.PublicKey) bool {
+	_, ok := sshsig.Find(trusted, key)
+	return ok
 }

@@ -310,13 +310,13 @@ func checkSealSignatures(ctx context.Context, o *Options, l *ledger.Ledger) ([]l
 			unsigned++
 			continue
 		}
-		pub, err := sshsig.Verify([]byte(s.Signature), app.SealNamespace, ledger.SealMessage(s.Run, s.Seal))
+		pub, err := app.SealSigner(s.Run, s.Seal, s.Signature)
 		if err != nil {
 			probs = append(probs, ledger.Problem{Table: "runs", ID: string(s.Run),
 				What: "the seal's signature does not sign the stored seal: the seal was rewritten after it was signed (" + err.Error() + ")"})
 			continue
 		}
-		if _, ok := sshsig.Find(trusted, pub); !ok {
+		if !app.Trusted(trusted, pub) {
 			untrusted[sshsig.Fingerprint(pub)]++
 		}
 	}
