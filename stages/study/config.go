@@ -1,7 +1,6 @@
 package study
 
 import (
-	"bytes"
 	"errors"
 	"fmt"
 	"math"
@@ -152,12 +151,9 @@ type parser struct {
 func Parse(file string, data []byte, dir string) (*Study, error) {
 	c := &parser{file: file, dir: dir}
 	var fc fileConfig
-	dec := toml.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&fc); err != nil {
-		return nil, c.decodeError(err)
+	if err := c.decodeStrict(data, &fc); err != nil {
+		return nil, err
 	}
-	c.pos = indexPositions(data)
 	s := &Study{File: file, Text: data, Title: fc.Title, Description: fc.Description, As: reheat.DefaultAs}
 	methods := []string{nodes.MethodFirst}
 	if fc.SlowRoll != nil && fc.SlowRoll.Method != nil {

@@ -1,7 +1,6 @@
 package study
 
 import (
-	"bytes"
 	"fmt"
 	"io/fs"
 	"math"
@@ -61,7 +60,10 @@ func LoadSampleSet(file string) (SampleSet, bool, error) {
 	if err := toml.Unmarshal(data, &cf); err != nil || cf.Samples.File == "" {
 		return SampleSet{}, false, nil
 	}
-	c := &parser{file: file, pos: indexPositions(data)}
+	c := &parser{file: file}
+	if err := c.decodeStrict(data, &cf); err != nil {
+		return SampleSet{}, true, err
+	}
 	if cf.Name == "" || cf.Citation == "" {
 		return SampleSet{}, true, c.errAt("name", "a sample set needs name and citation")
 	}
@@ -92,12 +94,9 @@ func LoadSampleSet(file string) (SampleSet, bool, error) {
 func ParseConstraint(file string, data []byte) (compare.Gaussian, error) {
 	c := &parser{file: file}
 	var cf constraintFile
-	dec := toml.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&cf); err != nil {
-		return compare.Gaussian{}, c.decodeError(err)
+	if err := c.decodeStrict(data, &cf); err != nil {
+		return compare.Gaussian{}, err
 	}
-	c.pos = indexPositions(data)
 	if cf.Name == "" {
 		return compare.Gaussian{}, c.errAt("name", "missing name")
 	}

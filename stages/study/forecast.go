@@ -1,14 +1,11 @@
 package study
 
 import (
-	"bytes"
 	"fmt"
 	"io/fs"
 	"path"
 	"sort"
 	"strings"
-
-	"github.com/pelletier/go-toml/v2"
 
 	"github.com/inflatrace/inflatrace/configs"
 	"github.com/inflatrace/inflatrace/stages/compare"
@@ -27,12 +24,9 @@ type forecastFile struct {
 func ParseForecast(file string, data []byte) (compare.Forecast, error) {
 	c := &parser{file: file}
 	var ff forecastFile
-	dec := toml.NewDecoder(bytes.NewReader(data))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&ff); err != nil {
-		return compare.Forecast{}, c.decodeError(err)
+	if err := c.decodeStrict(data, &ff); err != nil {
+		return compare.Forecast{}, err
 	}
-	c.pos = indexPositions(data)
 	switch {
 	case ff.Name == "":
 		return compare.Forecast{}, c.errAt("name", "missing name")

@@ -94,6 +94,11 @@ func TestConfigErrorsCarryPositions(t *testing.T) {
 		{"bad A_s", "[normalisation]\nA_s = -2\n[[reheating]]\nhistory = \"instantaneous\"\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n", 2},
 		{"bad g_reh", "[[reheating]]\nhistory = \"instantaneous\"\ng_reh = 0\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n", 3},
 		{"second model", "[[reheating]]\nhistory = \"instantaneous\"\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n[[model]]\nfamily = \"t-model\"\nalpha = [1, 0]\n", 9},
+		// TOML keys are case-sensitive (TOML v1.0.0, "Keys"); the decoder
+		// would match "Constraint" to constraint and let the later of two
+		// arrays of tables replace the earlier (found by FuzzParse).
+		{"key case", "[[reheating]]\nhistory = \"instantaneous\"\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[Constraint]]\nuse = \"planck2018-bk18\"\n[[model]]\nfamily = \"starobinsky\"\n", 5},
+		{"key case in a table", "[slow_roll]\nMethod = \"first\"\n[[reheating]]\nhistory = \"instantaneous\"\n[[constraint]]\nuse = \"cmb-combined-2025\"\n[[model]]\nfamily = \"starobinsky\"\n", 2},
 	}
 	for _, c := range cases {
 		_, err := Parse(c.name+".toml", []byte(c.text), ".")
