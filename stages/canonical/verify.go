@@ -6,6 +6,8 @@ import (
 
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // Settings controls Verify. Nil means the defaults.
@@ -208,7 +210,7 @@ type sqrtKQuadrature struct {
 func newSqrtKQuadrature(nf *model.NativeField, quad *num.QuadSettings, floor float64) sqrtKQuadrature {
 	q := sqrtKQuadrature{nf: nf, v0: nf.Origin, quad: *quad, floor: floor}
 	if nf.Lo >= 0 && nf.Origin > 0 {
-		q.inLog, q.v0 = true, math.Log(nf.Origin)
+		q.inLog, q.v0 = true, detmath.Log(nf.Origin)
 	}
 	return q
 }
@@ -216,7 +218,7 @@ func newSqrtKQuadrature(nf *model.NativeField, quad *num.QuadSettings, floor flo
 // integrand is sqrt(K) in the quadrature's variable.
 func (q *sqrtKQuadrature) integrand(v float64) float64 {
 	if q.inLog {
-		x := math.Exp(v)
+		x := detmath.Exp(v)
 		return math.Sqrt(q.nf.Kinetic(x)) * x
 	}
 	return math.Sqrt(q.nf.Kinetic(v))
@@ -256,7 +258,7 @@ func (q *sqrtKQuadrature) stretch(a, b, base float64) (float64, error) {
 func (q *sqrtKQuadrature) integral(x float64) (float64, error) {
 	v := x
 	if q.inLog {
-		v = math.Log(x)
+		v = detmath.Log(x)
 	}
 	side := 0
 	if v > q.v0 {
@@ -292,11 +294,11 @@ var edgeGaps = [...]float64{0.7, 0.4, 0.2, 0.1, 1e-2, 1e-3, 1e-4, 1e-5}
 func appendSamplePoints(out []float64, m *model.Model) []float64 {
 	nf := m.Native
 	for _, t := range sampleFractions {
-		out = append(out, m.Lo+(m.Hi-m.Lo)*t)
+		out = append(out, m.Lo+float64((m.Hi-m.Lo)*t))
 	}
 	if nf.Map != nil {
 		for _, t := range numericalFractions {
-			out = append(out, m.Lo+(m.Hi-m.Lo)*t)
+			out = append(out, m.Lo+float64((m.Hi-m.Lo)*t))
 		}
 	}
 	for _, edge := range [...]float64{nf.Lo, nf.Hi} {
@@ -304,7 +306,7 @@ func appendSamplePoints(out []float64, m *model.Model) []float64 {
 			continue
 		}
 		for _, gap := range edgeGaps {
-			x := nf.Origin + (edge-nf.Origin)*(1-gap)
+			x := nf.Origin + float64((edge-nf.Origin)*(1-gap))
 			if phi := nf.ToCanonical(x); phi > m.Lo && phi < m.Hi {
 				out = append(out, phi)
 			}

@@ -1,6 +1,10 @@
 package compare
 
-import "math"
+import (
+	"math"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
+)
 
 // Point is a location in the (n_s, r) plane.
 type Point struct {
@@ -35,8 +39,8 @@ type Constraint interface {
 // for k = 1, 2, that is 68.27% and 95.45% (the mass of a one-dimensional
 // Gaussian within k standard deviations; common practice).
 var (
-	P68 = math.Erf(1 / math.Sqrt2)
-	P95 = math.Erf(2 / math.Sqrt2)
+	P68 = detmath.Erf(1 / math.Sqrt2)
+	P95 = detmath.Erf(2 / math.Sqrt2)
 )
 
 var (

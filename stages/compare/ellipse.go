@@ -3,6 +3,8 @@ package compare
 import (
 	"fmt"
 	"math"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // Contour returns the boundary of the region Delta chi^2 <= dchi2 of g
@@ -33,15 +35,15 @@ func (g Gaussian) Contour(dchi2 float64, n int) (pts []Point, closed bool, err e
 	c := dchi2
 	if g.MeanR < 0 {
 		y := g.MeanR / g.SigmaR
-		c += y * y
+		c += float64(y * y)
 	}
 	rad := math.Sqrt(c)
-	cr := math.Sqrt(1 - g.Rho*g.Rho)
+	cr := math.Sqrt(1 - float64(g.Rho*g.Rho))
 	at := func(t float64) Point {
-		u, v := math.Cos(t), math.Sin(t)
+		u, v := detmath.Cos(t), detmath.Sin(t)
 		return Point{
-			Ns: g.MeanNs + rad*g.SigmaNs*u,
-			R:  g.MeanR + rad*g.SigmaR*(g.Rho*u+cr*v),
+			Ns: g.MeanNs + float64(float64(rad*g.SigmaNs)*u),
+			R:  g.MeanR + float64(float64(rad*g.SigmaR)*(float64(g.Rho*u)+float64(cr*v))),
 		}
 	}
 	s0 := -g.MeanR / (rad * g.SigmaR) // sin(theta + phi) where r = 0
@@ -52,9 +54,9 @@ func (g Gaussian) Contour(dchi2 float64, n int) (pts []Point, closed bool, err e
 		}
 		return pts, true, nil
 	}
-	phi := math.Asin(g.Rho)
-	t1 := math.Asin(s0) - phi
-	t2 := math.Pi - math.Asin(s0) - phi
+	phi := detmath.Asin(g.Rho)
+	t1 := detmath.Asin(s0) - phi
+	t2 := math.Pi - detmath.Asin(s0) - phi
 	pts = make([]Point, n)
 	for i := range pts {
 		pts[i] = at(t1 + (t2-t1)*float64(i)/float64(n-1))

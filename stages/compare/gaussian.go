@@ -4,14 +4,14 @@ import (
 	"fmt"
 	"math"
 
-	"gonum.org/v1/gonum/stat/distuv"
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // HalfNormal95 is the 95% quantile of a half-normal distribution in units
 // of its sigma, sqrt(2) erfinv(0.95) = 1.959964: a one-sided 95% upper
 // limit r95 on a parameter bounded below by zero, with its likelihood
 // peaked at zero, corresponds to sigma_r = r95/1.959964 (common practice).
-var HalfNormal95 = math.Sqrt2 * math.Erfinv(0.95)
+var HalfNormal95 = math.Sqrt2 * detmath.Erfinv(0.95)
 
 // Gaussian is a bivariate Gaussian approximation of a published (n_s, r)
 // constraint, with r restricted to r >= 0.
@@ -44,7 +44,7 @@ func (g Gaussian) Check() error {
 func (g Gaussian) chi2(ns, r float64) float64 {
 	x := (ns - g.MeanNs) / g.SigmaNs
 	y := (r - g.MeanR) / g.SigmaR
-	return (x*x - 2*g.Rho*x*y + y*y) / (1 - g.Rho*g.Rho)
+	return (float64(x*x) - float64(float64(float64(2*g.Rho)*x)*y) + float64(y*y)) / (1 - float64(g.Rho*g.Rho))
 }
 
 // DeltaChi2 returns chi^2(n_s, r) minus its minimum over the allowed region
@@ -72,10 +72,10 @@ func Sigmas(dchi2 float64) float64 {
 	if !(dchi2 > 0) {
 		return 0
 	}
-	p := math.Exp(-dchi2 / 2)
-	target := dchi2 / 2
+	p := detmath.Exp(-dchi2 / 2)
+	target := float64(dchi2 / 2)
 	if p >= 1e-8 {
-		return math.Sqrt2 * math.Erfcinv(p)
+		return math.Sqrt2 * detmath.Erfcinv(p)
 	}
 	// math.Erfcinv(p) is Erfinv(1 - p), which loses p below about 1e-16
 	// (1 - p rounds to 1 and it returns +Inf). Start from the asymptotic
@@ -84,8 +84,8 @@ func Sigmas(dchi2 float64) float64 {
 	x := asymptoticErfcinv(target)
 	if p > 1e-300 {
 		for i := 0; i < 20; i++ {
-			e := math.Erfc(x)
-			step := (math.Log(e) + target) / (-2 / math.SqrtPi * math.Exp(-x*x) / e)
+			e := detmath.Erfc(x)
+			step := (detmath.Log(e) + target) / (float64(-2/math.SqrtPi*detmath.Exp(float64(-x*x))) / e)
 			x -= step
 			if math.Abs(step) <= 1e-15*x {
 				break
@@ -102,7 +102,7 @@ func Sigmas(dchi2 float64) float64 {
 func asymptoticErfcinv(target float64) float64 {
 	x := math.Sqrt(target)
 	for i := 0; i < 50; i++ {
-		x = math.Sqrt(target - math.Log(x) - 0.5*math.Log(math.Pi) + math.Log(1-0.5/(x*x)))
+		x = math.Sqrt(target - detmath.Log(x) - float64(0.5*detmath.Log(math.Pi)) + detmath.Log(1-0.5/(float64(x*x))))
 	}
 	return x
 }
@@ -138,12 +138,19 @@ type Comparison struct {
 // central 95% interval of the Gaussian (common practice). The correlation
 // with n_s does not enter: the marginal of a bivariate Gaussian is the
 // Gaussian of its own mean and sigma.
-func (g Gaussian) R95() float64 { return g.MeanR + HalfNormal95*g.SigmaR }
+func (g Gaussian) R95() float64 { return g.MeanR + float64(HalfNormal95*g.SigmaR) }
 
 // Chi2Level returns the Delta chi^2 enclosing probability P for two
 // parameters: the quantile of the chi^2 distribution with two degrees of
-// freedom, -2 ln(1 - P) (gonum's distuv.ChiSquared).
-func Chi2Level(P float64) float64 { return distuv.ChiSquared{K: 2}.Quantile(P) }
+// freedom, -2 ln(1 - P) in closed form (common practice; checked against
+// gonum's distuv.ChiSquared in the tests).
+func Chi2Level(P float64) float64 { return -2 * detmath.Log1p(-P) }
+
+// The two levels Compare tests against, computed once.
+var (
+	chi2Level68 = Chi2Level(detmath.Erf(1 / math.Sqrt2))
+	chi2Level95 = Chi2Level(detmath.Erf(2 / math.Sqrt2))
+)
 
 // Compare evaluates the prediction (n_s, r) against g.
 func (g Gaussian) Compare(ns, r float64) Comparison {
@@ -152,8 +159,8 @@ func (g Gaussian) Compare(ns, r float64) Comparison {
 	return Comparison{
 		DeltaChi2:  d,
 		Sigmas:     Sigmas(d),
-		Inside68:   d <= Chi2Level(math.Erf(1/math.Sqrt2)),
-		Inside95:   d <= Chi2Level(math.Erf(2/math.Sqrt2)),
+		Inside68:   d <= chi2Level68,
+		Inside95:   d <= chi2Level95,
 		R95:        r95,
 		ExceedsR95: r > r95,
 	}

@@ -5,7 +5,7 @@ import (
 	"math"
 	"sort"
 
-	"gonum.org/v1/gonum/stat"
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // KDE is a constraint given as samples of (n_s, r), smoothed into a
@@ -88,14 +88,14 @@ func NewKDE(name, citation string, samples []Point) (*KDE, error) {
 	var sNN, sNR, sRR float64
 	for _, p := range samples {
 		a, b := p.Ns-mNs, p.R-mR
-		sNN += a * a
-		sNR += a * b
-		sRR += b * b
+		sNN += float64(a * a)
+		sNR += float64(a * b)
+		sRR += float64(b * b)
 	}
 	d := float64(n - 1)
 	k := &KDE{name: name, citation: citation, pts: append([]Point(nil), samples...)}
 	k.cov = [3]float64{sNN / d, sNR / d, sRR / d}
-	det := k.cov[0]*k.cov[2] - k.cov[1]*k.cov[1]
+	det := float64(k.cov[0]*k.cov[2]) - float64(k.cov[1]*k.cov[1])
 	if !(det > 1e-12*k.cov[0]*k.cov[2]) {
 		return nil, fmt.Errorf("constraint %s: the samples' covariance is singular (var n_s = %g, var r = %g, cov = %g)", name, k.cov[0], k.cov[2], k.cov[1])
 	}
@@ -103,7 +103,7 @@ func NewKDE(name, citation string, samples []Point) (*KDE, error) {
 	h2 := k.h * k.h
 	k.prec = [3]float64{k.cov[2] / (det * h2), -k.cov[1] / (det * h2), k.cov[0] / (det * h2)}
 	detH := det * h2 * h2
-	k.lnNorm = -math.Log(float64(n) * 2 * math.Pi * math.Sqrt(detH))
+	k.lnNorm = -detmath.Log(float64(n) * 2 * math.Pi * math.Sqrt(detH))
 
 	k.lnAtSamples = make([]float64, n)
 	best := 0
@@ -117,7 +117,7 @@ func NewKDE(name, citation string, samples []Point) (*KDE, error) {
 	sort.Float64s(k.lnAtSamples)
 	k.r95 = SampleR95(k.pts)
 	for j, P := range []float64{P68, P95} {
-		k.lnLevel[j] = stat.Quantile(1-P, stat.LinInterp, k.lnAtSamples, nil)
+		k.lnLevel[j] = linInterpQuantile(1-P, k.lnAtSamples)
 	}
 	return k, nil
 }
@@ -127,7 +127,7 @@ func NewKDE(name, citation string, samples []Point) (*KDE, error) {
 // and Table 4.1); the kernel covariance is h^2 times the sample covariance.
 func SilvermanFactor(d, n int) float64 {
 	e := 1 / float64(d+4)
-	return math.Pow(4/float64(d+2), e) * math.Pow(float64(n), -e)
+	return detmath.Pow(4/float64(d+2), e) * detmath.Pow(float64(n), -e)
 }
 
 // lnRaw is ln of the reflected sum at (ns, r) for any sign of r (it is
@@ -139,28 +139,28 @@ func (k *KDE) lnRaw(ns, r float64) float64 {
 	qmin := math.Inf(1)
 	for _, p := range k.pts {
 		dx := ns - p.Ns
-		ax := a * dx * dx
-		bx := 2 * b * dx
+		ax := float64(float64(a*dx) * dx)
+		bx := float64(float64(2*b) * dx)
 		d1 := r - p.R
 		d2 := -r - p.R
-		q1 := ax + d1*(bx+c*d1)
-		q2 := ax + d2*(bx+c*d2)
-		sum += math.Exp(-0.5*q1) + math.Exp(-0.5*q2)
+		q1 := ax + float64(d1*(bx+float64(c*d1)))
+		q2 := ax + float64(d2*(bx+float64(c*d2)))
+		sum += detmath.Exp(float64(-0.5*q1)) + detmath.Exp(float64(-0.5*q2))
 		qmin = math.Min(qmin, math.Min(q1, q2))
 	}
 	if sum > 1e-280 {
-		return k.lnNorm + math.Log(sum)
+		return k.lnNorm + detmath.Log(sum)
 	}
 	sum = 0
 	for _, p := range k.pts {
 		dx := ns - p.Ns
-		ax := a * dx * dx
-		bx := 2 * b * dx
+		ax := float64(float64(a*dx) * dx)
+		bx := float64(float64(2*b) * dx)
 		d1 := r - p.R
 		d2 := -r - p.R
-		sum += math.Exp(-0.5*(ax+d1*(bx+c*d1)-qmin)) + math.Exp(-0.5*(ax+d2*(bx+c*d2)-qmin))
+		sum += detmath.Exp(float64(-0.5*(ax+float64(d1*(bx+float64(c*d1)))-qmin))) + detmath.Exp(float64(-0.5*(ax+float64(d2*(bx+float64(c*d2)))-qmin)))
 	}
-	return k.lnNorm - 0.5*qmin + math.Log(sum)
+	return k.lnNorm - float64(0.5*qmin) + detmath.Log(sum)
 }
 
 // polish refines the density maximum from the best sample by compass
@@ -177,7 +177,7 @@ func (k *KDE) polish(start Point, lnStart float64) (Point, float64) {
 	for step, evals := 0.5, 0; step > 1e-6 && evals < 2000; {
 		moved := false
 		for _, d := range dirs {
-			p := Point{Ns: best.Ns + step*d[0]*sNs, R: best.R + step*d[1]*sR}
+			p := Point{Ns: best.Ns + float64(float64(step*d[0])*sNs), R: best.R + float64(float64(step*d[1])*sR)}
 			evals++
 			if l := k.lnRaw(p.Ns, p.R); l > lnBest {
 				best, lnBest, moved = p, l, true
@@ -216,11 +216,11 @@ func (k *KDE) Density(ns, r float64) float64 {
 	if r < 0 {
 		return 0
 	}
-	return math.Exp(k.lnRaw(ns, r))
+	return detmath.Exp(k.lnRaw(ns, r))
 }
 
 // Max returns the location and value of the density maximum.
-func (k *KDE) Max() (Point, float64) { return k.argmax, math.Exp(k.lnMax) }
+func (k *KDE) Max() (Point, float64) { return k.argmax, detmath.Exp(k.lnMax) }
 
 // DeltaChi2 returns -2 ln(p(n_s, r)/p_max); +Inf for r < 0, where the
 // density is zero.
@@ -240,7 +240,7 @@ func (k *KDE) Levels() (d68, d95 float64) {
 // DensityLevels returns the densities f_68 and f_95 on the boundaries of
 // the 68.27% and 95.45% highest-density regions.
 func (k *KDE) DensityLevels() (f68, f95 float64) {
-	return math.Exp(k.lnLevel[0]), math.Exp(k.lnLevel[1])
+	return detmath.Exp(k.lnLevel[0]), detmath.Exp(k.lnLevel[1])
 }
 
 // Inside reports whether p(n_s, r) >= f_68 and >= f_95.
@@ -279,7 +279,27 @@ func SampleR95(pts []Point) float64 {
 		rs[i] = p.R
 	}
 	sort.Float64s(rs)
-	return stat.Quantile(0.95, stat.LinInterp, rs, nil)
+	return linInterpQuantile(0.95, rs)
+}
+
+// linInterpQuantile returns the p quantile of the sorted, NaN-free x,
+// interpolated linearly between order statistics: the definition of
+// gonum's stat.Quantile with stat.LinInterp and no weights (checked
+// against it in kde_test.go), with its products rounded so that no build
+// fuses them (see stages/num/detmath).
+func linInterpQuantile(p float64, x []float64) float64 {
+	fidx := float64(p * float64(len(x)))
+	for i := range x {
+		cumsum := float64(i + 1)
+		if cumsum >= fidx {
+			if i == 0 {
+				return x[0]
+			}
+			t := cumsum - fidx
+			return float64(t*x[i-1]) + float64((1-t)*x[i])
+		}
+	}
+	return x[len(x)-1]
 }
 
 // Compare evaluates (n_s, r) against the estimate. Sigmas is the
@@ -303,8 +323,8 @@ func (k *KDE) Extent() (lo, hi Point) {
 		lo.Ns, hi.Ns = math.Min(lo.Ns, p.Ns), math.Max(hi.Ns, p.Ns)
 		lo.R, hi.R = math.Min(lo.R, p.R), math.Max(hi.R, p.R)
 	}
-	wNs := 4 * k.h * math.Sqrt(k.cov[0])
-	wR := 4 * k.h * math.Sqrt(k.cov[2])
+	wNs := float64(float64(4*k.h) * math.Sqrt(k.cov[0]))
+	wR := float64(float64(4*k.h) * math.Sqrt(k.cov[2]))
 	lo.Ns -= wNs
 	hi.Ns += wNs
 	lo.R = math.Max(0, lo.R-wR)

@@ -1,9 +1,9 @@
 package expr
 
 import (
-	"math"
-
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // div returns a/b by the quotient rule, solving a = q b order by order:
@@ -16,9 +16,9 @@ import (
 // correctly rounded a.V/b.V, so x/49 at x = 49 is exactly 1.
 func div(a, b num.Jet) num.Jet {
 	q := a.V / b.V
-	q1 := (a.D1 - q*b.D1) / b.V
-	q2 := (a.D2 - 2*q1*b.D1 - q*b.D2) / b.V
-	q3 := (a.D3 - 3*q2*b.D1 - 3*q1*b.D2 - q*b.D3) / b.V
+	q1 := (a.D1 - float64(q*b.D1)) / b.V
+	q2 := (a.D2 - float64(float64(2*q1)*b.D1) - float64(q*b.D2)) / b.V
+	q3 := (a.D3 - float64(float64(3*q2)*b.D1) - float64(float64(3*q1)*b.D2) - float64(q*b.D3)) / b.V
 	return num.Jet{V: q, D1: q1, D2: q2, D3: q3}
 }
 
@@ -51,10 +51,10 @@ func powConst(a num.Jet, p float64) num.Jet {
 		return num.Mul(a, a)
 	}
 	x := a.V
-	f0 := math.Pow(x, p)
-	f1 := p * math.Pow(x, p-1)
-	f2 := p * ((p - 1) * math.Pow(x, p-2))
-	f3 := p * ((p - 1) * ((p - 2) * math.Pow(x, p-3)))
+	f0 := detmath.Pow(x, p)
+	f1 := p * detmath.Pow(x, p-1)
+	f2 := p * ((p - 1) * detmath.Pow(x, p-2))
+	f3 := p * ((p - 1) * ((p - 2) * detmath.Pow(x, p-3)))
 	return num.Compose(a, f0, f1, f2, f3)
 }
 
@@ -68,7 +68,7 @@ func powConstF(x, p float64) float64 {
 	case 2:
 		return x * x
 	}
-	return math.Pow(x, p)
+	return detmath.Pow(x, p)
 }
 
 // powJet returns a^b for a non-constant exponent as exp(b log a), which is
@@ -76,4 +76,4 @@ func powConstF(x, p float64) float64 {
 func powJet(a, b num.Jet) num.Jet { return num.Exp(num.Mul(b, num.Log(a))) }
 
 // powF is the value of powJet.
-func powF(a, b float64) float64 { return math.Exp(b * math.Log(a)) }
+func powF(a, b float64) float64 { return detmath.Exp(b * detmath.Log(a)) }

@@ -2,10 +2,11 @@ package expr
 
 import (
 	"fmt"
-	"math"
 	"sort"
 
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // Options adjusts Compile. The zero value (and a nil *Options) is the
@@ -188,7 +189,7 @@ func lower(t *ast, params map[string]float64, fold bool) *node {
 	case !t.args[1].field:
 		return &node{op: opPowE, a: a, b: b}
 	case ac:
-		return &node{op: opCPow, a: b, c: math.Log(a.c)}
+		return &node{op: opCPow, a: b, c: detmath.Log(a.c)}
 	}
 	return &node{op: opPow, a: a, b: b}
 }

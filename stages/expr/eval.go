@@ -1,9 +1,9 @@
 package expr
 
 import (
-	"math"
-
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // op is an instruction of the evaluation tree.
@@ -115,7 +115,7 @@ func (n *node) value(x float64) float64 {
 	case opPow:
 		return powF(n.a.value(x), n.b.value(x))
 	case opCPow:
-		return math.Exp(n.c * n.a.value(x))
+		return detmath.Exp(n.c * n.a.value(x))
 	case opFunc:
 		return n.fn.flt(n.a.value(x))
 	}

@@ -6,6 +6,8 @@ import (
 	"strings"
 
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // function is one built-in function. The jet and float forms must compute
@@ -20,25 +22,25 @@ type function struct {
 
 // funcs lists the built-in functions by name.
 var funcs = map[string]*function{
-	"exp":   {name: "exp", arity: 1, jet: num.Exp, flt: math.Exp},
-	"log":   {name: "log", arity: 1, jet: num.Log, flt: math.Log},
+	"exp":   {name: "exp", arity: 1, jet: num.Exp, flt: detmath.Exp},
+	"log":   {name: "log", arity: 1, jet: num.Log, flt: detmath.Log},
 	"sqrt":  {name: "sqrt", arity: 1, jet: num.Sqrt, flt: math.Sqrt},
 	"sin":   {name: "sin", arity: 1, jet: num.Sin, flt: sinF},
 	"cos":   {name: "cos", arity: 1, jet: num.Cos, flt: cosF},
-	"tan":   {name: "tan", arity: 1, jet: num.Tan, flt: math.Tan},
-	"sinh":  {name: "sinh", arity: 1, jet: num.Sinh, flt: math.Sinh},
-	"cosh":  {name: "cosh", arity: 1, jet: num.Cosh, flt: math.Cosh},
-	"tanh":  {name: "tanh", arity: 1, jet: num.Tanh, flt: math.Tanh},
-	"asinh": {name: "asinh", arity: 1, jet: num.Asinh, flt: math.Asinh},
-	"acosh": {name: "acosh", arity: 1, jet: num.Acosh, flt: math.Acosh},
-	"atanh": {name: "atanh", arity: 1, jet: num.Atanh, flt: math.Atanh},
+	"tan":   {name: "tan", arity: 1, jet: num.Tan, flt: detmath.Tan},
+	"sinh":  {name: "sinh", arity: 1, jet: num.Sinh, flt: detmath.Sinh},
+	"cosh":  {name: "cosh", arity: 1, jet: num.Cosh, flt: detmath.Cosh},
+	"tanh":  {name: "tanh", arity: 1, jet: num.Tanh, flt: detmath.Tanh},
+	"asinh": {name: "asinh", arity: 1, jet: num.Asinh, flt: detmath.Asinh},
+	"acosh": {name: "acosh", arity: 1, jet: num.Acosh, flt: detmath.Acosh},
+	"atanh": {name: "atanh", arity: 1, jet: num.Atanh, flt: detmath.Atanh},
 	"abs":   {name: "abs", arity: 1, jet: num.Abs, flt: absF},
 	"pow":   {name: "pow", arity: 2},
 }
 
 // sinF and cosF take the value from math.Sincos, as num.Sin and num.Cos do.
-func sinF(x float64) float64 { s, _ := math.Sincos(x); return s }
-func cosF(x float64) float64 { _, c := math.Sincos(x); return c }
+func sinF(x float64) float64 { s, _ := detmath.Sincos(x); return s }
+func cosF(x float64) float64 { _, c := detmath.Sincos(x); return c }
 
 // absF mirrors num.Abs (which keeps the sign of -0), not math.Abs.
 func absF(x float64) float64 {

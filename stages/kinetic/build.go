@@ -144,11 +144,11 @@ func (b *builder) boundaries(d float64) []boundary {
 	if math.IsInf(end, 0) {
 		L := math.Max(1, math.Abs(b.origin))
 		for j := innerOctaves; j >= 1; j-- {
-			push(b.origin+d*math.Ldexp(L, -j), false, false)
+			push(b.origin+float64(d*math.Ldexp(L, -j)), false, false)
 		}
 		for k := 0; ; k++ {
 			dist := math.Ldexp(L, k)
-			x := b.origin + d*dist
+			x := b.origin + float64(d*dist)
 			if math.IsInf(x, 0) || math.Abs(x) > 1e300 {
 				break
 			}
@@ -158,7 +158,7 @@ func (b *builder) boundaries(d float64) []boundary {
 	}
 	g := math.Abs(end - b.origin)
 	for j := innerOctaves; j >= 1; j-- {
-		push(b.origin+d*math.Ldexp(g, -j), false, false)
+		push(b.origin+float64(d*math.Ldexp(g, -j)), false, false)
 	}
 	minGap := math.Max(gapULPs*ulp(end), 1e-290)
 	for k := 2; ; k++ {
@@ -166,7 +166,7 @@ func (b *builder) boundaries(d float64) []boundary {
 		if gap < minGap {
 			break
 		}
-		if !push(end-d*gap, true, gap <= farGap*g) && end-d*gap == end {
+		if !push(end-float64(d*gap), true, gap <= float64(farGap*g)) && end-float64(d*gap) == end {
 			break
 		}
 	}
@@ -302,7 +302,7 @@ func (b *builder) panel(a, c kJet, depth int, far bool, sum *neumaier, out *[]no
 		*out = append(*out, c.node)
 		return c, nil
 	}
-	m := a.x + 0.5*(c.x-a.x)
+	m := a.x + float64(0.5*(c.x-a.x))
 	if m == a.x || m == c.x || depth >= maxDepth {
 		if far {
 			return kJet{}, errFar
@@ -345,7 +345,7 @@ func noPoleInside(a, c kJet) bool {
 			continue
 		}
 		inv := e.k.D2/ku - ku/e.k.V // 1/(u_p - u)
-		if inv > 0 && d*(e.x-c.x)+1/inv < -margin {
+		if inv > 0 && float64(d*(e.x-c.x))+1/inv < -margin {
 			return false
 		}
 	}

@@ -82,7 +82,7 @@ func (m *Map) XJet(phi num.Jet) num.Jet {
 	g1, g2 := kj.D1/k, kj.D2/k
 	d1 := 1 / math.Sqrt(k)
 	d2 := -0.5 * g1 / k
-	d3 := d1 * (-0.5*g2 + g1*g1) / k
+	d3 := float64(d1*(float64(-0.5*g2)+float64(g1*g1))) / k
 	return num.Compose(phi, x, d1, d2, d3)
 }
 
@@ -114,7 +114,7 @@ func (m *Map) invert(phi float64) (float64, num.Jet, error) {
 	lo, hi := a.x, c.x // phi(lo) <= phi <= phi(hi)
 	x := hermite(a, c, phi)
 	if !(x > lo && x < hi) {
-		x = lo + 0.5*(hi-lo)
+		x = lo + float64(0.5*(hi-lo))
 	}
 	for iter := 0; iter < newtonIters; iter++ {
 		p, err := m.phiIn(i, x)
@@ -146,7 +146,7 @@ func (m *Map) invert(phi float64) (float64, num.Jet, error) {
 				return next, m.k(num.Var(next)), nil
 			}
 		} else {
-			next = lo + 0.5*(hi-lo)
+			next = lo + float64(0.5*(hi-lo))
 		}
 		if next == x {
 			return x, kj, nil
@@ -161,14 +161,14 @@ func (m *Map) invert(phi float64) (float64, num.Jet, error) {
 func hermite(a, c node, phi float64) float64 {
 	h := c.phi - a.phi
 	t := (phi - a.phi) / h
-	t2 := t * t
-	t3 := t2 * t
-	t4 := t3 * t
-	t5 := t4 * t
-	h1 := t - 6*t3 + 8*t4 - 3*t5
-	h2 := 0.5 * (t2 - 3*t3 + 3*t4 - t5)
-	h3 := 0.5 * (t3 - 2*t4 + t5)
-	h4 := -4*t3 + 7*t4 - 3*t5
-	h5 := 10*t3 - 15*t4 + 6*t5
-	return a.x + h*(h1*a.d1+h4*c.d1) + h*h*(h2*a.d2+h3*c.d2) + h5*(c.x-a.x)
+	t2 := float64(t * t)
+	t3 := float64(t2 * t)
+	t4 := float64(t3 * t)
+	t5 := float64(t4 * t)
+	h1 := t - float64(6*t3) + float64(8*t4) - float64(3*t5)
+	h2 := float64(0.5 * (t2 - float64(3*t3) + float64(3*t4) - t5))
+	h3 := float64(0.5 * (t3 - float64(2*t4) + t5))
+	h4 := float64(-4*t3) + float64(7*t4) - float64(3*t5)
+	h5 := float64(10*t3) - float64(15*t4) + float64(6*t5)
+	return a.x + float64(h*(float64(h1*a.d1)+float64(h4*c.d1))) + float64(float64(h*h)*(float64(h2*a.d2)+float64(h3*c.d2))) + float64(h5*(c.x-a.x))
 }

@@ -1,6 +1,10 @@
 package model
 
-import "math"
+import (
+	"math"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
+)
 
 // Closed-form first-order e-fold counts, the integral of V/V' between two
 // canonical field values (Model.Efolds), for the families whose V/V' has
@@ -18,7 +22,7 @@ func plateauEfolds(c, b, a, z float64) float64 {
 		return -plateauEfolds(c, b, z, a)
 	}
 	x := b * (z - a)
-	return c * (math.Expm1(b*a)*math.Expm1(x) + expm1MinusX(x))
+	return float64(c * (float64(detmath.Expm1(float64(b*a))*detmath.Expm1(x)) + expm1MinusX(x)))
 }
 
 // invFactorial[k] is 1/k!.
@@ -39,11 +43,11 @@ var invFactorial = func() (f [19]float64) {
 // beyond, expm1(x) - x loses less than two bits.
 func expm1MinusX(x float64) float64 {
 	if math.Abs(x) >= 0.5 {
-		return math.Expm1(x) - x
+		return detmath.Expm1(x) - x
 	}
 	t := invFactorial[18]
 	for k := 17; k >= 2; k-- {
-		t = invFactorial[k] + x*t
+		t = invFactorial[k] + float64(x*t)
 	}
 	return x * x * t
 }
@@ -53,5 +57,5 @@ func expm1MinusX(x float64) float64 {
 // to z of V/V' = (s/(4n)) sinh(2 phi/s) with c = s^2/(4n) (derived here),
 // as a product, without the difference of the two cosh.
 func coshEfolds(c, s, a, z float64) float64 {
-	return c * math.Sinh((a+z)/s) * math.Sinh((z-a)/s)
+	return c * detmath.Sinh((a+z)/s) * detmath.Sinh((z-a)/s)
 }

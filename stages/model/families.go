@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 var inf = math.Inf(1)
@@ -54,7 +56,7 @@ var tModel = &Family{
 		// cosh(phi/s)^2 overflows and V' rounds to 0.
 		// N = (3 alpha/(2n)) sinh^2(phi/s) = rangeEfolds at
 		// sinh(phi/s) = sqrt(2 n rangeEfolds/(3 alpha)).
-		hi := math.Max(14*s, s*math.Asinh(math.Sqrt(2*n*rangeEfolds/(3*alpha))))
+		hi := math.Max(14*s, s*detmath.Asinh(math.Sqrt(2*n*rangeEfolds/(3*alpha))))
 		return newTModel(p, 0, hi), nil
 	},
 	buildOn: func(p map[string]float64, lo, hi float64) (*Model, error) { return newTModel(p, lo, hi), nil },
@@ -74,7 +76,7 @@ func newTModel(p map[string]float64, lo, hi float64) *Model {
 		// epsilon_V = 8 n^2/(s^2 sinh^2(2 phi/s)) falls monotonically on
 		// phi > 0 and is 1 where sinh(2 phi/s) = 2 sqrt(2) n/s (derived
 		// here).
-		EpsilonEnd: func() float64 { return s / 2 * math.Asinh(2*math.Sqrt2*n/s) },
+		EpsilonEnd: func() float64 { return s / 2 * detmath.Asinh(2*math.Sqrt2*n/s) },
 		Native: &NativeField{
 			Name: "chi", Lo: -s, Hi: s, Origin: 0,
 			Kinetic: func(x float64) float64 {
@@ -84,8 +86,8 @@ func newTModel(p map[string]float64, lo, hi float64) *Model {
 			V: func(x num.Jet) num.Jet {
 				return num.PowConst(num.Scale(1/(6*alpha), num.Mul(x, x)), n)
 			},
-			ToCanonical:   func(x float64) float64 { return s * math.Atanh(x/s) },
-			FromCanonical: func(phi float64) float64 { return s * math.Tanh(phi/s) },
+			ToCanonical:   func(x float64) float64 { return s * detmath.Atanh(x/s) },
+			FromCanonical: func(phi float64) float64 { return s * detmath.Tanh(phi/s) },
 			MapFormula:    "chi = sqrt(6 alpha) tanh(phi/sqrt(6 alpha))",
 		},
 	}
@@ -135,15 +137,15 @@ func newEModel(p map[string]float64, lo, hi float64) *Model {
 		// epsilon_V = 2 n^2 b^2/(e^(b phi) - 1)^2 falls monotonically on
 		// phi > 0 and is 1 where e^(b phi) = 1 + sqrt(2) n b (derived
 		// here).
-		EpsilonEnd: func() float64 { return math.Log1p(math.Sqrt2*n*b) / b },
+		EpsilonEnd: func() float64 { return detmath.Log1p(math.Sqrt2*n*b) / b },
 		Native: &NativeField{
 			Name: "y", Lo: 0, Hi: inf, Origin: 1,
 			Kinetic: func(y float64) float64 { return 3 * alpha / (2 * y * y) },
 			V: func(y num.Jet) num.Jet {
 				return num.PowConst(num.Sub(num.Const(1), num.Recip(y)), 2*n)
 			},
-			ToCanonical:   func(y float64) float64 { return math.Log(y) / b },
-			FromCanonical: func(phi float64) float64 { return math.Exp(b * phi) },
+			ToCanonical:   func(y float64) float64 { return detmath.Log(y) / b },
+			FromCanonical: func(phi float64) float64 { return detmath.Exp(b * phi) },
 			MapFormula:    "y = exp(sqrt(2/(3 alpha)) phi)",
 		},
 	}
@@ -171,7 +173,7 @@ var starobinsky = &Family{
 			// The e-model's count at alpha = 1, n = 1: c = 1/(2 n b^2) = 3/4.
 			Efolds: func(lo, hi float64) float64 { return plateauEfolds(0.75, b, lo, hi) },
 			// The e-model's end at alpha = 1, n = 1: e^(b phi) = 1 + sqrt(2) b.
-			EpsilonEnd: func() float64 { return math.Log1p(math.Sqrt2*b) / b },
+			EpsilonEnd: func() float64 { return detmath.Log1p(math.Sqrt2*b) / b },
 		}, nil
 	},
 }
@@ -195,7 +197,7 @@ var powerLaw = &Family{
 			V: func(phi num.Jet) num.Jet { return num.PowConst(phi, q) },
 			// N(phi) = (phi^2 - phi_end^2)/(2p) with phi_end = p/sqrt(2): the
 			// range holds 1.44 x 600 e-folds beyond the end.
-			Lo: 0, Hi: 1.2 * math.Sqrt(2*q*rangeEfolds+q*q/2),
+			Lo: 0, Hi: float64(1.2 * math.Sqrt(float64(float64(2*q)*rangeEfolds)+float64(float64(q*q)/2))),
 			// V/V' = phi/p: the count from a to b is (b^2 - a^2)/(2p).
 			Efolds: func(a, b float64) float64 { return (b - a) * (b + a) / (2 * q) },
 			// epsilon_V = p^2/(2 phi^2): the end is at phi = p/sqrt(2).

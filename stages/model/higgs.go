@@ -52,7 +52,7 @@ var higgs = &Family{
 			},
 			K:      higgsKinetic(xi),
 			Origin: 0, Lo: math.Inf(-1), Hi: math.Inf(1),
-			SearchLo: 0, SearchHi: math.Sqrt(8 * rangeEfolds / (1 + 6*xi)), SearchInField: true,
+			SearchLo: 0, SearchHi: math.Sqrt(8 * rangeEfolds / (1 + float64(6*xi))), SearchInField: true,
 			Kinetic:    &kinetic.Settings{PhiMax: 200},
 			MapFormula: NumericalMapFormula + " with K(h) = (1 + xi h^2 + 6 xi^2 h^2)/(1 + xi h^2)^2",
 		})

@@ -78,7 +78,7 @@ func NewNative(s NativeSpec) (*Model, error) {
 		ks = *s.Kinetic
 	}
 	if ks.PhiMax == 0 && !s.SearchInField {
-		ks.PhiMax = 1.25*math.Max(math.Abs(s.SearchLo), math.Abs(s.SearchHi)) + 10
+		ks.PhiMax = float64(1.25*math.Max(math.Abs(s.SearchLo), math.Abs(s.SearchHi))) + 10
 	}
 	mp, err := kinetic.New(s.K, s.Origin, s.Lo, s.Hi, &ks)
 	if err != nil {

@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // brane is brane inflation, V = V0 (1 - (mu/phi)^p): the attraction of a
@@ -27,7 +29,7 @@ var brane = &Family{
 	Tags: []string{"string theory", "KKLT"},
 	build: func(p map[string]float64) (*Model, error) {
 		mu, q := p["mu"], p["p"]
-		n := func(phi float64) float64 { return phi * phi * (math.Pow(phi/mu, q)/(q+2) - 0.5) / q }
+		n := func(phi float64) float64 { return phi * phi * (detmath.Pow(phi/mu, q)/(q+2) - 0.5) / q }
 		n0 := n(mu)
 		return &Model{
 			Family: "brane", Params: p,
@@ -58,7 +60,7 @@ var exponentialPlateau = &Family{
 	Tags: []string{"supergravity"},
 	build: func(p map[string]float64) (*Model, error) {
 		q := p["q"]
-		n := func(phi float64) float64 { return (math.Expm1(q*phi) - q*phi) / (q * q) }
+		n := func(phi float64) float64 { return (detmath.Expm1(float64(q*phi)) - float64(q*phi)) / (float64(q * q)) }
 		return &Model{
 			Family: "exponential-plateau", Params: p,
 			V:  onDomain(0, inf, func(phi num.Jet) num.Jet { return num.Neg(expm1(num.Scale(-q, phi))) }),
@@ -67,7 +69,7 @@ var exponentialPlateau = &Family{
 			// c = 1/q^2.
 			Efolds: func(a, b float64) float64 { return plateauEfolds(1/(q*q), q, a, b) },
 			// The end e^(q phi) = 1 + q/sqrt(2) of the comment above.
-			EpsilonEnd: func() float64 { return math.Log1p(q/math.Sqrt2) / q },
+			EpsilonEnd: func() float64 { return detmath.Log1p(q/math.Sqrt2) / q },
 		}, nil
 	},
 }
@@ -91,12 +93,12 @@ var loop = &Family{
 	Tags: []string{"radiative", "supersymmetry"},
 	build: func(p map[string]float64) (*Model, error) {
 		a := p["alpha"]
-		lo := math.Exp(-1 / a)
+		lo := detmath.Exp(-1 / a)
 		n := func(phi float64) float64 {
 			if phi == 0 {
 				return 0 // the limit of phi^2 ln phi
 			}
-			return phi*phi/(2*a) + phi*phi/2*(math.Log(phi)-0.5)
+			return float64(phi*phi)/(float64(2*a)) + float64(float64(phi*phi)/2*(detmath.Log(phi)-0.5))
 		}
 		n0 := n(lo)
 		return &Model{
@@ -125,7 +127,9 @@ var radionAssistedGauge = &Family{
 	Tags: []string{"extra dimensions", "gauge inflation"},
 	build: func(p map[string]float64) (*Model, error) {
 		a := p["alpha"]
-		n := func(phi float64) float64 { return phi*phi/4 + phi*phi*phi*phi/(8*a) }
+		n := func(phi float64) float64 {
+			return float64(float64(phi*phi)/4) + float64(float64(float64(phi*phi)*phi)*phi)/(float64(8*a))
+		}
 		return &Model{
 			Family: "radion-assisted-gauge", Params: p,
 			V: onDomain(0, inf, func(phi num.Jet) num.Jet {

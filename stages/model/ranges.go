@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // Field ranges. Each family's canonical range is chosen so that the end of
@@ -28,8 +30,8 @@ func reach(efolds func(phi float64) float64, from, w float64) float64 {
 
 // expm1 returns exp(a) - 1, accurate for small a.
 func expm1(a num.Jet) num.Jet {
-	e := math.Exp(a.V)
-	return num.Compose(a, math.Expm1(a.V), e, e, e)
+	e := detmath.Exp(a.V)
+	return num.Compose(a, detmath.Expm1(a.V), e, e, e)
 }
 
 // muParam is the scale of a hilltop, brane or similar potential.
@@ -66,11 +68,11 @@ func onDomain(lo, hi float64, v func(num.Jet) num.Jet) func(num.Jet) num.Jet {
 // where sqrt(2 T) would make e^x overflow (small alpha).
 func plateauReach(c, b float64) float64 {
 	T := rangeEfolds / c
-	lnT := math.Log(T)
-	x := math.Min(math.Sqrt(2*T), math.Max(2, math.Log(2*T)))
+	lnT := detmath.Log(T)
+	x := math.Min(math.Sqrt(2*T), math.Max(2, detmath.Log(2*T)))
 	for i := 0; i < 100; i++ {
 		e1 := expm1MinusX(x)
-		step := (math.Log(e1) - lnT) * e1 / math.Expm1(x)
+		step := (detmath.Log(e1) - lnT) * e1 / detmath.Expm1(x)
 		if !(math.Abs(step) > 4e-16*x) {
 			break
 		}

@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // hilltopModel is V = V0 (1 - (phi/mu)^q) on 0 < phi < mu, as in the
@@ -98,16 +100,16 @@ var colemanWeinberg = &Family{
 // cancellation of the closed form; 30 terms reach rounding.
 func cwG(t num.Jet) num.Jet {
 	x := t.V
-	e := math.Exp(x)
+	e := detmath.Exp(x)
 	var g float64
 	if math.Abs(x) < 0.5 {
 		term := x // t^k/k! at k = 1
 		for k := 2; k <= 30; k++ {
 			term *= x / float64(k)
-			g += float64(k-1) * term
+			g += float64(float64(k-1) * term)
 		}
 	} else {
-		g = 1 - (1-x)*e
+		g = 1 - float64((1-x)*e)
 	}
 	return num.Compose(t, g, x*e, (1+x)*e, (2+x)*e)
 }

@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // twoPlateau is a quintessential alpha-attractor with two plateaus: on the
@@ -57,8 +59,8 @@ var twoPlateau = &Family{
 	},
 	build: func(p map[string]float64) (*Model, error) {
 		alpha, gamma := p["alpha"], p["gamma"]
-		s := math.Sqrt(6 * alpha)
-		scale := math.Exp(-2 * gamma)
+		s := math.Sqrt(float64(6 * alpha))
+		scale := detmath.Exp(-2 * gamma)
 		return &Model{
 			Family: "two-plateau", Params: p,
 			V: func(phi num.Jet) num.Jet {
@@ -66,8 +68,8 @@ var twoPlateau = &Family{
 				w := num.Scale(2*gamma, num.Recip(num.AddConst(num.Exp(num.Scale(-2/s, phi)), 1)))
 				return num.Scale(scale, expm1(w))
 			},
-			Lo: -s * (math.Log1p(2*gamma)/2 + 8),
-			Hi: s * (math.Log1p(2000*gamma/alpha)/2 + 3),
+			Lo: float64(-s * (float64(detmath.Log1p(float64(2*gamma))/2) + 8)),
+			Hi: float64(s * (float64(detmath.Log1p(float64(2000*gamma)/alpha)/2) + 3)),
 			Native: &NativeField{
 				Name: "chi", Lo: -s, Hi: s, Origin: 0,
 				Kinetic: func(x float64) float64 {
@@ -77,8 +79,8 @@ var twoPlateau = &Family{
 				V: func(x num.Jet) num.Jet {
 					return num.Scale(scale, expm1(num.Scale(gamma, num.AddConst(num.Scale(1/s, x), 1))))
 				},
-				ToCanonical:   func(x float64) float64 { return s * math.Atanh(x/s) },
-				FromCanonical: func(phi float64) float64 { return s * math.Tanh(phi/s) },
+				ToCanonical:   func(x float64) float64 { return s * detmath.Atanh(x/s) },
+				FromCanonical: func(phi float64) float64 { return s * detmath.Tanh(phi/s) },
 				MapFormula:    "chi = sqrt(6 alpha) tanh(phi/sqrt(6 alpha))",
 			},
 		}, nil

@@ -101,17 +101,17 @@ var (
 )
 
 func gk7(f func(float64) float64, a, b float64) (val, errEst float64) {
-	c := 0.5 * (a + b)
+	c := float64(0.5 * (a + b))
 	h := 0.5 * (b - a)
 	fc := f(c)
 	k := fc * gk7w[3]
 	g := fc * g3w[1]
 	for i := 0; i < 3; i++ {
-		dx := h * gk7x[i]
+		dx := float64(h * gk7x[i])
 		s := f(c-dx) + f(c+dx)
-		k += gk7w[i] * s
+		k += float64(gk7w[i] * s)
 		if i == 1 {
-			g += g3w[0] * s
+			g += float64(g3w[0] * s)
 		}
 	}
 	return k * h, math.Abs((k - g) * h)
@@ -132,11 +132,11 @@ func (r QuadRule) apply(f func(float64) float64, a, b float64) (val, errEst floa
 // gk3 is the 3-point Gauss rule (nodes 0 and ±sqrt(3/5), weights 8/9 and
 // 5/9, as gk7x[1] and g3w) with the midpoint rule embedded.
 func gk3(f func(float64) float64, a, b float64) (val, errEst float64) {
-	c := 0.5 * (a + b)
+	c := float64(0.5 * (a + b))
 	h := 0.5 * (b - a)
 	fc := f(c)
-	dx := h * gk7x[1]
-	g := g3w[1]*fc + g3w[0]*(f(c-dx)+f(c+dx))
+	dx := float64(h * gk7x[1])
+	g := float64(g3w[1]*fc) + float64(g3w[0]*(f(c-dx)+f(c+dx)))
 	return g * h, math.Abs((g - 2*fc) * h)
 }
 
@@ -145,17 +145,17 @@ type quadPiece struct {
 }
 
 func gk15(f func(float64) float64, a, b float64) (val, errEst float64) {
-	c := 0.5 * (a + b)
+	c := float64(0.5 * (a + b))
 	h := 0.5 * (b - a)
 	fc := f(c)
 	k := fc * gk15w[7]
 	g := fc * g7w[3]
 	for i := 0; i < 7; i++ {
-		dx := h * gk15x[i]
+		dx := float64(h * gk15x[i])
 		s := f(c-dx) + f(c+dx)
-		k += gk15w[i] * s
+		k += float64(gk15w[i] * s)
 		if i%2 == 1 {
-			g += g7w[i/2] * s
+			g += float64(g7w[i/2] * s)
 		}
 	}
 	return k * h, math.Abs((k - g) * h)

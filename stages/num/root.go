@@ -73,11 +73,11 @@ func BrentF(f func(float64) float64, a, b, fa, fb float64, s *RootSettings) (Roo
 			a, b, c = b, c, b
 			fa, fb, fc = fb, fc, fb
 		}
-		tol := 2*2.220446049250313e-16*math.Abs(b) + 0.5*xtol
+		tol := float64(2*2.220446049250313e-16*math.Abs(b)) + float64(0.5*xtol)
 		if xtol == 0 {
-			tol = 4*2.220446049250313e-16*math.Abs(b) + 1e-15
+			tol = float64(4*2.220446049250313e-16*math.Abs(b)) + 1e-15
 		}
-		m := 0.5 * (c - b)
+		m := float64(0.5 * (c - b))
 		if math.Abs(m) <= tol || fb == 0 {
 			res.X, res.F = b, fb
 			return res, nil
@@ -86,12 +86,12 @@ func BrentF(f func(float64) float64, a, b, fa, fb float64, s *RootSettings) (Roo
 			var p, q float64
 			sr := fb / fa
 			if a == c {
-				p = 2 * m * sr
+				p = float64(float64(2*m) * sr)
 				q = 1 - sr
 			} else {
 				qq := fa / fc
 				rr := fb / fc
-				p = sr * (2*m*qq*(qq-rr) - (b-a)*(rr-1))
+				p = float64(sr * (float64(float64(float64(2*m)*qq)*(qq-rr)) - float64((b-a)*(rr-1))))
 				q = (qq - 1) * (rr - 1) * (sr - 1)
 			}
 			if p > 0 {
@@ -99,7 +99,7 @@ func BrentF(f func(float64) float64, a, b, fa, fb float64, s *RootSettings) (Roo
 			} else {
 				p = -p
 			}
-			if 2*p < math.Min(3*m*q-math.Abs(tol*q), math.Abs(e*q)) {
+			if float64(2*p) < math.Min(float64(float64(3*m)*q)-math.Abs(float64(tol*q)), math.Abs(float64(e*q))) {
 				e = d
 				d = p / q
 			} else {

@@ -66,6 +66,6 @@ func (d *Dense) eval(i int, t float64, y []float64) {
 func interpolate(theta float64, y0, r1, r2, r3, r4, y []float64) {
 	u := 1 - theta
 	for j := range y {
-		y[j] = y0[j] + theta*(r1[j]+u*(r2[j]+theta*(r3[j]+u*r4[j])))
+		y[j] = y0[j] + float64(theta*(r1[j]+float64(u*(r2[j]+float64(theta*(r3[j]+float64(u*r4[j])))))))
 	}
 }

@@ -146,6 +146,6 @@ func (s *Settings) config(n int, span float64) (config, error) {
 	if c.hmax > span {
 		c.hmax = span
 	}
-	c.alpha = 1.0/order - 0.75*c.beta
+	c.alpha = 1.0/order - float64(0.75*c.beta)
 	return c, nil
 }

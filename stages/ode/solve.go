@@ -4,6 +4,8 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // Status says how an integration ended.
@@ -142,9 +144,9 @@ func Solve(f Func, t0, t1 float64, y0 []float64, s *Settings) (Result, error) {
 func (w *workspace) norm(v, a, b []float64, rtol float64) float64 {
 	s := 0.0
 	for i, x := range v {
-		sc := w.atol[i] + rtol*math.Max(math.Abs(a[i]), math.Abs(b[i]))
+		sc := w.atol[i] + float64(rtol*math.Max(math.Abs(a[i]), math.Abs(b[i])))
 		q := x / sc
-		s += q * q
+		s += float64(q * q)
 	}
 	return math.Sqrt(s / float64(len(v)))
 }
@@ -162,9 +164,9 @@ func initialStep(f Func, t0 float64, w *workspace, cfg *config, dir float64, st 
 	}
 	h0 = math.Min(h0, cfg.hmax)
 	for i := range y {
-		y1[i] = y[i] + dir*h0*f0[i]
+		y1[i] = y[i] + float64(float64(dir*h0)*f0[i])
 	}
-	f(t0+dir*h0, y1, f1)
+	f(t0+float64(dir*h0), y1, f1)
 	st.Evals++
 	for i := range f1 {
 		y1[i] = f1[i] - f0[i]
@@ -174,7 +176,7 @@ func initialStep(f Func, t0 float64, w *workspace, cfg *config, dir float64, st 
 	if m := math.Max(d1, d2); m <= 1e-15 || math.IsNaN(m) {
 		h1 = math.Max(1e-6, h0*1e-3)
 	} else {
-		h1 = math.Pow(0.01/m, 1.0/order)
+		h1 = detmath.Pow(0.01/m, 1.0/order)
 	}
 	return math.Min(math.Min(100*h0, h1), cfg.hmax)
 }
@@ -198,7 +200,7 @@ func integrate(f Func, t0, t1 float64, w *workspace, cfg *config, res *Result, d
 		h = initialStep(f, t, w, cfg, dir, st)
 	}
 	h = math.Min(h, cfg.hmax)
-	lnErrOld := math.Log(1e-4)
+	lnErrOld := detmath.Log(1e-4)
 	rejected := false
 	needInterp := dense != nil || len(cfg.events) > 0
 	for attempts := 0; ; attempts++ {
@@ -208,7 +210,7 @@ func integrate(f Func, t0, t1 float64, w *workspace, cfg *config, res *Result, d
 			return &MaxStepsError{T: t, Steps: attempts, H: dir * h}
 		}
 		last := false
-		if dir*(t+dir*h-t1) >= 0 {
+		if float64(dir*(t+float64(dir*h)-t1)) >= 0 {
 			h = math.Abs(t1 - t)
 			last = true
 		}
@@ -217,13 +219,13 @@ func integrate(f Func, t0, t1 float64, w *workspace, cfg *config, res *Result, d
 			copy(res.Y, w.y)
 			return &StepSizeError{T: t, H: dir * h}
 		}
-		hs := dir * h
+		hs := float64(dir * h)
 		stages(f, t, hs, w)
 		st.Evals += 6
 		// Error estimate and acceptance.
 		e := w.ytmp
 		for i := range e {
-			e[i] = hs * (e1*k[0][i] + e3*k[2][i] + e4*k[3][i] + e5*k[4][i] + e6*k[5][i] + e7*k[6][i])
+			e[i] = float64(hs * (float64(e1*k[0][i]) + float64(e3*k[2][i]) + float64(e4*k[3][i]) + float64(e5*k[4][i]) + float64(e6*k[5][i]) + float64(e7*k[6][i])))
 		}
 		errN := w.norm(e, w.y, w.ynew, cfg.rtol)
 		if math.IsNaN(errN) || math.IsInf(errN, 0) {
@@ -241,7 +243,7 @@ func integrate(f Func, t0, t1 float64, w *workspace, cfg *config, res *Result, d
 		if errN > 1 {
 			st.Rejected++
 			rejected = true
-			fac := math.Max(cfg.fmin, cfg.safety*math.Pow(errN, -1.0/order))
+			fac := math.Max(cfg.fmin, cfg.safety*detmath.Pow(errN, -1.0/order))
 			h *= fac
 			continue
 		}
@@ -254,11 +256,11 @@ func integrate(f Func, t0, t1 float64, w *workspace, cfg *config, res *Result, d
 		if needInterp {
 			for i := range w.y {
 				r1 := w.ynew[i] - w.y[i]
-				r2 := hs*k[0][i] - r1
+				r2 := float64(hs*k[0][i]) - r1
 				w.r[0][i] = r1
 				w.r[1][i] = r2
-				w.r[2][i] = r1 - hs*k[6][i] - r2
-				w.r[3][i] = hs * (d1*k[0][i] + d3*k[2][i] + d4*k[3][i] + d5*k[4][i] + d6*k[5][i] + d7*k[6][i])
+				w.r[2][i] = r1 - float64(hs*k[6][i]) - r2
+				w.r[3][i] = float64(hs * (float64(d1*k[0][i]) + float64(d3*k[2][i]) + float64(d4*k[3][i]) + float64(d5*k[4][i]) + float64(d6*k[5][i]) + float64(d7*k[6][i])))
 			}
 		}
 		if dense != nil {
@@ -283,13 +285,13 @@ func integrate(f Func, t0, t1 float64, w *workspace, cfg *config, res *Result, d
 			}
 		}
 		// Next step size (PI controller).
-		lnErr := math.Log(math.Max(errN, 1e-300))
-		fac := cfg.safety * math.Exp(-cfg.alpha*lnErr+cfg.beta*lnErrOld)
+		lnErr := detmath.Log(math.Max(errN, 1e-300))
+		fac := float64(cfg.safety * detmath.Exp(float64(-cfg.alpha*lnErr)+float64(cfg.beta*lnErrOld)))
 		fac = math.Min(cfg.fmax, math.Max(cfg.fmin, fac))
 		if rejected {
 			fac = math.Min(fac, 1)
 		}
-		lnErrOld = math.Max(lnErr, math.Log(1e-4))
+		lnErrOld = math.Max(lnErr, detmath.Log(1e-4))
 		rejected = false
 		t = tNew
 		copy(w.y, w.ynew)
@@ -308,28 +310,28 @@ func integrate(f Func, t0, t1 float64, w *workspace, cfg *config, res *Result, d
 func stages(f Func, t, h float64, w *workspace) {
 	k, y, yt := &w.k, w.y, w.ytmp
 	for i := range y {
-		yt[i] = y[i] + h*a21*k[0][i]
+		yt[i] = y[i] + float64(float64(h*a21)*k[0][i])
 	}
-	f(t+c2*h, yt, k[1])
+	f(t+float64(c2*h), yt, k[1])
 	for i := range y {
-		yt[i] = y[i] + h*(a31*k[0][i]+a32*k[1][i])
+		yt[i] = y[i] + float64(h*(float64(a31*k[0][i])+float64(a32*k[1][i])))
 	}
-	f(t+c3*h, yt, k[2])
+	f(t+float64(c3*h), yt, k[2])
 	for i := range y {
-		yt[i] = y[i] + h*(a41*k[0][i]+a42*k[1][i]+a43*k[2][i])
+		yt[i] = y[i] + float64(h*(float64(a41*k[0][i])+float64(a42*k[1][i])+float64(a43*k[2][i])))
 	}
-	f(t+c4*h, yt, k[3])
+	f(t+float64(c4*h), yt, k[3])
 	for i := range y {
-		yt[i] = y[i] + h*(a51*k[0][i]+a52*k[1][i]+a53*k[2][i]+a54*k[3][i])
+		yt[i] = y[i] + float64(h*(float64(a51*k[0][i])+float64(a52*k[1][i])+float64(a53*k[2][i])+float64(a54*k[3][i])))
 	}
-	f(t+c5*h, yt, k[4])
+	f(t+float64(c5*h), yt, k[4])
 	for i := range y {
-		yt[i] = y[i] + h*(a61*k[0][i]+a62*k[1][i]+a63*k[2][i]+a64*k[3][i]+a65*k[4][i])
+		yt[i] = y[i] + float64(h*(float64(a61*k[0][i])+float64(a62*k[1][i])+float64(a63*k[2][i])+float64(a64*k[3][i])+float64(a65*k[4][i])))
 	}
 	f(t+h, yt, k[5])
 	yn := w.ynew
 	for i := range y {
-		yn[i] = y[i] + h*(b1*k[0][i]+b3*k[2][i]+b4*k[3][i]+b5*k[4][i]+b6*k[5][i])
+		yn[i] = y[i] + float64(h*(float64(b1*k[0][i])+float64(b3*k[2][i])+float64(b4*k[3][i])+float64(b5*k[4][i])+float64(b6*k[5][i])))
 	}
 	f(t+h, yn, k[6])
 }
@@ -354,10 +356,10 @@ func shortenLast(d *Dense, ta, tb, tc float64) {
 		p3 := -r3[j] - 2*r4[j]
 		p4 := r4[j]
 		// Rescale θ = s φ.
-		q1, q2, q3, q4 := p1*s, p2*s*s, p3*s*s*s, p4*s*s*s*s
+		q1, q2, q3, q4 := float64(p1*s), float64(float64(p2*s)*s), float64(float64(float64(p3*s)*s)*s), float64(float64(float64(float64(p4*s)*s)*s)*s)
 		// Back to the r-form: q(φ) = y0 + φ(R1 + (1-φ)(R2 + φ(R3 + (1-φ)R4))).
 		R4 := q4
-		R3 := -q3 - 2*R4
+		R3 := -q3 - float64(2*R4)
 		R2 := -q2 + R3 + R4
 		R1 := q1 - R2
 		r1[j], r2[j], r3[j], r4[j] = R1, R2, R3, R4

@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // BandSettings describe a sweep over reheating histories.
@@ -89,7 +91,7 @@ func Band(ev Evaluator, h History, b BandSettings) (BandResult, error) {
 			era := Era{Kind: EraInstant}
 			T := inst.TMax
 			if j < b.NT-1 {
-				T = b.TMin * math.Pow(inst.TMax/b.TMin, float64(j)/float64(b.NT-1))
+				T = b.TMin * detmath.Pow(inst.TMax/b.TMin, float64(j)/float64(b.NT-1))
 				era = Era{Kind: EraTemperature, W: w, T: T}
 			}
 			pr, err := Match(ev, h, era, start)

@@ -4,6 +4,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // DefaultBBNBoundGeV is the lower bound on the reheating temperature from
@@ -113,7 +115,7 @@ type historyTerms struct {
 
 func (h History) terms() historyTerms {
 	kOverT0 := h.PivotPerMpc * PerMpcInGeV / KelvinInGeV(h.T0K)
-	return historyTerms{base: -math.Log(kOverT0) + math.Log(h.GS0/h.GSReh)/3, g: math.Pi * math.Pi * h.GReh / 30}
+	return historyTerms{base: -detmath.Log(kOverT0) + detmath.Log(h.GS0/h.GSReh)/3, g: math.Pi * math.Pi * h.GReh / 30}
 }
 
 func (t historyTerms) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
@@ -128,14 +130,14 @@ func (t historyTerms) efolds(s Scale, e Era, allowAbove bool) (Matched, error) {
 			return m, fmt.Errorf("%w: T_reh = %.4g GeV > T_max = %.4g GeV", ErrAboveMaximum, GeV(e.T), GeV(tmax))
 		}
 		m.T = e.T
-		m.NReh = math.Log(s.RhoEnd/(g*e.T*e.T*e.T*e.T)) / (3 * (1 + e.W))
+		m.NReh = detmath.Log(s.RhoEnd/(g*e.T*e.T*e.T*e.T)) / (3 * (1 + e.W))
 	case EraEfolds:
 		m.NReh = e.NReh
-		m.T = fourthRoot(s.RhoEnd * math.Exp(-3*(1+e.W)*e.NReh) / g)
+		m.T = fourthRoot(s.RhoEnd * detmath.Exp(-3*(1+e.W)*e.NReh) / g)
 	default:
 		return m, fmt.Errorf("unknown reheating era %d", e.Kind)
 	}
-	m.N = t.base + math.Log(s.Hstar/m.T) - m.NReh
+	m.N = t.base + detmath.Log(s.Hstar/m.T) - m.NReh
 	return m, nil
 }
 

@@ -5,6 +5,8 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/slowroll"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // Normalisation fixes the overall scale of the potential.
@@ -104,7 +106,7 @@ func (h History) Check() error {
 func (h History) InstantEfolds(s Scale) (N, TReh float64) {
 	kOverT0 := h.PivotPerMpc * PerMpcInGeV / KelvinInGeV(h.T0K) // dimensionless
 	TReh = fourthRoot(30 * s.RhoEnd / (math.Pi * math.Pi * h.GReh))
-	N = -math.Log(kOverT0) + math.Log(h.GS0/h.GSReh)/3 + math.Log(s.Hstar/TReh)
+	N = -detmath.Log(kOverT0) + detmath.Log(h.GS0/h.GSReh)/3 + detmath.Log(s.Hstar/TReh)
 	return N, TReh
 }
 

@@ -32,7 +32,7 @@ func (s SecondOrder) At(N float64) (Prediction, error) {
 	}
 	c := slowroll.StewartLythC
 	h2 := p.V / (3 - f.Eps1) // for V0 = 1
-	ps := h2 / (8 * math.Pi * math.Pi * f.Eps1) * (1 - 2*(c+1)*f.Eps1 - c*f.Eps2)
+	ps := float64(h2 / (float64(8 * math.Pi * math.Pi * f.Eps1)) * (1 - float64(float64(2*(c+1))*f.Eps1) - float64(c*f.Eps2)))
 	V0 := s.Norm.As / ps
 	phiEnd := s.Sol.End.Phi
 	if s.Cal != nil {

@@ -66,9 +66,9 @@ func (p *taylor) mulAdd(deg int, c float64, a, b *taylor) {
 	for k := 0; k <= deg; k++ {
 		s := 0.0
 		for j := 0; j <= k; j++ {
-			s += a[j] * b[k-j]
+			s += float64(a[j] * b[k-j])
 		}
-		p[k] += c * s
+		p[k] += float64(c * s)
 	}
 }
 

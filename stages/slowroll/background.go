@@ -7,6 +7,8 @@ import (
 
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/ode"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // background is the homogeneous solution: the field phi and its velocity
@@ -60,17 +62,17 @@ func flowAt(m *model.Model, N, phi, pi float64) flow {
 	j := m.At(phi)
 	u := j.D1 / j.V
 	eta := j.D2 / j.V
-	eps := 0.5 * pi * pi
+	eps := float64(float64(0.5*pi) * pi)
 	q := 3 - eps
-	piN := -q * (pi + u)
-	piNN := pi*piN*(pi+u) - q*(piN+(eta-u*u)*pi)
+	piN := float64(-q * (pi + u))
+	piNN := float64(float64(pi*piN)*(pi+u)) - float64(q*(piN+float64((eta-float64(u*u))*pi)))
 	d1 := piN / pi
 	return flow{
-		lnAH: N + 0.5*math.Log(j.V/q),
+		lnAH: N + float64(0.5*detmath.Log(j.V/q)),
 		eps:  eps,
 		d1:   d1,
-		d1N:  piNN/pi - d1*d1,
-		lnPi: math.Log(math.Abs(pi)),
+		d1N:  piNN/pi - float64(d1*d1),
+		lnPi: detmath.Log(math.Abs(pi)),
 		phi:  phi,
 		pi:   pi,
 	}
@@ -96,12 +98,12 @@ func coeffsAt(m *model.Model, phi, pi float64) modeCoeffs {
 	j := m.At(phi)
 	u := j.D1 / j.V
 	eta := j.D2 / j.V
-	eps := 0.5 * pi * pi
+	eps := float64(float64(0.5*pi) * pi)
 	q := 3 - eps
-	piN := -q * (pi + u)
-	piNN := pi*piN*(pi+u) - q*(piN+(eta-u*u)*pi)
+	piN := float64(-q * (pi + u))
+	piNN := float64(float64(pi*piN)*(pi+u)) - float64(q*(piN+float64((eta-float64(u*u))*pi)))
 	d1 := piN / pi
-	return modeCoeffs{eps: eps, d1: d1, d1N: piNN/pi - d1*d1, h2: j.V / q}
+	return modeCoeffs{eps: eps, d1: d1, d1N: piNN/pi - float64(d1*d1), h2: j.V / q}
 }
 
 // seriesAt returns the Taylor coefficients in N of epsilon_H (to third
@@ -126,20 +128,20 @@ func seriesAt(m *model.Model, phi, pi float64) modeSeries {
 	u := j.D1 / j.V
 	eta := j.D2 / j.V
 	xi := j.D3 / j.V
-	w := eta - u*u
-	wN := (xi - eta*u - 2*u*w) * pi
-	eps := 0.5 * pi * pi
+	w := eta - float64(u*u)
+	wN := float64((xi - float64(eta*u) - float64(float64(2*u)*w)) * pi)
+	eps := float64(float64(0.5*pi) * pi)
 	q := 3 - eps
-	piN := -q * (pi + u)
-	piNN := pi*piN*(pi+u) - q*(piN+w*pi)
-	piNNN := (piN*piN+pi*piNN)*(pi+u) + 2*pi*piN*(piN+w*pi) - q*(piNN+wN*pi+w*piN)
+	piN := float64(-q * (pi + u))
+	piNN := float64(float64(pi*piN)*(pi+u)) - float64(q*(piN+float64(w*pi)))
+	piNNN := float64((float64(piN*piN)+float64(pi*piNN))*(pi+u)) + float64(float64(float64(2*pi)*piN)*(piN+float64(w*pi))) - float64(q*(piNN+float64(wN*pi)+float64(w*piN)))
 	d1 := piN / pi
-	d1N := piNN/pi - d1*d1
-	d1NN := piNNN/pi - 3*d1*d1N - d1*d1*d1
-	e1 := pi * piN
+	d1N := piNN/pi - float64(d1*d1)
+	d1NN := piNNN/pi - float64(float64(3*d1)*d1N) - float64(float64(d1*d1)*d1)
+	e1 := float64(pi * piN)
 	return modeSeries{
-		eps: [4]float64{eps, e1, 0.5 * (piN*piN + pi*piNN), (3*piN*piNN + pi*piNNN) / 6},
-		zs:  [2]float64{(1+d1)*(2-eps+d1) + d1N, d1N*(2-eps+d1) + (1+d1)*(d1N-e1) + d1NN},
+		eps: [4]float64{eps, e1, float64(0.5 * (float64(piN*piN) + float64(pi*piNN))), (float64(float64(3*piN)*piNN) + float64(pi*piNNN)) / 6},
+		zs:  [2]float64{float64((1+d1)*(2-eps+d1)) + d1N, float64(d1N*(2-eps+d1)) + float64((1+d1)*(d1N-e1)) + d1NN},
 		h2:  j.V / q,
 	}
 }
@@ -168,7 +170,7 @@ func (b *background) lnPi(N float64) float64 {
 	if err := b.dense.At(N, y[:]); err != nil {
 		return math.NaN()
 	}
-	return math.Log(math.Abs(y[1]))
+	return detmath.Log(math.Abs(y[1]))
 }
 
 func (b *background) flow(N float64) (flow, error) {
@@ -186,7 +188,7 @@ func (b *background) lnAH(N float64) float64 {
 		return math.NaN()
 	}
 	v := b.m.At(y[0]).V
-	return N + 0.5*math.Log(v/(3-0.5*y[1]*y[1]))
+	return N + float64(0.5*detmath.Log(v/(3-float64(float64(0.5*y[1])*y[1]))))
 }
 
 // Event indices of the background integration.
@@ -204,12 +206,12 @@ func integrateBackground(m *model.Model, phi0, dir float64, cfg *exactConfig) (*
 	desc := m.Describe()
 	j := m.At(phi0)
 	u := j.D1 / j.V
-	epsV := 0.5 * u * u
+	epsV := float64(float64(0.5*u) * u)
 	eta := j.D2 / j.V
 	// The attractor velocity to second order, pi = -w,
 	// w = u(1 + (eta_V - 2 eps_V)/3) (Hamilton–Jacobi expansion; see
 	// FlowFromPotential). Its error decays like e^{-3N}.
-	pi0 := -u * (1 + (eta-2*epsV)/3)
+	pi0 := float64(-u * (1 + (eta-float64(2*epsV))/3))
 	if !(epsV < 1) || !(0.5*pi0*pi0 < 1) || !isFinite(pi0) {
 		return nil, &InflationError{Model: desc, Kind: NeverStarts, End: cfg.end, Phi: phi0, Pi: pi0, EpsilonH: 0.5 * pi0 * pi0, N: 0,
 			Detail: fmt.Sprintf("no slow roll at the initial point (epsilon_V = %.4g)", epsV)}
@@ -218,9 +220,9 @@ func integrateBackground(m *model.Model, phi0, dir float64, cfg *exactConfig) (*
 		jj := m.At(y[0])
 		p := y[1]
 		dy[0] = p
-		dy[1] = -(3 - 0.5*p*p) * (p + jj.D1/jj.V)
+		dy[1] = float64(-(3 - float64(float64(0.5*p)*p)) * (p + jj.D1/jj.V))
 	}
-	epsH := func(_ float64, y []float64) float64 { return 0.5*y[1]*y[1] - 1 }
+	epsH := func(_ float64, y []float64) float64 { return float64(float64(0.5*y[1])*y[1]) - 1 }
 	var endG func(float64, []float64) float64
 	switch cfg.end {
 	case EndEpsilonH:

@@ -7,6 +7,8 @@ import (
 
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // Solution is a model together with its end of inflation; it answers
@@ -195,7 +197,7 @@ func (sol *Solution) bracket(N float64) (cell, error) {
 		a, Na := g.pts[last].phi, g.pts[last].n
 		room := math.Abs(edge - a)
 		step := math.Min(g.h, 0.9*room)
-		b := a + back*step
+		b := a + float64(back*step)
 		// The bracket stops at the edge of the range, or within 1e-280 M_p
 		// of it (short of denormal numbers, where V' loses its digits): a
 		// pivot closer to a hilltop than that is beyond double precision.
@@ -278,7 +280,7 @@ func (sol *Solution) solveIn(c cell, N float64) (float64, error) {
 		}
 		next := x - F/slope
 		if Nx > 0 {
-			next = x - math.Log(Nx/N)*Nx/slope
+			next = x - detmath.Log(Nx/N)*Nx/slope
 		}
 		if !finite(next) || (next-lo)*(next-hi) >= 0 {
 			next = 0.5 * (lo + hi)
@@ -298,15 +300,15 @@ func (sol *Solution) solveIn(c cell, N float64) (float64, error) {
 // memory).
 func hermiteInverse(c cell, N float64) float64 {
 	if c.Na > 0 {
-		w := math.Log(c.Nb / c.Na)
-		u := math.Log(N/c.Na) / w
-		u2, u3 := u*u, u*u*u
-		return (2*u3-3*u2+1)*c.a + (u3-2*u2+u)*w*c.Na/c.sa + (-2*u3+3*u2)*c.b + (u3-u2)*w*c.Nb/c.sb
+		w := detmath.Log(c.Nb / c.Na)
+		u := detmath.Log(N/c.Na) / w
+		u2, u3 := float64(u*u), float64(float64(u*u)*u)
+		return float64((float64(2*u3)-float64(3*u2)+1)*c.a) + float64(float64((u3-float64(2*u2)+u)*w)*c.Na)/c.sa + float64((float64(-2*u3)+float64(3*u2))*c.b) + float64(float64((u3-u2)*w)*c.Nb)/c.sb
 	}
 	w := c.Nb - c.Na
 	u := (N - c.Na) / w
-	u2, u3 := u*u, u*u*u
-	return (2*u3-3*u2+1)*c.a + (u3-2*u2+u)*w/c.sa + (-2*u3+3*u2)*c.b + (u3-u2)*w/c.sb
+	u2, u3 := float64(u*u), float64(float64(u*u)*u)
+	return float64((float64(2*u3)-float64(3*u2)+1)*c.a) + float64((u3-float64(2*u2)+u)*w)/c.sa + float64((float64(-2*u3)+float64(3*u2))*c.b) + float64((u3-u2)*w)/c.sb
 }
 
 // Evaluate returns the slow-roll point and first-order observables N

@@ -8,6 +8,8 @@ import (
 
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // End is the end of inflation.
@@ -62,7 +64,7 @@ func scanGrid(lo, hi float64, n int) []float64 {
 	us := scanFractions(n)
 	xs := make([]float64, 0, len(us))
 	for _, u := range us {
-		x := lo + w*u
+		x := lo + float64(w*u)
 		if x > lo && x < hi && (len(xs) == 0 || x > xs[len(xs)-1]) {
 			xs = append(xs, x)
 		}
@@ -84,7 +86,7 @@ func scanFractions(n int) []float64 {
 	third := n / 3
 	for i := 0; i < third; i++ {
 		t := float64(i) / float64(third)
-		g := math.Pow(10, -12+11*t) // 1e-12 ... 1e-1 of the width
+		g := detmath.Pow(10, -12+float64(11*t)) // 1e-12 ... 1e-1 of the width
 		us = append(us, g, 1-g)
 	}
 	rest := n - len(us)
@@ -126,7 +128,7 @@ func closedFormEnd(m *model.Model, cond Condition, phi0 float64) (End, bool) {
 	if !(phi0 > m.Lo && phi0 < m.Hi) {
 		return End{}, false
 	}
-	w := 1e-9 * math.Max(1, math.Abs(phi0))
+	w := float64(1e-9 * math.Max(1, math.Abs(phi0)))
 	lo, hi := math.Max(phi0-w, m.Lo), math.Min(phi0+w, m.Hi)
 	f := func(x float64) float64 { return cond.Minus(At(m, x)) }
 	flo, fhi := f(lo), f(hi)

@@ -7,6 +7,8 @@ import (
 
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // EndCondition selects where the exact method ends inflation.
@@ -52,7 +54,7 @@ func potentialCondition(c EndCondition) func(j num.Jet) float64 {
 	case EndEtaV:
 		return func(j num.Jet) float64 { return math.Abs(j.D2/j.V) - 1 }
 	default:
-		return func(j num.Jet) float64 { u := j.D1 / j.V; return 0.5*u*u - 1 }
+		return func(j num.Jet) float64 { u := j.D1 / j.V; return float64(float64(0.5*u)*u) - 1 }
 	}
 }
 
@@ -86,7 +88,7 @@ func referenceEnd(m *model.Model, c EndCondition, endPhi float64) (End, error) {
 	const n = 240
 	us := make([]float64, 0, n)
 	for i := 0; i < n/4; i++ {
-		q := math.Pow(10, -12+11*float64(i)/float64(n/4))
+		q := detmath.Pow(10, -12+11*float64(i)/float64(n/4))
 		us = append(us, q, 1-q)
 	}
 	for i := 1; i <= n/2; i++ {
@@ -97,7 +99,7 @@ func referenceEnd(m *model.Model, c EndCondition, endPhi float64) (End, error) {
 	var xs, gs []float64
 	minG, maxG := math.Inf(1), math.Inf(-1)
 	for _, u := range us {
-		x := m.Lo + w*u
+		x := m.Lo + float64(w*u)
 		if !(x > m.Lo && x < m.Hi) || len(xs) > 0 && x <= xs[len(xs)-1] {
 			continue
 		}

@@ -6,6 +6,8 @@ import (
 
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/num"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // The exact method, in brief (the equations are in background.go and
@@ -135,7 +137,7 @@ func (s *ExactSettings) config() (exactConfig, error) {
 // (ln DepthIn/(1 - epsilon_H) e-folds; the factor 1.5 allows epsilon_H up
 // to 1/3) and the settling.
 func (c *exactConfig) need(N float64) float64 {
-	return N + 2*c.h + 1.5*math.Log(c.depthIn) + 0.5 + c.early
+	return N + float64(2*c.h) + float64(1.5*detmath.Log(c.depthIn)) + 0.5 + c.early
 }
 
 // ExactStats counts the work of an exact prediction.
@@ -260,10 +262,10 @@ func (es *ExactSolution) clockAtDepth(lnk, lnx, guess float64) (float64, error) 
 	g := func(N float64) float64 { return lnk - es.bg.lnAH(N) - lnx }
 	end := es.bg.nEnd
 	if g0 := g(0); g0 < 0 {
-		return math.NaN(), fmt.Errorf("k/(aH) = %.4g already at the initial point (want %.4g)", math.Exp(lnx+g0), math.Exp(lnx))
+		return math.NaN(), fmt.Errorf("k/(aH) = %.4g already at the initial point (want %.4g)", detmath.Exp(lnx+g0), detmath.Exp(lnx))
 	}
 	if g1 := g(end); g1 > 0 {
-		return math.NaN(), fmt.Errorf("k/(aH) = %.4g only at the end of inflation (want %.4g)", math.Exp(lnx+g1), math.Exp(lnx))
+		return math.NaN(), fmt.Errorf("k/(aH) = %.4g only at the end of inflation (want %.4g)", detmath.Exp(lnx+g1), detmath.Exp(lnx))
 	}
 	lo, hi := math.Max(0, math.Min(end, guess-1)), math.Min(end, math.Max(0, guess+1))
 	glo, ghi := g(lo), g(hi)
@@ -307,10 +309,10 @@ func (es *ExactSolution) At(N float64) (ExactResult, error) {
 	res.Stats.Rejected = bg.stats.Rejected
 	res.Stats.Evals = bg.stats.Evals
 	var ms [5]modeSpec
-	lnIn, lnOut := math.Log(cfg.depthIn), math.Log(cfg.depthOut)
+	lnIn, lnOut := detmath.Log(cfg.depthIn), detmath.Log(cfg.depthOut)
 	for j := -2; j <= 2; j++ {
-		lnk := lnkPiv + float64(j)*cfg.h
-		guess := tPiv + float64(j)*cfg.h
+		lnk := lnkPiv + float64(float64(j)*cfg.h)
+		guess := tPiv + float64(float64(j)*cfg.h)
 		N0, err := es.clockAtDepth(lnk, lnIn, guess-lnIn)
 		if err != nil {
 			return ExactResult{}, tooFew(fmt.Sprintf("mode %d of the stencil starts before the background", j), err)
@@ -337,12 +339,14 @@ func (es *ExactSolution) At(N float64) (ExactResult, error) {
 		fs[i], ft[i] = mo[i].lnPs, mo[i].lnPt
 	}
 	h := cfg.h
-	d1 := func(f [5]float64) float64 { return (f[0] - 8*f[1] + 8*f[3] - f[4]) / (12 * h) }
+	d1 := func(f [5]float64) float64 {
+		return (f[0] - float64(8*f[1]) + float64(8*f[3]) - f[4]) / (float64(12 * h))
+	}
 	res.Ns = 1 + d1(fs)
 	res.Nt = d1(ft)
-	res.AlphaS = (-fs[0] + 16*fs[1] - 30*fs[2] + 16*fs[3] - fs[4]) / (12 * h * h)
-	res.PsV0 = math.Exp(fs[2])
-	res.PtV0 = math.Exp(ft[2])
-	res.R = math.Exp(ft[2] - fs[2])
+	res.AlphaS = (-fs[0] + float64(16*fs[1]) - float64(30*fs[2]) + float64(16*fs[3]) - fs[4]) / (float64(float64(12*h) * h))
+	res.PsV0 = detmath.Exp(fs[2])
+	res.PtV0 = detmath.Exp(ft[2])
+	res.R = detmath.Exp(ft[2] - fs[2])
 	return res, nil
 }

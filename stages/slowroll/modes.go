@@ -5,6 +5,8 @@ import (
 	"math"
 
 	"github.com/inflatrace/inflatrace/stages/ode"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // Mode equations.
@@ -67,8 +69,8 @@ import (
 // evaluation instead of five times.
 
 var (
-	ln4pi2     = math.Log(4 * math.Pi * math.Pi)
-	ln2overpi2 = math.Log(2 / (math.Pi * math.Pi))
+	ln4pi2     = detmath.Log(4 * math.Pi * math.Pi)
+	ln2overpi2 = detmath.Log(2 / (math.Pi * math.Pi))
 )
 
 // modeSystem supplies the background to the mode equations, against the
@@ -111,7 +113,7 @@ func modeInitial(bg modeSystem, lnk, N0 float64, y []float64) error {
 	if !ok {
 		return fmt.Errorf("mode start N = %g outside the background", N0)
 	}
-	x := math.Exp(lnk-N0) / math.Sqrt(ser.h2)
+	x := detmath.Exp(lnk-N0) / math.Sqrt(ser.h2)
 	zt := [4]float64{2 - ser.eps[0], -ser.eps[1], -ser.eps[2], -ser.eps[3]}
 	y[0], y[1] = adiabaticState(x, ser.eps[:], ser.zs[:])
 	y[2], y[3] = adiabaticState(x, ser.eps[:], zt[:])
@@ -140,7 +142,7 @@ func solveStencil(bg modeSystem, ms []modeSpec, tol modeTol, out []modeOut) (ode
 	// x_j² = x_0² e^{2(lnk_j - lnk_0)}: one exponential per evaluation.
 	fac := make([]float64, n)
 	for j, m := range ms {
-		fac[j] = math.Exp(2 * (m.lnk - lnk0))
+		fac[j] = detmath.Exp(2 * (m.lnk - lnk0))
 	}
 	rhs := func(N float64, y, dy []float64) {
 		f, ok := bg.coeffs(N)
@@ -150,7 +152,7 @@ func solveStencil(bg modeSystem, ms []modeSpec, tol modeTol, out []modeOut) (ode
 			}
 			return
 		}
-		x2 := math.Exp(2*(lnk0-N)) / f.h2 // (k_0/(aH))²
+		x2 := detmath.Exp(2*(lnk0-N)) / f.h2 // (k_0/(aH))²
 		q := 3 - f.eps
 		b := 1 + f.d1
 		qs := q + 2*f.d1
@@ -158,10 +160,10 @@ func solveStencil(bg modeSystem, ms []modeSpec, tol modeTol, out []modeOut) (ode
 			xj := x2 * fac[j>>2]
 			A := y[j+1] - b
 			dy[j] = y[j+1]
-			dy[j+1] = f.d1N - A*A - qs*A + xj*math.Expm1(-4*y[j])
+			dy[j+1] = f.d1N - float64(A*A) - float64(qs*A) + float64(xj*detmath.Expm1(float64(-4*y[j])))
 			B := y[j+3] - 1
 			dy[j+2] = y[j+3]
-			dy[j+3] = -B*B - q*B + xj*math.Expm1(-4*y[j+2])
+			dy[j+3] = float64(-B*B) - float64(q*B) + float64(xj*detmath.Expm1(float64(-4*y[j+2])))
 		}
 	}
 	// Read-off events: G_j = N - N1_j rising through zero.

@@ -53,9 +53,9 @@ type Observables struct {
 func FirstOrder(p Point) Observables {
 	e, h := p.Epsilon, p.Eta
 	return Observables{
-		Ns:     1 - 6*e + 2*h,
+		Ns:     1 - float64(6*e) + float64(2*h),
 		R:      16 * e,
-		AlphaS: 16*e*h - 24*e*e - 2*p.Xi2,
+		AlphaS: float64(float64(16*e)*h) - float64(float64(24*e)*e) - float64(2*p.Xi2),
 		Nt:     -2 * e,
 	}
 }

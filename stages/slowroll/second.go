@@ -3,6 +3,8 @@ package slowroll
 import (
 	"fmt"
 	"math"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // EulerGamma is the Euler–Mascheroni constant γ_E.
@@ -46,12 +48,12 @@ type HubbleFlow struct {
 // tests the C-dependent coefficients.
 func SecondOrder(h HubbleFlow) Observables {
 	C := StewartLythC
-	e1, e2, e23 := h.Eps1, h.Eps2, h.Eps2*h.Eps3
+	e1, e2, e23 := h.Eps1, h.Eps2, float64(h.Eps2*h.Eps3)
 	return Observables{
-		Ns:     1 - 2*e1 - e2 - 2*e1*e1 - (2*C+3)*e1*e2 - C*e23,
-		R:      16 * e1 * (1 + C*e2),
-		AlphaS: -2*e1*e2 - e23,
-		Nt:     -2*e1 - 2*e1*e1 - 2*(C+1)*e1*e2,
+		Ns:     1 - float64(2*e1) - e2 - float64(float64(2*e1)*e1) - float64(float64((float64(2*C)+3)*e1)*e2) - float64(C*e23),
+		R:      float64(float64(16*e1) * (1 + float64(C*e2))),
+		AlphaS: float64(float64(-2*e1)*e2) - e23,
+		Nt:     float64(-2*e1) - float64(float64(2*e1)*e1) - float64(float64(float64(2*(C+1))*e1)*e2),
 	}
 }
 
@@ -75,9 +77,9 @@ func SecondOrder(h HubbleFlow) Observables {
 // V = φ²).
 func FlowFromPotential(p Point) HubbleFlow {
 	e, h, x := p.Epsilon, p.Eta, p.Xi2
-	e1 := e - 4.0/3*e*e + 2.0/3*e*h
-	e2 := 4*e - 2*h - 8*e*e + 20.0/3*e*h - 2.0/3*h*h - 2.0/3*x
-	e23 := 16*e*e - 12*e*h + 2*x
+	e1 := e - float64(float64(4.0/3*e)*e) + float64(float64(2.0/3*e)*h)
+	e2 := float64(4*e) - float64(2*h) - float64(float64(8*e)*e) + float64(float64(20.0/3*e)*h) - float64(float64(2.0/3*h)*h) - float64(2.0/3*x)
+	e23 := float64(float64(16*e)*e) - float64(float64(12*e)*h) + float64(2*x)
 	f := HubbleFlow{Eps1: e1, Eps2: e2}
 	if e2 != 0 {
 		f.Eps3 = e23 / e2
@@ -99,7 +101,7 @@ func FlowFromPotential(p Point) HubbleFlow {
 // on n_s, alpha_s ΔN, is of second order and must be kept in a
 // second-order prediction.
 func (sol *Solution) EfoldShift(phi float64) float64 {
-	return -math.Log(At(sol.Model, phi).Epsilon/At(sol.Model, sol.End.Phi).Epsilon) / 6
+	return -detmath.Log(At(sol.Model, phi).Epsilon/At(sol.Model, sol.End.Phi).Epsilon) / 6
 }
 
 // EndCalibration corrects the second-order slow-roll e-fold count for the

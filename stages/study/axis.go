@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // axis is one fanned-out model parameter: the values of a list as
@@ -72,9 +74,9 @@ func (r *valueRange) at(i int) float64 {
 	}
 	f := float64(i) / float64(r.n-1)
 	if r.log {
-		return math.Exp(r.lo + r.span*f)
+		return detmath.Exp(r.lo + float64(r.span*f))
 	}
-	return r.lo + r.span*f
+	return r.lo + float64(r.span*f)
 }
 
 // text is a point as the study writes it in labels.
@@ -144,8 +146,8 @@ func parseRange(t map[string]any) (*valueRange, error) {
 	}
 	r := &valueRange{log: kind == "log", a: a, b: b, n: int(n), lo: a, span: b - a}
 	if r.log {
-		r.lo = math.Log(a)
-		r.span = math.Log(b) - r.lo
+		r.lo = detmath.Log(a)
+		r.span = detmath.Log(b) - r.lo
 	}
 	for _, i := range r.extremes() {
 		if x := r.at(i); math.IsNaN(x) || math.IsInf(x, 0) {

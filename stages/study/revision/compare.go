@@ -14,6 +14,8 @@ import (
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/nodes"
 	"github.com/inflatrace/inflatrace/stages/study"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
 )
 
 // MaxAttributed bounds the number of assumptions attributed one by one:
@@ -448,7 +450,7 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 						if mask&(1<<i) != 0 {
 							continue
 						}
-						c.Contributions[i] += weights[popcount(mask)] * (values[mask|1<<i][p][q] - values[mask][p][q])
+						c.Contributions[i] += float64(weights[popcount(mask)] * (values[mask|1<<i][p][q] - values[mask][p][q]))
 					}
 					sum += c.Contributions[i]
 				}
@@ -500,12 +502,12 @@ func mainCause(c Change, attributed, others []Assumption, separated bool) (strin
 func shapleyWeights(n int) []float64 {
 	w := make([]float64, n)
 	for s := 0; s < n; s++ {
-		w[s] = math.Exp(lgammaInt(s+1) + lgammaInt(n-s) - lgammaInt(n+1))
+		w[s] = detmath.Exp(lgammaInt(s+1) + lgammaInt(n-s) - lgammaInt(n+1))
 	}
 	return w
 }
 
-func lgammaInt(k int) float64 { v, _ := math.Lgamma(float64(k)); return v }
+func lgammaInt(k int) float64 { v, _ := detmath.Lgamma(float64(k)); return v }
 
 func popcount(x int) int {
 	n := 0
