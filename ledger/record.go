@@ -5,6 +5,7 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
+	"os"
 	"strings"
 	"time"
 
@@ -647,13 +648,19 @@ func (l *Ledger) Heartbeat(ctx context.Context, run pipeline.RunID) error {
 }
 
 // CloseAbandoned marks as failed ("interrupted") every run still recorded
-// as running that is gone: its owner's process, by alive, or, wherever it
-// ran, its heartbeat (its start when it has none) older than staleAfter.
-// It returns their ids. The nodes such a run recorded stay in the ledger:
+// as running that is gone, and returns their ids. A run's lock (see
+// HoldRunLock) decides first: free, its process is gone, whatever its pid
+// now names; held, it is alive, however old its heartbeat. Without a lock
+// file (a run of an older version, a lock folder this host does not
+// share), its owner's process decides, by alive, where it can be asked,
+// and wherever it ran a heartbeat (its start when it has none) older than
+// staleAfter closes it. The nodes such a run recorded stay in the ledger:
 // a re-run reuses them.
 func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bool, staleAfter time.Duration) ([]pipeline.RunID, error) {
 	var closed []pipeline.RunID
+	var freed []string // lock files of closed runs, removed once the closing is committed
 	err := l.inTx(ctx, func(tx *qtx) error {
+		closed, freed = nil, nil
 		rows, err := tx.QueryContext(ctx, "SELECT id, owner, coalesce(heartbeat_at, started_at) FROM runs WHERE status = 'running'")
 		if err != nil {
 			return err
@@ -679,7 +686,13 @@ func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bo
 				return fmt.Errorf("%w: run %s: heartbeat %q: %v", ErrIntegrity, c.id, c.beat, err)
 			}
 			why := ""
+			lock := l.runLock(pipeline.RunID(c.id))
 			switch {
+			case lock == lockHeld:
+				continue
+			case lock == lockFree:
+				why = "interrupted: its process (" + c.owner + ") is gone (its run lock is free)"
+				freed = append(freed, l.lockPath(pipeline.RunID(c.id)))
 			case c.owner != "" && !alive(c.owner):
 				why = "interrupted: its process (" + c.owner + ") is gone"
 			case staleAfter > 0 && now.Sub(beat) > staleAfter:
@@ -687,7 +700,7 @@ func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bo
 			default:
 				continue
 			}
-			if _, err := tx.ExecContext(ctx, "UPDATE runs SET status = 'failed', finished_at = ?, error = ? WHERE id = ?",
+			if _, err := tx.ExecContext(ctx, "UPDATE runs SET status = 'failed', finished_at = ?, error = ? WHERE id = ? AND status = 'running'",
 				formatTime(now), why, c.id); err != nil {
 				return err
 			}
@@ -700,6 +713,12 @@ func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bo
 	})
 	if err != nil {
 		return nil, fmt.Errorf("ledger: close abandoned runs: %w", err)
+	}
+	for _, p := range freed {
+		os.Remove(p)
+	}
+	if len(freed) > 0 {
+		os.Remove(l.lockDir()) // only if empty
 	}
 	return closed, nil
 }

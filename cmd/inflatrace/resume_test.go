@@ -4,9 +4,11 @@ import (
 	"bytes"
 	"database/sql"
 	"encoding/json"
+	"errors"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strings"
 	"syscall"
 	"testing"
 	"time"
@@ -68,6 +70,10 @@ alpha = {log = [0.01, 100], points = 4000}
 	if written >= 5*points {
 		t.Skipf("the scan finished (%d nodes) before it was killed", written)
 	}
+	// The killed run's lock file stays, and nothing holds it now.
+	if locks, _ := os.ReadDir(ledgerPath + ".runlocks"); len(locks) != 1 {
+		t.Errorf("%d run lock files after the kill, want the killed run's", len(locks))
+	}
 	second := exec.Command(bin, "run", cfg, "-j", "2", "--json")
 	second.Env = env
 	var out, errb bytes.Buffer
@@ -103,6 +109,16 @@ alpha = {log = [0.01, 100], points = 4000}
 	db.QueryRow("SELECT count(*) FROM runs WHERE status = 'running'").Scan(&running)
 	if running != 0 {
 		t.Errorf("%d runs still marked running", running)
+	}
+	// Closed by its free lock, not by its pid alone (which the system may
+	// have given to another process meanwhile); no lock file is left.
+	var why string
+	db.QueryRow("SELECT error FROM runs WHERE status = 'failed'").Scan(&why)
+	if !strings.Contains(why, "run lock is free") {
+		t.Errorf("the killed run was closed with %q, want its free run lock named", why)
+	}
+	if _, err := os.Stat(ledgerPath + ".runlocks"); !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("the run lock folder is left after the re-run: %v", err)
 	}
 }
 

@@ -91,9 +91,17 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 		return nil, err
 	} else {
 		for _, c := range closed {
-			fmt.Fprintf(e.Stderr, "run %s was interrupted (its process is gone): marked failed; its recorded nodes are reused\n", c)
+			fmt.Fprintf(e.Stderr, "run %s was interrupted (its process is gone or silent for %s): marked failed; its recorded nodes are reused\n", c, ledger.StaleAfter)
 		}
 	}
+	// The run's lock, held until this process ends or the run is
+	// finished: a later run or runs --close-stale sees it held while the
+	// run lives and free once it died, whatever became of its pid.
+	lock, err := l.HoldRunLock(id)
+	if err != nil {
+		return nil, err
+	}
+	defer lock.Release() // after sess.Finish: deferred calls run last
 	if jobs < 1 {
 		jobs = e.CPUs
 	}

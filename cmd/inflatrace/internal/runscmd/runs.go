@@ -32,8 +32,9 @@ type Options struct {
 	Globals *app.Globals
 	JSON    bool
 	Kind    string // KindAll, KindStudy, KindShard or KindPredict
-	// CloseStale closes, before listing, the runs left running whose
-	// process is gone or that have not shown a sign of life for StaleAfter.
+	// CloseStale closes, before listing, the runs left running that are
+	// dead (ledger.CloseAbandoned: a free run lock, or without one a gone
+	// process or no sign of life for StaleAfter).
 	CloseStale bool
 	StaleAfter time.Duration
 }
@@ -51,7 +52,7 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 		RunE:  func(c *cobra.Command, _ []string) error { return run(c.Context(), opts) },
 	}
 	cmd.Flags().BoolVar(&opts.JSON, "json", false, "print the list as JSON")
-	cmd.Flags().BoolVar(&opts.CloseStale, "close-stale", false, "first close as interrupted the runs left running whose process is gone or that have sent no heartbeat for --stale-after")
+	cmd.Flags().BoolVar(&opts.CloseStale, "close-stale", false, "first close as interrupted the runs left running that are dead: their run lock free, or, without a lock file, their process gone or no heartbeat for --stale-after")
 	cmd.Flags().DurationVar(&opts.StaleAfter, "stale-after", ledger.StaleAfter, "how long a running run may go without a heartbeat (one every "+ledger.HeartbeatEvery.String()+") before --close-stale takes it for dead")
 	cmd.Flags().StringVar(&opts.Kind, "kind", KindAll, "which runs to list: study (inflatrace run, and runs merge assembled from shards), shard (run --shard), predict (inflatrace predict) or all")
 	return cmd
