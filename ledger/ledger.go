@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"time"
 
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -55,6 +56,12 @@ type Ledger struct {
 	sealSigner func(msg []byte) ([]byte, error)
 	// macKey, when set, authenticates nodes (WithNodeKey).
 	macKey []byte
+	// retiredMacKeys are the secrets of the user's retired keys, whose
+	// codes still vouch for a node (WithRetiredNodeKeys).
+	retiredMacKeys [][]byte
+	// macs pools HMAC states keyed with macKey: a reset state skips
+	// hashing the key's pads again.
+	macs sync.Pool
 }
 
 var _ pipeline.Recorder = (*Ledger)(nil)

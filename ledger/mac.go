@@ -5,6 +5,7 @@ import (
 	"crypto/hmac"
 	"crypto/sha256"
 	"fmt"
+	"hash"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 )
@@ -22,18 +23,77 @@ func WithNodeKey(key []byte) Option {
 	return func(l *Ledger) { l.macKey = append([]byte(nil), key...) }
 }
 
+// WithRetiredNodeKeys names the secrets of the user's retired keys: a
+// node whose code matches one of them is served as if it matched the
+// current key (a key rotation is routine, not an edit). New codes are
+// only ever made under the current key.
+func WithRetiredNodeKeys(keys [][]byte) Option {
+	return func(l *Ledger) {
+		for _, k := range keys {
+			l.retiredMacKeys = append(l.retiredMacKeys, append([]byte(nil), k...))
+		}
+	}
+}
+
 // macOf is a node's code: HMAC-SHA256 of a version tag, its key, its
 // status and its output hash, truncated to macBytes. nil without a node key.
-func (l *Ledger) macOf(key pipeline.KeyID, status pipeline.NodeStatus, hash pipeline.OutputID) []byte {
+func (l *Ledger) macOf(key pipeline.KeyID, status pipeline.NodeStatus, out pipeline.OutputID) []byte {
 	if l.macKey == nil {
 		return nil
 	}
-	m := hmac.New(sha256.New, l.macKey)
-	m.Write([]byte("inflatrace-node-mac/1\n"))
-	m.Write([]byte(key))
-	m.Write([]byte{'\n', status[0], '\n'})
-	m.Write([]byte(hash))
-	return m.Sum(nil)[:macBytes]
+	m, _ := l.macs.Get().(hash.Hash)
+	if m == nil {
+		m = hmac.New(sha256.New, l.macKey)
+	}
+	defer l.macs.Put(m)
+	m.Reset()
+	return writeNodeMAC(m, key, status, out)
+}
+
+// nodeCodeMatches says whether mac is the node's code under the current
+// key or one of the retired ones.
+func (l *Ledger) nodeCodeMatches(mac []byte, key pipeline.KeyID, status pipeline.NodeStatus, hash pipeline.OutputID) bool {
+	if hmac.Equal(mac, l.macOf(key, status, hash)) {
+		return true
+	}
+	for _, k := range l.retiredMacKeys {
+		if hmac.Equal(mac, macUnder(k, key, status, hash)) {
+			return true
+		}
+	}
+	return false
+}
+
+// workCodeMatches says whether mac is the work's code under the current
+// key or one of the retired ones.
+func (l *Ledger) workCodeMatches(mac, digest []byte) bool {
+	if hmac.Equal(mac, l.workMAC(digest)) {
+		return true
+	}
+	for _, k := range l.retiredMacKeys {
+		if hmac.Equal(mac, workMACUnder(k, digest)) {
+			return true
+		}
+	}
+	return false
+}
+
+// macUnder is a node's code under secret.
+func macUnder(secret []byte, key pipeline.KeyID, status pipeline.NodeStatus, hash pipeline.OutputID) []byte {
+	return writeNodeMAC(hmac.New(sha256.New, secret), key, status, hash)
+}
+
+// writeNodeMAC writes a node's message into a fresh or reset HMAC and
+// returns the truncated code.
+func writeNodeMAC(m hash.Hash, key pipeline.KeyID, status pipeline.NodeStatus, out pipeline.OutputID) []byte {
+	var buf [256]byte
+	msg := append(buf[:0], "inflatrace-node-mac/1\n"...)
+	msg = append(msg, key...)
+	msg = append(msg, '\n', status[0], '\n')
+	msg = append(msg, out...)
+	m.Write(msg)
+	var sum [sha256.Size]byte
+	return append([]byte(nil), m.Sum(sum[:0])[:macBytes]...)
 }
 
 // macBytes is the length codes are truncated to: 128 bits, as RFC 2104
@@ -50,7 +110,7 @@ func (l *Ledger) macProblem(rec pipeline.NodeRecord, mac []byte) string {
 	if mac == nil {
 		return unvouched + "node " + string(rec.Key) + " carries no authentication code of yours (merged from a ledger you have not vouched for, or written before codes)"
 	}
-	if !hmac.Equal(mac, l.macOf(rec.Key, rec.Status, rec.OutputHash)) {
+	if !l.nodeCodeMatches(mac, rec.Key, rec.Status, rec.OutputHash) {
 		return fmt.Sprintf("%v: node %s: its authentication code does not match its row: the row was edited (its outputs and output hash rewritten together), or written under another key", ErrIntegrity, rec.Key)
 	}
 	return ""
@@ -157,7 +217,7 @@ func (l *Ledger) MACProblems(ctx context.Context) (problems []Problem, without i
 				continue
 			}
 			k := pipeline.KeyID(digestText(key))
-			if !hmac.Equal(mac, l.macOf(k, pipeline.NodeStatus(status), pipeline.OutputID(digestText(hash)))) {
+			if !l.nodeCodeMatches(mac, k, pipeline.NodeStatus(status), pipeline.OutputID(digestText(hash))) {
 				problems = append(problems, Problem{Table: "nodes", ID: string(k),
 					What: "its authentication code does not match its row: the row was edited (its outputs and output hash rewritten together), or written under another key"})
 			}
@@ -175,7 +235,12 @@ func (l *Ledger) workMAC(digest []byte) []byte {
 	if l.macKey == nil {
 		return nil
 	}
-	m := hmac.New(sha256.New, l.macKey)
+	return workMACUnder(l.macKey, digest)
+}
+
+// workMACUnder is a work's code under secret.
+func workMACUnder(secret, digest []byte) []byte {
+	m := hmac.New(sha256.New, secret)
 	m.Write([]byte("inflatrace-work-mac/1\n"))
 	m.Write(digest)
 	return m.Sum(nil)[:macBytes]

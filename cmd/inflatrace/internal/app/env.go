@@ -104,7 +104,7 @@ func (e *Env) OpenLedger(g *Globals) (*ledger.Ledger, error) {
 	path := e.LedgerPath(g)
 	opts := []ledger.Option{ledger.WithClock(e.Now)}
 	if nk, err := e.nodeKey(); err == nil {
-		opts = append(opts, ledger.WithNodeKey(nk), ledger.WithSealSigner(e.signSeal))
+		opts = append(opts, ledger.WithNodeKey(nk), ledger.WithRetiredNodeKeys(e.retiredNodeKeys()), ledger.WithSealSigner(e.signSeal))
 	} else {
 		// Without a key (a read-only home, say) nodes are neither given
 		// codes nor checked for them; seals cannot be signed either.

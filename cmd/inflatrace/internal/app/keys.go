@@ -7,6 +7,8 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"sort"
+	"strings"
 
 	"golang.org/x/crypto/ssh"
 
@@ -86,6 +88,13 @@ func (e *Env) TrustedSigners() ([]sshsig.Signer, string, error) {
 			}
 		}
 	}
+	for _, f := range e.retiredKeys() {
+		if data, err := os.ReadFile(f + ".pub"); err == nil {
+			if k, _, _, _, err := ssh.ParseAuthorizedKey(data); err == nil {
+				out = append(out, sshsig.Signer{Principals: "you (retired key " + filepath.Base(f) + ")", Key: k})
+			}
+		}
+	}
 	d, err := e.ConfigDir()
 	if err != nil {
 		return out, "", nil
@@ -127,7 +136,43 @@ func (e *Env) nodeKey() ([]byte, error) {
 	if err != nil {
 		return nil, err
 	}
-	return sshsig.Secret(p, "inflatrace node authentication v1\n")
+	return sshsig.Secret(p, nodeSecretLabel)
+}
+
+// nodeSecretLabel labels the node secret derived from a signing key.
+const nodeSecretLabel = "inflatrace node authentication v1\n"
+
+// retiredKeys are the files of the user's retired signing keys (key
+// --rotate keeps each beside the key, renamed KEY.retired-DATE), oldest
+// first. A key the user deletes is no longer retired but revoked: the
+// codes and seals it made vouch for nothing.
+func (e *Env) retiredKeys() []string {
+	p, err := e.KeyPath()
+	if err != nil {
+		return nil
+	}
+	all, _ := filepath.Glob(p + ".retired-*")
+	var out []string
+	for _, f := range all {
+		if !strings.HasSuffix(f, ".pub") {
+			out = append(out, f)
+		}
+	}
+	sort.Strings(out)
+	return out
+}
+
+// retiredNodeKeys are the node secrets of the retired keys
+// (ledger.WithRetiredNodeKeys): nodes written before a rotation stay
+// vouched for. A retired key that cannot be read is passed over.
+func (e *Env) retiredNodeKeys() [][]byte {
+	var out [][]byte
+	for _, f := range e.retiredKeys() {
+		if k, err := sshsig.Secret(f, nodeSecretLabel); err == nil {
+			out = append(out, k)
+		}
+	}
+	return out
 }
 
 // VouchTrusted gives the user's authentication codes to the nodes of

@@ -32,7 +32,10 @@ func NewCmd(env *app.Env) *cobra.Command {
 a referee puts into an allowed_signers file to check your releases with
 ssh-keygen -Y verify. The key is made on first use. --rotate replaces it with
 a new one; the old one is kept beside it, renamed with the date, so that
-releases signed with it can still be checked against its public half.
+releases signed with it can still be checked against its public half, and
+the ledger's nodes and seals made under it are still trusted and reused.
+Deleting a retired key revokes it: what only it vouched for is computed
+again (and, where the rows differ, quarantined) instead of reused.
 Keys you trust (a colleague's, for import) go into allowed_signers in the
 same folder, one "name ssh-ed25519 AAAA..." line each.`,
 		Args: cobra.NoArgs,

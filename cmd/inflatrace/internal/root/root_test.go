@@ -23,6 +23,10 @@ type harness struct {
 	ledger string
 	tick   atomic.Int64
 	rng    *rand.Rand
+	// noKey: the signing key cannot be made (its folder is a file), so
+	// the command runs without authentication codes and signed seals, as
+	// it does, with a warning, for a user without a writable home.
+	noKey bool
 }
 
 func newHarness(t *testing.T) *harness {
@@ -38,6 +42,13 @@ func (h *harness) run(args ...string) (stdout, stderr string, code int) {
 		Getenv: func(k string) string {
 			if k == app.LedgerEnv {
 				return h.ledger
+			}
+			if k == app.KeyEnv && h.noKey {
+				block := filepath.Join(h.dir, "nokey")
+				if err := os.WriteFile(block, nil, 0o600); err != nil {
+					h.t.Fatal(err)
+				}
+				return filepath.Join(block, "key")
 			}
 			if k == "XDG_CONFIG_HOME" {
 				// Keys live in the test's folder, never the user's.

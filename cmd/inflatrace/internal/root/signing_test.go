@@ -235,3 +235,40 @@ func TestConsistentNodeEditIsNotReused(t *testing.T) {
 		}
 	}
 }
+
+// Rotating the key is routine, not an edit: the nodes written under the
+// retired key are still reused by the next run, and verify --all reports
+// nothing, because the node secret survives the rotation.
+func TestKeyRotationKeepsTheLedger(t *testing.T) {
+	h := newHarness(t)
+	p := h.write("a.toml", studyA)
+	first := decodeRun(t, h.mustRun("run", p, "--json"))
+	h.mustRun("key", "--rotate")
+	out, errs, code := h.run("run", p, "--json")
+	if code != 0 {
+		t.Fatalf("run after key --rotate: exit %d, %s", code, errs)
+	}
+	if strings.Contains(errs, "quarantin") || strings.Contains(errs, "integrity") {
+		t.Errorf("run after key --rotate treats the old nodes as edited: %s", errs)
+	}
+	second := decodeRun(t, out)
+	if second.Computed != 0 || second.Reused != first.Computed+first.Reused {
+		t.Errorf("run after key --rotate: %d computed, %d reused; want 0 computed, %d reused", second.Computed, second.Reused, first.Computed+first.Reused)
+	}
+	if vout, verrs, code := h.run("verify", "--all"); code != 0 || strings.Contains(verrs, "do not trust") {
+		t.Errorf("verify --all after key --rotate: exit %d, %s %s", code, vout, verrs)
+	}
+	// Deleting the retired key revokes it: what only it vouched for is
+	// computed again rather than reused.
+	retired, _ := filepath.Glob(filepath.Join(h.dir, "config", "inflatrace", "signing_key.retired-*"))
+	if len(retired) != 2 {
+		t.Fatalf("retired key files: %v", retired)
+	}
+	for _, f := range retired {
+		os.Remove(f)
+	}
+	third := decodeRun(t, h.mustRun("run", p, "--json"))
+	if third.Computed == 0 {
+		t.Errorf("run after the retired key was deleted reused every node (%d reused)", third.Reused)
+	}
+}
