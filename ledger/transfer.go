@@ -76,13 +76,25 @@ func (l *Ledger) read(ctx context.Context, ids []pipeline.RunID) (*snapshot, err
 			return nil, err
 		}
 		s.links[id] = links
+		// RunNodes gives each linked node whole and checked, so only an
+		// input the run did not link itself needs its lineage read (a
+		// lineage query a link made importing a 1e5-point archive take
+		// minutes and gigabytes).
 		for _, ln := range links {
-			lin, err := l.Lineage(ctx, ln.Key)
-			if err != nil {
-				return nil, err
-			}
-			for _, n := range lin {
-				s.nodes[n.Key] = n
+			s.nodes[ln.Key] = ln.NodeRecord
+		}
+		for _, ln := range links {
+			for _, in := range ln.Inputs {
+				if _, ok := s.nodes[in.Key]; ok {
+					continue
+				}
+				lin, err := l.Lineage(ctx, in.Key)
+				if err != nil {
+					return nil, err
+				}
+				for _, n := range lin {
+					s.nodes[n.Key] = n
+				}
 			}
 		}
 		if s.results[id], err = l.RunResults(ctx, id); err != nil {
