@@ -26,25 +26,37 @@ type Problem struct {
 func (l *Ledger) Audit(ctx context.Context) ([]Problem, error) {
 	var out []Problem
 	err := l.inTx(ctx, func(tx *qtx) error {
-		rows, err := tx.QueryContext(ctx, "SELECT key FROM nodes ORDER BY key")
+		rows, err := tx.QueryContext(ctx, "SELECT id, kp, key FROM node_rows ORDER BY key, id")
 		if err != nil {
 			return err
 		}
-		var keys []string
+		type stored struct {
+			id, kp int64
+			key    []byte
+		}
+		var all []stored
 		for rows.Next() {
-			var k []byte
-			if err := rows.Scan(&k); err != nil {
+			var r stored
+			if err := rows.Scan(&r.id, &r.kp, &r.key); err != nil {
 				rows.Close()
 				return err
 			}
-			keys = append(keys, digestText(k))
+			all = append(all, r)
 		}
 		rows.Close()
 		if err := rows.Err(); err != nil {
 			return err
 		}
-		for _, k := range keys {
-			if _, _, err := loadNode(ctx, tx, pipeline.KeyID(k)); err != nil {
+		for i, r := range all {
+			k := digestText(r.key)
+			switch {
+			case r.kp != kpOf(r.key):
+				// Found by its prefix, the row would be missed.
+				out = append(out, Problem{Table: "nodes", ID: k, What: fmt.Sprintf("%v: row %d: the stored key prefix %d is not the key's (%d)", ErrIntegrity, r.id, r.kp, kpOf(r.key))})
+			case i > 0 && string(all[i-1].key) == string(r.key):
+				out = append(out, Problem{Table: "nodes", ID: k, What: fmt.Sprintf("%v: row %d holds the key of row %d again", ErrIntegrity, r.id, all[i-1].id)})
+			}
+			if _, err := l.loadRowByID(ctx, tx, r.id); err != nil {
 				if !errors.Is(err, ErrIntegrity) {
 					return err
 				}

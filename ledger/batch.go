@@ -48,13 +48,15 @@ func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch 
 		if err := requireRunning(ctx, tx, run); err != nil {
 			return err
 		}
-		bs := &batchState{known: map[pipeline.KeyID]storedNode{}, absent: map[pipeline.KeyID]bool{}, now: formatTime(l.now())}
+		bs := &batchState{known: map[pipeline.KeyID]storedNode{}, absent: map[pipeline.KeyID]bool{}}
+		t := l.now()
+		bs.now, bs.nowUnix = formatTime(t), t.Unix()
 		var err error
 		if bs.ordinal, err = nextOrdinal(ctx, tx, run); err != nil {
 			return err
 		}
 		var top sql.NullInt64
-		if err := tx.QueryRowContext(ctx, "SELECT max(id) FROM nodes").Scan(&top); err != nil {
+		if err := tx.QueryRowContext(ctx, "SELECT max(id) FROM node_rows").Scan(&top); err != nil {
 			return err
 		}
 		bs.nextID = top.Int64 + 1
@@ -72,18 +74,13 @@ func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch 
 			cols       int
 			rows       [][]any
 		}{
-			{"INSERT INTO nodes (" + nodeInsertColumns + ") VALUES ", "", 13, bs.nodeRows},
+			{"INSERT INTO node_rows (" + nodeInsertColumns + ") VALUES ", "", nodeInsertCount, bs.nodeRows},
 			{"INSERT INTO node_inputs (node, position, input) VALUES ", "", 3, bs.inputRows},
 			// A run executed in chunks may reuse one node in several: it is
 			// linked once.
 			{"INSERT INTO run_node_links (run_id, ordinal, node, action, duration_ns, error) VALUES ", " ON CONFLICT (run_id, node) DO NOTHING", 6, bs.linkRows},
 		} {
 			if err := insertRows(ctx, tx, t.head, t.tail, t.cols, t.rows); err != nil {
-				return err
-			}
-		}
-		for k := range bs.kinds {
-			if err := insertKind(ctx, tx, k); err != nil {
 				return err
 			}
 		}
@@ -208,19 +205,40 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 			}
 		}
 	}
+	// The keys taken as absent are checked in one pass of the prefix
+	// index (node_rows has no unique key index to refuse a second row): a
+	// key another writer recorded meanwhile fails the batch, which is then
+	// recorded again reading every key.
+	var taken [][]byte
+	for k := range bs.absent {
+		taken = append(taken, keyArg(k))
+	}
+	for len(taken) > 0 {
+		n := min(len(taken), 500)
+		cond, args := keyMatch("", taken[:n])
+		var k []byte
+		err := tx.QueryRowContext(ctx, "SELECT key FROM node_rows WHERE "+cond+" LIMIT 1", args...).Scan(&k)
+		if err == nil {
+			return used, fmt.Errorf("node %s: %w", digestText(k), errWrittenMeanwhile)
+		}
+		if !errors.Is(err, sql.ErrNoRows) {
+			return used, err
+		}
+		taken = taken[n:]
+	}
 	for len(keys) > 0 {
 		n := min(len(keys), 500)
-		q := "SELECT " + storedColumns + ", key FROM nodes WHERE key IN (" + strings.TrimSuffix(strings.Repeat("?, ", n), ", ") + ")"
-		args := make([]any, n)
+		kbs := make([][]byte, n)
 		for i, k := range keys[:n] {
 			if _, ok := bs.known[k]; ok {
-				args[i] = []byte{}
+				kbs[i] = []byte{}
 				continue
 			}
-			args[i] = keyArg(k)
+			kbs[i] = keyArg(k)
 			bs.absent[k] = true
 		}
-		rows, err := tx.QueryContext(ctx, q, args...)
+		cond, args := keyMatch("n.", kbs)
+		rows, err := tx.QueryContext(ctx, "SELECT "+storedColumns+", n.key FROM "+nodeFrom+" WHERE "+cond+" ORDER BY n.id DESC", args...)
 		if err != nil {
 			return used, err
 		}
@@ -243,6 +261,10 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 	}
 	return used, nil
 }
+
+// errWrittenMeanwhile is a batch's key found stored although a look-up
+// found it absent moments before.
+var errWrittenMeanwhile = errors.New("recorded by another writer since it was looked up")
 
 // LookupMany returns the successful nodes among keys, each fully decoded
 // and verified as Lookup does (pipeline.BatchLookup). Large sets are read
@@ -301,7 +323,7 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 			if len(ids) == 0 {
 				continue
 			}
-			rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+" FROM nodes n WHERE n.status = 'ok' AND n.id IN ("+marks(len(ids))+") ORDER BY n.id", ids...)
+			rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+" FROM "+nodeFrom+" WHERE n.status = 'ok' AND n.id IN ("+marks(len(ids))+") ORDER BY n.id", ids...)
 			if err != nil {
 				return err
 			}
@@ -336,7 +358,7 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 			}
 			kept := out[:start]
 			for i := start; i < len(out); i++ {
-				if err := finishNode(&out[i]); err != nil {
+				if err := l.finishNode(ctx, tx, &out[i]); err != nil {
 					if !errors.Is(err, ErrIntegrity) {
 						return err
 					}
@@ -369,7 +391,12 @@ func (l *Ledger) taken(k pipeline.KeyID) bool {
 // keys as query arguments), from the key index alone, and remembers the
 // keys not stored at all (l.missing) for recording them a moment later.
 func (l *Ledger) existing(ctx context.Context, tx *qtx, keys []pipeline.KeyID, args []any) ([]any, error) {
-	rows, err := tx.QueryContext(ctx, "SELECT key, id FROM nodes WHERE key IN ("+marks(len(keys))+")", args...)
+	kbs := make([][]byte, len(args))
+	for i, a := range args {
+		kbs[i] = a.([]byte)
+	}
+	cond, kargs := keyMatch("", kbs)
+	rows, err := tx.QueryContext(ctx, "SELECT key, id FROM node_rows WHERE "+cond, kargs...)
 	if err != nil {
 		return nil, err
 	}
@@ -439,7 +466,7 @@ func (km *keyMemo[V]) take(k pipeline.KeyID) (V, bool) {
 // described with tool (pipeline.StageHolder), from node_kinds.
 func (l *Ledger) HoldsStage(ctx context.Context, tool, stage string, version int) (bool, error) {
 	var n int
-	err := l.rdb.QueryRowContext(ctx, "SELECT count(*) FROM node_kinds WHERE tool = ? AND stage = ? AND stage_version = ?", tool, stage, version).Scan(&n)
+	err := l.rdb.QueryRowContext(ctx, "SELECT count(*) FROM kinds WHERE tool = ? AND stage = ? AND stage_version = ?", tool, stage, version).Scan(&n)
 	if err != nil {
 		return false, fmt.Errorf("ledger: node kinds: %w", err)
 	}

@@ -233,3 +233,93 @@ func mustText(t *testing.T, rec pipeline.NodeRecord) rowText {
 	}
 	return text
 }
+
+// TestPackedLayoutMigration opens a ledger at migration 0016 (text values,
+// tool and stage per row, a unique key index) holding a chain with its
+// inputs, run links, a result and a quarantined row: migration 0017 must
+// carry every row over as its readers see them (the text rows read and
+// checked as before), keep the quarantine, and let a new run reuse a
+// carried row and add packed ones downstream of it.
+func TestPackedLayoutMigration(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "v16.db")
+	ms, err := loadMigrations(migrationFiles)
+	if err != nil {
+		t.Fatal(err)
+	}
+	db, err := sql.Open("sqlite3", dsn(path))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := migrate(ctx, db, ms[:16], fixedClock); err != nil {
+		t.Fatal(err)
+	}
+	a := mkNode(t, "model", pipeline.Values{"x": num(0.25)}, pipeline.Values{"y": num(2.5), "f": pipeline.String("V = phi^2")})
+	b := mkNode(t, "compare", pipeline.Values{"set": pipeline.String("demo")}, pipeline.Values{"chi2": num(1.5)}, a)
+	info := runInfo("r1", testClock)
+	exec := func(q string, args ...any) {
+		t.Helper()
+		if _, err := db.Exec(q, args...); err != nil {
+			t.Fatalf("%s: %v", q, err)
+		}
+	}
+	exec(`INSERT INTO runs (id, started_at, finished_at, tool_version, config_path, config_text, config_hash, status, error)
+		VALUES (?, ?, ?, ?, ?, ?, ?, 'succeeded', '')`,
+		string(info.ID), formatTime(testClock), formatTime(testClock), info.ToolVersion, info.ConfigPath, info.ConfigText, info.ConfigHash)
+	for i, n := range []pipeline.NodeRecord{a, b} {
+		text, err := rowValues(n)
+		if err != nil {
+			t.Fatal(err)
+		}
+		exec(`INSERT INTO nodes (id, key, tool, stage, stage_version, params, outputs, output_hash, status, error, duration_ns, recorded_at)
+			VALUES (?, ?, ?, ?, ?, ?, ?, ?, 'ok', '', ?, ?)`, i+1, keyArg(n.Key), testTool, n.Stage, n.Version, text.params, text.outputs,
+			keyArg(pipeline.KeyID(n.OutputHash)), int64(n.Duration), formatTime(testClock))
+		exec(`INSERT OR IGNORE INTO node_kinds (tool, stage, stage_version) VALUES (?, ?, ?)`, testTool, n.Stage, n.Version)
+		exec(`INSERT INTO run_node_links (run_id, ordinal, node, action, duration_ns, error) VALUES ('r1', ?, ?, 'computed', 0, '')`, i, i+1)
+	}
+	exec(`INSERT INTO node_inputs (node, position, input) VALUES (2, 0, 1)`)
+	exec(`INSERT INTO run_result_rows (run_id, ordinal, label, node) VALUES ('r1', 0, 'b', 2)`)
+	exec(`INSERT INTO quarantine (node, key, params, outputs, output_hash, problem, run_id, found_at) VALUES (1, ?, 'x f 9 1\n', 'y f 9 1\n', NULL, 'edited', 'r1', ?)`,
+		keyArg(a.Key), formatTime(testClock))
+	db.Close()
+
+	l, err := Open(path, WithClock(fixedClock))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Close()
+	for _, n := range []pipeline.NodeRecord{a, b} {
+		got, ok, err := l.Node(ctx, n.Key)
+		if err != nil || !ok || !reflect.DeepEqual(got, n) {
+			t.Fatalf("%s node after 0017: %v %v\n got %+v\nwant %+v", n.Stage, ok, err, got, n)
+		}
+	}
+	if res, err := l.RunResults(ctx, "r1"); err != nil || len(res) != 1 || res[0].Key != b.Key {
+		t.Errorf("RunResults after 0017: %+v, %v", res, err)
+	}
+	if probs, err := l.Audit(ctx); err != nil || len(probs) != 0 {
+		t.Errorf("Audit after 0017: %+v, %v", probs, err)
+	}
+	if q, err := l.Quarantined(ctx, "r1"); err != nil || len(q) != 1 || q[0].ID != string(a.Key) {
+		t.Errorf("quarantine after 0017: %+v, %v", q, err)
+	}
+	var shown string
+	if err := l.db.QueryRow("SELECT outputs FROM nodes WHERE id = 1").Scan(&shown); err != nil || shown != "f s \"V = phi^2\"\ny f 2.5 1\n" {
+		t.Errorf("nodes view of a carried row: %q, %v", shown, err)
+	}
+	// A new run reuses the carried row and adds a packed one after it.
+	run := beginRun(t, l, "r2", testClock)
+	c := mkNode(t, "compare", pipeline.Values{"set": pipeline.String("other")}, pipeline.Values{"chi2": num(0.75)}, a)
+	if err := l.RecordNodes(ctx, run, []pipeline.Recorded{{Node: a, Action: pipeline.Reused}, {Node: c, Action: pipeline.Computed}}); err != nil {
+		t.Fatal(err)
+	}
+	if got, ok, err := l.Node(ctx, c.Key); err != nil || !ok || !reflect.DeepEqual(got, c) {
+		t.Errorf("packed node after carried ones: %+v %v %v", got, ok, err)
+	}
+	var shape sql.NullInt64
+	if err := l.db.QueryRow("SELECT outputs_shape FROM node_rows WHERE key = ?", keyArg(c.Key)).Scan(&shape); err != nil || !shape.Valid {
+		t.Errorf("the new row is not packed: %v %v", shape, err)
+	}
+	if probs, err := l.Audit(ctx); err != nil || len(probs) != 0 {
+		t.Errorf("Audit after a new run: %+v, %v", probs, err)
+	}
+}

@@ -56,6 +56,10 @@ type Ledger struct {
 	sealSigner func(msg []byte) ([]byte, error)
 	// macKey, when set, authenticates nodes (WithNodeKey).
 	macKey []byte
+	// shapes holds the packed-value shapes met so far (pack.go).
+	shapes shapeBook
+	// kinds holds the ids of the node kinds met so far.
+	kinds kindBook
 	// retiredMacKeys are the secrets of the user's retired keys, whose
 	// codes still vouch for a node (WithRetiredNodeKeys).
 	retiredMacKeys [][]byte
@@ -342,6 +346,11 @@ func checkOwner(ctx context.Context, db *sql.DB) error {
 type qtx struct {
 	*sql.Tx
 	stmts map[string]*sql.Stmt
+	// newShapes are the shapes this transaction stored (pack.go), and
+	// onCommit what becomes true of the ledger's memory once it commits.
+	newShapes map[string]int64
+	newKinds  map[nodeKind]int64
+	onCommit  []func()
 }
 
 func (q *qtx) stmt(ctx context.Context, query string) (*sql.Stmt, error) {
@@ -391,6 +400,9 @@ func (l *Ledger) inTx(ctx context.Context, fn func(*qtx) error) error {
 	}
 	if err := tx.Commit(); err != nil {
 		return fmt.Errorf("commit: %w", err)
+	}
+	for _, f := range tx.onCommit {
+		f()
 	}
 	return nil
 }

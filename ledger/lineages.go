@@ -66,11 +66,12 @@ func (l *Ledger) EachLineage(ctx context.Context, id pipeline.RunID, need func(s
 				SELECT up.ord, ni.input, up.depth + 1 FROM node_inputs ni JOIN up ON ni.node = up.id
 				WHERE up.depth < ?2
 			)
-			SELECT u.ord, u.d, res.label, t.key, n.key, n.stage, n.params, n.outputs, n.output_hash, n.status, n.error
+			SELECT u.ord, u.d, res.label, t.key, n.key, k.stage, n.params_shape, n.params, n.outputs_shape, n.outputs, n.output_hash, n.status, n.error
 			FROM (SELECT ord, id, max(depth) AS d FROM up GROUP BY ord, id) u
-			JOIN nodes n ON n.id = u.id
+			JOIN node_rows n ON n.id = u.id
+			JOIN kinds k ON k.id = n.kind
 			JOIN res ON res.ord = u.ord
-			JOIN nodes t ON t.id = res.node
+			JOIN node_rows t ON t.id = res.node
 			ORDER BY u.ord`, string(id), maxLineageDepth)
 		if err != nil {
 			return err
@@ -111,8 +112,9 @@ func (l *Ledger) EachLineage(ctx context.Context, id pipeline.RunID, need func(s
 				key, nodeKey, hash     sql.RawBytes
 				stage, status, errText string
 				params, outputs        sql.RawBytes
+				pShape, oShape         sql.NullInt64
 			)
-			if err := rows.Scan(&ord, &depth, &label, &key, &nodeKey, &stage, &params, &outputs, &hash, &status, &errText); err != nil {
+			if err := rows.Scan(&ord, &depth, &label, &key, &nodeKey, &stage, &pShape, &params, &oShape, &outputs, &hash, &status, &errText); err != nil {
 				return err
 			}
 			if depth >= maxLineageDepth {
@@ -131,11 +133,20 @@ func (l *Ledger) EachLineage(ctx context.Context, id pipeline.RunID, need func(s
 			ln := LineageNode{Stage: stage, Status: pipeline.NodeStatus(status), Error: errText}
 			wantParams, wantOutputs := need(stage)
 			if wantParams {
-				if ln.Params, err = pipeline.DecodeValues(params); err != nil {
+				text, err := l.valuesText(ctx, tx, pShape, params)
+				if err == nil {
+					ln.Params, err = pipeline.DecodeValues([]byte(text))
+				}
+				if err != nil {
 					return fmt.Errorf("%w: a %s node: stored parameters: %v", ErrIntegrity, stage, err)
 				}
 			}
 			if ln.Status == pipeline.NodeOK {
+				text, err := l.valuesText(ctx, tx, oShape, outputs)
+				if err != nil {
+					return fmt.Errorf("a %s node: stored outputs: %w", stage, err)
+				}
+				outputs := []byte(text)
 				if got, want := pipeline.OutputID(pipeline.Sum(outputs)), pipeline.OutputID(digestText(hash)); got != want {
 					return fmt.Errorf("%w: a %s node: stored outputs hash to %s, row says %s", ErrIntegrity, stage, got, want)
 				}

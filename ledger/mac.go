@@ -135,7 +135,7 @@ func (l *Ledger) Vouch(ctx context.Context, run pipeline.RunID) (int, error) {
 	}
 	n := 0
 	err = l.inTx(ctx, func(tx *qtx) error {
-		rows, err := tx.QueryContext(ctx, `SELECT n.id, n.key, n.status, n.output_hash FROM run_nodes rn JOIN nodes n ON n.id = rn.node
+		rows, err := tx.QueryContext(ctx, `SELECT n.id, n.key, n.status, n.output_hash FROM run_nodes rn JOIN node_rows n ON n.id = rn.node
 			WHERE rn.run_id = ? AND n.status = 'ok' AND n.mac IS NULL`, string(run))
 		if err != nil {
 			return err
@@ -160,7 +160,7 @@ func (l *Ledger) Vouch(ctx context.Context, run pipeline.RunID) (int, error) {
 			return err
 		}
 		for _, p := range todo {
-			if _, err := tx.ExecContext(ctx, "UPDATE nodes SET mac = ? WHERE id = ? AND mac IS NULL", p.mac, p.id); err != nil {
+			if _, err := tx.ExecContext(ctx, "UPDATE node_rows SET mac = ? WHERE id = ? AND mac IS NULL", p.mac, p.id); err != nil {
 				return err
 			}
 		}
@@ -201,7 +201,7 @@ func (l *Ledger) MACProblems(ctx context.Context) (problems []Problem, without i
 		return nil, 0, nil
 	}
 	err = l.inReadTx(ctx, func(tx *qtx) error {
-		rows, err := tx.QueryContext(ctx, "SELECT key, status, output_hash, mac FROM nodes WHERE status = 'ok' ORDER BY id")
+		rows, err := tx.QueryContext(ctx, "SELECT key, status, output_hash, mac FROM node_rows WHERE status = 'ok' ORDER BY id")
 		if err != nil {
 			return err
 		}

@@ -205,7 +205,7 @@ func (l *Ledger) runNodesIn(ctx context.Context, id pipeline.RunID, table string
 			return err
 		}
 		rows, err := tx.QueryContext(ctx, "SELECT "+nodeColumns+`, rn.ordinal, rn.action, rn.duration_ns, rn.error
-			FROM `+table+` rn JOIN nodes n ON n.id = rn.node WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
+			FROM `+table+` rn JOIN node_rows n ON n.id = rn.node JOIN kinds k ON k.id = n.kind WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
 		if err != nil {
 			return err
 		}
@@ -244,7 +244,7 @@ func (l *Ledger) runNodesIn(ctx context.Context, id pipeline.RunID, table string
 			for i := lo; i < min(lo+500, len(stored)); i++ {
 				// A node a run linked twice (a point met in two works).
 				stored[i].rec.Inputs = part[stored[i].id].rec.Inputs
-				if err := finishNode(&stored[i]); err != nil {
+				if err := l.finishNode(ctx, tx, &stored[i]); err != nil {
 					return err
 				}
 				out[i].NodeRecord = stored[i].rec
@@ -272,7 +272,7 @@ func (l *Ledger) runResultsIn(ctx context.Context, id pipeline.RunID, table stri
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
-		rows, err := tx.QueryContext(ctx, "SELECT rr.ordinal, rr.label, n.key FROM "+table+" rr JOIN nodes n ON n.id = rr.node WHERE rr.run_id = ? ORDER BY rr.ordinal", string(id))
+		rows, err := tx.QueryContext(ctx, "SELECT rr.ordinal, rr.label, n.key FROM "+table+" rr JOIN node_rows n ON n.id = rr.node WHERE rr.run_id = ? ORDER BY rr.ordinal", string(id))
 		if err != nil {
 			return err
 		}
@@ -309,7 +309,7 @@ func (l *Ledger) Node(ctx context.Context, key pipeline.KeyID) (pipeline.NodeRec
 	// A read: on the reader connections, not through the writer's lock.
 	err := l.inReadTx(ctx, func(tx *qtx) error {
 		var err error
-		rec, found, err = loadNode(ctx, tx, key)
+		rec, found, err = l.loadNode(ctx, tx, key)
 		return err
 	})
 	if err != nil {
@@ -331,7 +331,8 @@ func (l *Ledger) Lineage(ctx context.Context, key pipeline.KeyID) ([]pipeline.No
 	var out []pipeline.NodeRecord
 	err := l.inTx(ctx, func(tx *qtx) error {
 		var top int64
-		err := tx.QueryRowContext(ctx, "SELECT id FROM nodes WHERE key = ?", keyArg(key)).Scan(&top)
+		kb := keyArg(key)
+		err := tx.QueryRowContext(ctx, "SELECT min(id) FROM node_rows WHERE kp = ? AND key = ? HAVING count(*) > 0", kpOf(kb), kb).Scan(&top)
 		if errors.Is(err, sql.ErrNoRows) {
 			return fmt.Errorf("node %s: %w", key, ErrNotFound)
 		}
@@ -347,7 +348,7 @@ func (l *Ledger) Lineage(ctx context.Context, key pipeline.KeyID) ([]pipeline.No
 				SELECT ni.input, up.depth + 1 FROM node_inputs ni JOIN up ON ni.node = up.id
 				WHERE up.depth < ?2
 			)
-			SELECT `+nodeColumns+`, max(up.depth) AS d FROM up JOIN nodes n ON n.id = up.id
+			SELECT `+nodeColumns+`, max(up.depth) AS d FROM up JOIN node_rows n ON n.id = up.id JOIN kinds k ON k.id = n.kind
 			GROUP BY up.id ORDER BY d DESC, n.key`, top, maxLineageDepth)
 		if err != nil {
 			return err
@@ -370,7 +371,7 @@ func (l *Ledger) Lineage(ctx context.Context, key pipeline.KeyID) ([]pipeline.No
 		}
 		rows.Close()
 		for i := range stored {
-			if err := completeNode(ctx, tx, &stored[i]); err != nil {
+			if err := l.completeNode(ctx, tx, &stored[i]); err != nil {
 				return err
 			}
 			out = append(out, stored[i].rec)
@@ -397,7 +398,7 @@ func (l *Ledger) ResolveKey(ctx context.Context, ref string) (pipeline.KeyID, er
 	}
 	var keys []string
 	err = l.inReadTx(ctx, func(tx *qtx) error {
-		rows, err := tx.QueryContext(ctx, "SELECT key FROM nodes WHERE key BETWEEN ? AND ? ORDER BY key LIMIT 11", lo, hi)
+		rows, err := tx.QueryContext(ctx, "SELECT DISTINCT key FROM node_rows WHERE kp BETWEEN ? AND ? AND key BETWEEN ? AND ? ORDER BY key LIMIT 11", kpOf(lo), kpOf(hi), lo, hi)
 		if err != nil {
 			return err
 		}
@@ -439,19 +440,24 @@ func (l *Ledger) RunNodeHeads(ctx context.Context, id pipeline.RunID) ([]NodeHea
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
-		rows, err := tx.QueryContext(ctx, `SELECT n.stage, n.stage_version, n.params
-			FROM run_nodes rn JOIN nodes n ON n.id = rn.node WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
+		rows, err := tx.QueryContext(ctx, `SELECT k.stage, k.stage_version, n.params_shape, n.params
+			FROM run_nodes rn JOIN node_rows n ON n.id = rn.node JOIN kinds k ON k.id = n.kind WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
 		if err != nil {
 			return err
 		}
 		defer rows.Close()
 		for rows.Next() {
 			var h NodeHead
-			var params string
-			if err := rows.Scan(&h.Stage, &h.Version, &params); err != nil {
+			var shape sql.NullInt64
+			var raw []byte
+			if err := rows.Scan(&h.Stage, &h.Version, &shape, &raw); err != nil {
 				return err
 			}
-			if h.Params, err = pipeline.DecodeValues([]byte(params)); err != nil {
+			params, err := l.valuesText(ctx, tx, shape, raw)
+			if err == nil {
+				h.Params, err = pipeline.DecodeValues([]byte(params))
+			}
+			if err != nil {
 				return fmt.Errorf("%w: a node of run %s: stored parameters: %v", ErrIntegrity, id, err)
 			}
 			out = append(out, h)
@@ -473,18 +479,28 @@ func (l *Ledger) RunStageParams(ctx context.Context, id pipeline.RunID, stage st
 		if _, err := readRun(ctx, tx, id); err != nil {
 			return err
 		}
-		rows, err := tx.QueryContext(ctx, `SELECT n.params, min(rn.ordinal) AS first FROM run_nodes rn JOIN nodes n ON n.id = rn.node
-			WHERE rn.run_id = ? AND n.stage = ? GROUP BY n.params ORDER BY first`, string(id), stage)
+		rows, err := tx.QueryContext(ctx, `SELECT n.params_shape, n.params, min(rn.ordinal) AS first FROM run_nodes rn JOIN node_rows n ON n.id = rn.node JOIN kinds k ON k.id = n.kind
+			WHERE rn.run_id = ? AND k.stage = ? GROUP BY n.params_shape, n.params ORDER BY first`, string(id), stage)
 		if err != nil {
 			return err
 		}
 		defer rows.Close()
+		seen := map[string]bool{} // a set stored as text and packed is one set
 		for rows.Next() {
-			var params string
+			var shape sql.NullInt64
+			var raw []byte
 			var first int
-			if err := rows.Scan(&params, &first); err != nil {
+			if err := rows.Scan(&shape, &raw, &first); err != nil {
 				return err
 			}
+			params, err := l.valuesText(ctx, tx, shape, raw)
+			if err != nil {
+				return fmt.Errorf("a %s node of run %s: stored parameters: %w", stage, id, err)
+			}
+			if seen[params] {
+				continue
+			}
+			seen[params] = true
 			vs, err := pipeline.DecodeValues([]byte(params))
 			if err != nil {
 				return fmt.Errorf("%w: a %s node of run %s: stored parameters: %v", ErrIntegrity, stage, id, err)

@@ -265,9 +265,14 @@ func TestOlderKeyFormat(t *testing.T) {
 	if err := l.RecordNode(ctx, run, old, pipeline.Computed); !errors.Is(err, ErrIntegrity) || !strings.Contains(err.Error(), "another key format") {
 		t.Errorf("RecordNode of an old-format description: %v, want a refusal", err)
 	}
-	if _, err := l.db.Exec(`INSERT INTO nodes (key, tool, stage, stage_version, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
-		VALUES (?, '', 'model', 3, ?, ?, ?, ?, 'ok', '', ?, ?)`,
-		keyArg(old.Key), "x f 1 1\n", desc, "y f 2 1\n", keyArg(pipeline.KeyID(old.OutputHash)), int64(time.Second), formatTime(testClock)); err != nil {
+	if _, err := l.db.Exec(`INSERT OR IGNORE INTO kinds (tool, stage, stage_version) VALUES ('', 'model', 3)`); err != nil {
+		t.Fatal(err)
+	}
+	// A row as the first layout's rows are carried forward: text values
+	// and a stored description.
+	if _, err := l.db.Exec(`INSERT INTO node_rows (kp, key, kind, params, description, outputs, output_hash, status, error, duration_ns, recorded_at)
+		VALUES (?, ?, (SELECT id FROM kinds WHERE tool = '' AND stage = 'model' AND stage_version = 3), ?, ?, ?, ?, 'ok', '', ?, ?)`,
+		kpOf(keyArg(old.Key)), keyArg(old.Key), "x f 1 1\n", desc, "y f 2 1\n", keyArg(pipeline.KeyID(old.OutputHash)), int64(time.Second), formatTime(testClock)); err != nil {
 		t.Fatal(err)
 	}
 	got, ok, err := l.Node(ctx, old.Key)

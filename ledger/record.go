@@ -1,6 +1,7 @@
 package ledger
 
 import (
+	"sync"
 	"context"
 	"database/sql"
 	"errors"
@@ -70,7 +71,7 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 	)
 	err := l.inReadTx(ctx, func(tx *qtx) error {
 		var err error
-		row, found, err = loadRow(ctx, tx, key)
+		row, found, err = l.loadRow(ctx, tx, key)
 		if errors.Is(err, ErrIntegrity) {
 			// Never served: computed again, and the row rewritten.
 			l.suspect.put(key, err.Error())
@@ -133,24 +134,46 @@ type storedNode struct {
 	stage, tool, params string
 	version             int
 	description         sql.NullString
+	// packedParams, when paramsShape is set, are the stored parameters
+	// not yet unpacked into params (storedParams does).
+	paramsShape  sql.NullInt64
+	packedParams []byte
 }
 
-// storedColumns are the columns scanStored reads.
-const storedColumns = "id, status, output_hash, stage, tool, stage_version, params, description"
+// storedParams is the canonical text of the row's stored parameters.
+func (l *Ledger) storedParams(ctx context.Context, tx *qtx, s storedNode) (string, error) {
+	if !s.paramsShape.Valid {
+		return s.params, nil
+	}
+	t, err := l.valuesText(ctx, tx, s.paramsShape, s.packedParams)
+	if err != nil {
+		return "", fmt.Errorf("%w: stored parameters: %v", ErrIntegrity, err)
+	}
+	return t, nil
+}
+
+// storedColumns are the columns scanStored reads, from nodeFrom.
+const storedColumns = "n.id, n.status, n.output_hash, k.stage, k.tool, k.stage_version, n.params_shape, n.params, n.description"
 
 func scanStored(s scanner, extra ...any) (storedNode, error) {
 	var st storedNode
 	var status string
-	var hash []byte
-	if err := s.Scan(append([]any{&st.id, &status, &hash, &st.stage, &st.tool, &st.version, &st.params, &st.description}, extra...)...); err != nil {
+	var hash, params []byte
+	if err := s.Scan(append([]any{&st.id, &status, &hash, &st.stage, &st.tool, &st.version, &st.paramsShape, &params, &st.description}, extra...)...); err != nil {
 		return st, err
+	}
+	if st.paramsShape.Valid {
+		st.packedParams = params
+	} else {
+		st.params = string(params)
 	}
 	st.status, st.outputHash = pipeline.NodeStatus(status), pipeline.OutputID(digestText(hash))
 	return st, nil
 }
 
 func readStored(ctx context.Context, tx *qtx, key pipeline.KeyID) (storedNode, bool, error) {
-	s, err := scanStored(tx.QueryRowContext(ctx, "SELECT "+storedColumns+" FROM nodes WHERE key = ?", keyArg(key)))
+	kb := keyArg(key)
+	s, err := scanStored(tx.QueryRowContext(ctx, "SELECT "+storedColumns+" FROM "+nodeFrom+" WHERE n.kp = ? AND n.key = ? ORDER BY n.id LIMIT 1", kpOf(kb), kb))
 	if errors.Is(err, sql.ErrNoRows) {
 		return s, false, nil
 	}
@@ -163,7 +186,7 @@ func readStored(ctx context.Context, tx *qtx, key pipeline.KeyID) (storedNode, b
 // sameDescription says whether a stored row describes the record (a
 // genuine one, checked by checkRecord): equal keys with different fields
 // mean the row was edited, or a hash collision.
-func (s storedNode) sameDescription(rec pipeline.NodeRecord, params string) error {
+func (l *Ledger) sameDescription(ctx context.Context, tx *qtx, s storedNode, rec pipeline.NodeRecord, params string) error {
 	if s.description.Valid {
 		if s.description.String != rec.Description {
 			return fmt.Errorf("%w: the stored description for this key differs: %s", ErrIntegrity, firstDifference(s.description.String, rec.Description))
@@ -171,9 +194,13 @@ func (s storedNode) sameDescription(rec pipeline.NodeRecord, params string) erro
 		return nil
 	}
 	tool, _ := describedTool(rec.Description)
+	stored, err := l.storedParams(ctx, tx, s)
+	if err != nil {
+		return err
+	}
 	for _, f := range []struct{ what, stored, here string }{
 		{"tool", s.tool, tool}, {"stage", s.stage, rec.Stage},
-		{"stage version", fmt.Sprint(s.version), fmt.Sprint(rec.Version)}, {"parameters", s.params, params},
+		{"stage version", fmt.Sprint(s.version), fmt.Sprint(rec.Version)}, {"parameters", stored, params},
 	} {
 		if f.stored != f.here {
 			return fmt.Errorf("%w: the stored %s for this key differs: expected %q, found %q", ErrIntegrity, f.what, f.stored, f.here)
@@ -188,7 +215,8 @@ func (s storedNode) sameDescription(rec pipeline.NodeRecord, params string) erro
 type batchState struct {
 	ordinal int
 	nextID  int64
-	now     string // the batch's recorded_at
+	now     string // the batch's recorded_at (works)
+	nowUnix int64  // the same in Unix seconds (node rows)
 	known   map[pipeline.KeyID]storedNode
 	noLink  bool                    // the node being recorded belongs to a work: no link of its own
 	kinds   map[nodeKind]bool       // of the nodes inserted
@@ -217,7 +245,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		suspect, _ = l.suspect.get(rec.Key)
 	}
 	if action != pipeline.Reused && exists && suspect == "" {
-		if err := old.sameDescription(rec, text.params); err != nil {
+		if err := l.sameDescription(ctx, tx, old, rec, text.params); err != nil {
 			return err
 		}
 	}
@@ -233,7 +261,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 		case old.status == pipeline.NodeOK:
 			if suspect != "" && strings.HasPrefix(suspect, unvouched) && old.outputHash == rec.OutputHash {
 				// Computed again as recorded: the row earns this user's code.
-				if _, err := tx.ExecContext(ctx, "UPDATE nodes SET mac = ? WHERE id = ?", l.macOf(rec.Key, rec.Status, rec.OutputHash), old.id); err != nil {
+				if _, err := tx.ExecContext(ctx, "UPDATE node_rows SET mac = ? WHERE id = ?", l.macOf(rec.Key, rec.Status, rec.OutputHash), old.id); err != nil {
 					return err
 				}
 				if bs != nil {
@@ -250,6 +278,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 				if bs != nil {
 					bs.healed = append(bs.healed, rec.Key)
 					old.outputHash, old.params, old.version, old.stage = rec.OutputHash, text.params, rec.Version, rec.Stage
+					old.paramsShape, old.packedParams = sql.NullInt64{}, nil
 					old.tool, _ = describedTool(rec.Description)
 					old.description = sql.NullString{}
 					bs.known[rec.Key] = old
@@ -261,7 +290,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 					ErrIntegrity, rec.Key, old.outputHash, rec.OutputHash)
 			}
 		default: // failed before, ok now
-			if err := l.updateNode(ctx, tx, rec, text.outputs); err != nil {
+			if err := l.updateNode(ctx, tx, rec, text); err != nil {
 				return err
 			}
 		}
@@ -273,7 +302,7 @@ func (l *Ledger) recordNodeIn(ctx context.Context, tx *qtx, run pipeline.RunID, 
 				return err
 			}
 		case old.status == pipeline.NodeFailed:
-			if err := l.updateNode(ctx, tx, rec, text.outputs); err != nil {
+			if err := l.updateNode(ctx, tx, rec, text); err != nil {
 				return err
 			}
 		}
@@ -336,11 +365,16 @@ func requireRunning(ctx context.Context, tx *qtx, run pipeline.RunID) error {
 	return nil
 }
 
-// rowText is the canonical text of a record's parameters and outputs, as
-// stored.
-type rowText struct{ params, outputs string }
+// rowText is the canonical text of a record's parameters and outputs, and
+// the two packed as they are stored (pack.go; no outputs for a failed
+// node).
+type rowText struct {
+	params, outputs                 string
+	packedParams, packedOutputs packed
+}
 
-// rowValues returns the canonical text of a record's parameters and outputs.
+// rowValues returns the canonical text of a record's parameters and
+// outputs, and their packed form.
 func rowValues(rec pipeline.NodeRecord) (rowText, error) {
 	p, err := rec.Params.Encode()
 	if err != nil {
@@ -350,7 +384,39 @@ func rowValues(rec pipeline.NodeRecord) (rowText, error) {
 	if err != nil {
 		return rowText{}, fmt.Errorf("outputs: %w", err)
 	}
-	return rowText{string(p), string(o)}, nil
+	t := rowText{params: string(p), outputs: string(o)}
+	return t, t.pack(rec)
+}
+
+// pack fills in the packed forms of t's values.
+func (t *rowText) pack(rec pipeline.NodeRecord) error {
+	var err error
+	if t.packedParams, err = packText(t.params, rec.Params); err != nil {
+		return fmt.Errorf("parameters: %w", err)
+	}
+	if rec.Status == pipeline.NodeOK {
+		if t.packedOutputs, err = packText(t.outputs, rec.Outputs); err != nil {
+			return fmt.Errorf("outputs: %w", err)
+		}
+	}
+	return nil
+}
+
+// storedValues are the params_shape, params, outputs_shape and outputs
+// columns of a record (text: rowValues).
+func (l *Ledger) storedValues(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, text rowText) ([]any, error) {
+	ps, pb, err := l.packedColumns(ctx, tx, text.packedParams)
+	if err != nil {
+		return nil, err
+	}
+	if rec.Status != pipeline.NodeOK {
+		return []any{ps, pb, nil, ""}, nil
+	}
+	os, ob, err := l.packedColumns(ctx, tx, text.packedOutputs)
+	if err != nil {
+		return nil, err
+	}
+	return []any{ps, pb, os, ob}, nil
 }
 
 // insertNode writes a new node row and its inputs and returns its id. Each
@@ -400,11 +466,11 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 	if err != nil {
 		return 0, err
 	}
-	var now string
+	var now int64
 	if bs != nil {
-		now = bs.now
+		now = bs.nowUnix
 	} else {
-		now = formatTime(l.now())
+		now = l.now().Unix()
 	}
 	var mac any
 	if vouch && rec.Status == pipeline.NodeOK {
@@ -412,14 +478,19 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 			mac = m
 		}
 	}
-	row := []any{nil, keyArg(rec.Key), tool, rec.Stage, rec.Version, text.params, text.outputs, hash,
+	kind, err := l.kindID(ctx, tx, nodeKind{tool, rec.Stage, rec.Version})
+	if err != nil {
+		return 0, err
+	}
+	vals, err := l.storedValues(ctx, tx, rec, text)
+	if err != nil {
+		return 0, err
+	}
+	kb := keyArg(rec.Key)
+	row := []any{nil, kpOf(kb), kb, kind, vals[0], vals[1], vals[2], vals[3], hash,
 		string(rec.Status), rec.Error, int64(rec.Duration), now, mac}
 	var id int64
 	if bs != nil {
-		if bs.kinds == nil {
-			bs.kinds = map[nodeKind]bool{}
-		}
-		bs.kinds[nodeKind{tool, rec.Stage, rec.Version}] = true
 		id = bs.nextID
 		bs.nextID++
 		row[0] = id
@@ -431,10 +502,7 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 		delete(bs.absent, rec.Key)
 		return id, nil
 	}
-	if err := insertKind(ctx, tx, nodeKind{tool, rec.Stage, rec.Version}); err != nil {
-		return 0, err
-	}
-	res, err := tx.ExecContext(ctx, "INSERT INTO nodes ("+nodeInsertColumns+") VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)", row...)
+	res, err := tx.ExecContext(ctx, "INSERT INTO node_rows ("+nodeInsertColumns+") VALUES ("+marks(nodeInsertCount)+")", row...)
 	if err != nil {
 		return 0, fmt.Errorf("insert node: %w", err)
 	}
@@ -464,31 +532,39 @@ func outputHashArg(rec pipeline.NodeRecord) (any, error) {
 
 // nodeInsertColumns are the columns a new node row is written with (its
 // description is re-derived when read, so it is not stored).
-const nodeInsertColumns = "id, key, tool, stage, stage_version, params, outputs, output_hash, status, error, duration_ns, recorded_at, mac"
+const nodeInsertColumns = "id, kp, key, kind, params_shape, params, outputs_shape, outputs, output_hash, status, error, duration_ns, recorded_at, mac"
+
+// nodeInsertCount is the number of nodeInsertColumns.
+const nodeInsertCount = 14
 
 // updateNode rewrites the mutable part of a row that is currently failed:
 // to ok with outputs, or to failed with a newer error. The WHERE clause
 // makes "an ok row never changes" hold even if the caller got it wrong.
-func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, outputs string) error {
-	return l.updateNodeAs(ctx, tx, rec, outputs, true)
+func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, text rowText) error {
+	return l.updateNodeAs(ctx, tx, rec, text, true)
 }
 
 // updateNodeAs is updateNode; vouch gives the row this user's code.
-func (l *Ledger) updateNodeAs(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, outputs string, vouch bool) error {
+func (l *Ledger) updateNodeAs(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, text rowText, vouch bool) error {
 	hash, err := outputHashArg(rec)
 	if err != nil {
 		return err
 	}
+	vals, err := l.storedValues(ctx, tx, rec, text)
+	if err != nil {
+		return err
+	}
+	kb := keyArg(rec.Key)
 	var mac any
 	if vouch && rec.Status == pipeline.NodeOK {
 		if m := l.macOf(rec.Key, rec.Status, rec.OutputHash); m != nil {
 			mac = m
 		}
 	}
-	res, err := tx.ExecContext(ctx, `UPDATE nodes
-		SET outputs = ?, output_hash = ?, status = ?, error = ?, duration_ns = ?, recorded_at = ?, mac = ?
-		WHERE key = ? AND status = 'failed'`,
-		outputs, hash, string(rec.Status), rec.Error, int64(rec.Duration), formatTime(l.now()), mac, keyArg(rec.Key))
+	res, err := tx.ExecContext(ctx, `UPDATE node_rows
+		SET outputs_shape = ?, outputs = ?, output_hash = ?, status = ?, error = ?, duration_ns = ?, recorded_at = ?, mac = ?
+		WHERE kp = ? AND key = ? AND status = 'failed'`,
+		vals[2], vals[3], hash, string(rec.Status), rec.Error, int64(rec.Duration), l.now().Unix(), mac, kpOf(kb), kb)
 	if err != nil {
 		return fmt.Errorf("update node: %w", err)
 	}
@@ -549,14 +625,15 @@ func (l *Ledger) RecordResults(ctx context.Context, run pipeline.RunID, results 
 		nodes := map[pipeline.KeyID]linked{}
 		for rest := results; len(rest) > 0; {
 			n := min(len(rest), 500)
-			args := []any{string(run)}
-			for _, r := range rest[:n] {
-				args = append(args, keyArg(r.Key))
+			kbs := make([][]byte, n)
+			for i, r := range rest[:n] {
+				kbs[i] = keyArg(r.Key)
 			}
+			cond, kargs := keyMatch("n.", kbs)
 			// CROSS JOIN keeps the key index first: given a long IN list,
 			// the planner would otherwise walk all of the run's links.
-			rows, err := tx.QueryContext(ctx, `SELECT n.key, n.id, n.status FROM nodes n CROSS JOIN run_node_links rn ON rn.node = n.id AND rn.run_id = ?
-				WHERE n.key IN (`+strings.TrimSuffix(strings.Repeat("?, ", n), ", ")+")", args...)
+			rows, err := tx.QueryContext(ctx, `SELECT n.key, n.id, n.status FROM node_rows n CROSS JOIN run_node_links rn ON rn.node = n.id AND rn.run_id = ?
+				WHERE `+cond, append([]any{string(run)}, kargs...)...)
 			if err != nil {
 				return err
 			}
@@ -723,26 +800,69 @@ func (l *Ledger) CloseAbandoned(ctx context.Context, alive func(owner string) bo
 	return closed, nil
 }
 
-// nodeKind is a node's tool, stage and version (table node_kinds).
+// nodeKind is a node's tool, stage and version (table kinds).
 type nodeKind struct {
 	tool, stage string
 	version     int
 }
 
-// insertKind records that the ledger holds a node of kind k.
-func insertKind(ctx context.Context, tx *qtx, k nodeKind) error {
-	if _, err := tx.ExecContext(ctx, "INSERT OR IGNORE INTO node_kinds (tool, stage, stage_version) VALUES (?, ?, ?)", k.tool, k.stage, k.version); err != nil {
-		return fmt.Errorf("record node kind: %w", err)
+// kindBook is a ledger's memory of the kinds' ids (a kind's row never
+// changes once committed).
+type kindBook struct {
+	mu  sync.RWMutex
+	ids map[nodeKind]int64
+}
+
+// kindID returns the id of kind k, storing it when the ledger holds no
+// node of that kind yet (remembered once tx commits).
+func (l *Ledger) kindID(ctx context.Context, tx *qtx, k nodeKind) (int64, error) {
+	l.kinds.mu.RLock()
+	id, ok := l.kinds.ids[k]
+	l.kinds.mu.RUnlock()
+	if ok {
+		return id, nil
 	}
-	return nil
+	if id, ok := tx.newKinds[k]; ok {
+		return id, nil
+	}
+	err := tx.QueryRowContext(ctx, "SELECT id FROM kinds WHERE tool = ? AND stage = ? AND stage_version = ?", k.tool, k.stage, k.version).Scan(&id)
+	if errors.Is(err, sql.ErrNoRows) {
+		res, err := tx.ExecContext(ctx, "INSERT INTO kinds (tool, stage, stage_version) VALUES (?, ?, ?)", k.tool, k.stage, k.version)
+		if err != nil {
+			return 0, fmt.Errorf("record node kind: %w", err)
+		}
+		if id, err = res.LastInsertId(); err != nil {
+			return 0, fmt.Errorf("record node kind: %w", err)
+		}
+		if tx.newKinds == nil {
+			tx.newKinds = map[nodeKind]int64{}
+		}
+		tx.newKinds[k] = id
+		tx.onCommit = append(tx.onCommit, func() { l.kinds.put(k, id) })
+		return id, nil
+	}
+	if err != nil {
+		return 0, fmt.Errorf("read node kind: %w", err)
+	}
+	l.kinds.put(k, id)
+	return id, nil
+}
+
+func (kb *kindBook) put(k nodeKind, id int64) {
+	kb.mu.Lock()
+	defer kb.mu.Unlock()
+	if kb.ids == nil {
+		kb.ids = map[nodeKind]int64{}
+	}
+	kb.ids[k] = id
 }
 
 // quarantine keeps node row id as it is now, with the problem a look-up
 // found with it, and rewrites it with rec (computed again by run).
 func (l *Ledger) quarantine(ctx context.Context, tx *qtx, run pipeline.RunID, id int64, rec pipeline.NodeRecord, text rowText, problem string) error {
 	now := formatTime(l.now())
-	if _, err := tx.ExecContext(ctx, `INSERT INTO quarantine (node, key, params, outputs, output_hash, problem, run_id, found_at)
-		SELECT id, key, params, outputs, output_hash, ?, ?, ? FROM nodes WHERE id = ?`, problem, string(run), now, id); err != nil {
+	if _, err := tx.ExecContext(ctx, `INSERT INTO quarantine (node, key, params_shape, params, outputs_shape, outputs, output_hash, problem, run_id, found_at)
+		SELECT id, key, params_shape, params, outputs_shape, outputs, output_hash, ?, ?, ? FROM node_rows WHERE id = ?`, problem, string(run), now, id); err != nil {
 		return fmt.Errorf("quarantine node %s: %w", rec.Key, err)
 	}
 	hash, err := outputHashArg(rec)
@@ -757,9 +877,18 @@ func (l *Ledger) quarantine(ctx context.Context, tx *qtx, run pipeline.RunID, id
 	if m := l.macOf(rec.Key, rec.Status, rec.OutputHash); m != nil {
 		mac = m
 	}
-	if _, err := tx.ExecContext(ctx, `UPDATE nodes SET tool = ?, stage = ?, stage_version = ?, params = ?, description = NULL, outputs = ?, output_hash = ?,
+	kind, err := l.kindID(ctx, tx, nodeKind{tool, rec.Stage, rec.Version})
+	if err != nil {
+		return err
+	}
+	vals, err := l.storedValues(ctx, tx, rec, text)
+	if err != nil {
+		return err
+	}
+	kb := keyArg(rec.Key)
+	if _, err := tx.ExecContext(ctx, `UPDATE node_rows SET kp = ?, key = ?, kind = ?, params_shape = ?, params = ?, description = NULL, outputs_shape = ?, outputs = ?, output_hash = ?,
 		status = 'ok', error = '', recorded_at = ?, mac = ? WHERE id = ?`,
-		tool, rec.Stage, rec.Version, text.params, text.outputs, hash, now, mac, id); err != nil {
+		kpOf(kb), kb, kind, vals[0], vals[1], vals[2], vals[3], hash, l.now().Unix(), mac, id); err != nil {
 		return fmt.Errorf("rewrite node %s: %w", rec.Key, err)
 	}
 	// Its inputs as the computation named them.
@@ -767,7 +896,8 @@ func (l *Ledger) quarantine(ctx context.Context, tx *qtx, run pipeline.RunID, id
 		return fmt.Errorf("rewrite node %s inputs: %w", rec.Key, err)
 	}
 	for i, in := range rec.Inputs {
-		if _, err := tx.ExecContext(ctx, "INSERT INTO node_inputs (node, position, input) SELECT ?, ?, id FROM nodes WHERE key = ?", id, i, keyArg(in.Key)); err != nil {
+		ib := keyArg(in.Key)
+		if _, err := tx.ExecContext(ctx, "INSERT INTO node_inputs (node, position, input) SELECT ?, ?, min(id) FROM node_rows WHERE kp = ? AND key = ?", id, i, kpOf(ib), ib); err != nil {
 			return fmt.Errorf("rewrite node %s input %d: %w", rec.Key, i, err)
 		}
 	}

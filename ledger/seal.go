@@ -49,7 +49,7 @@ func sealOf(ctx context.Context, tx *qtx, id pipeline.RunID) (string, error) {
 	for i, p := range d.Parts {
 		line("part", strconv.Itoa(i), strconv.Quote(string(p)))
 	}
-	res, err := tx.QueryContext(ctx, `SELECT rr.ordinal, n.key, rr.label FROM run_result_rows rr JOIN nodes n ON n.id = rr.node
+	res, err := tx.QueryContext(ctx, `SELECT rr.ordinal, n.key, rr.label FROM run_result_rows rr JOIN node_rows n ON n.id = rr.node
 		WHERE rr.run_id = ? ORDER BY rr.ordinal`, string(id))
 	if err != nil {
 		return "", err
@@ -67,7 +67,7 @@ func sealOf(ctx context.Context, tx *qtx, id pipeline.RunID) (string, error) {
 	if err := res.Close(); err != nil {
 		return "", err
 	}
-	ns, err := tx.QueryContext(ctx, `SELECT rn.ordinal, n.key, rn.action, n.output_hash, rn.error FROM run_node_links rn JOIN nodes n ON n.id = rn.node
+	ns, err := tx.QueryContext(ctx, `SELECT rn.ordinal, n.key, rn.action, n.output_hash, rn.error FROM run_node_links rn JOIN node_rows n ON n.id = rn.node
 		WHERE rn.run_id = ? ORDER BY rn.ordinal`, string(id))
 	if err != nil {
 		return "", err

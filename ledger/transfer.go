@@ -160,7 +160,7 @@ func (l *Ledger) write(ctx context.Context, s *snapshot) (MergeReport, error) {
 				if err != nil {
 					return err
 				}
-				if err := l.updateNodeAs(ctx, tx, rec, text.outputs, false); err != nil {
+				if err := l.updateNodeAs(ctx, tx, rec, text, false); err != nil {
 					return err
 				}
 				rep.Nodes++
@@ -367,7 +367,7 @@ func (l *Ledger) readWorks(ctx context.Context, id pipeline.RunID) ([]transferWo
 			var t transferWork
 			w := &t.row
 			if err := rows.Scan(&t.pos, &t.base, &t.nodeBase, &t.action,
-				&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, &w.summary, &w.digest, &w.check); err != nil {
+				&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, summaryColumn{&w.summary}, &w.digest, &w.check); err != nil {
 				rows.Close()
 				return err
 			}
@@ -453,7 +453,7 @@ func (l *Ledger) writeWorks(ctx context.Context, tx *qtx, run pipeline.RunID, wo
 				key = row.key
 			}
 			res, err := tx.ExecContext(ctx, "INSERT INTO works (key, nodes, actions, results, errors, span, summary, digest, row_check, recorded_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
-				key, row.nodes, row.actions, row.results, row.errorsTxt, row.span, row.summary, row.digest, row.check, formatTime(l.now()))
+				key, row.nodes, row.actions, row.results, row.errorsTxt, row.span, storedSummary(row.summary), row.digest, row.check, formatTime(l.now()))
 			if err != nil {
 				return fmt.Errorf("insert work: %w", err)
 			}

@@ -50,7 +50,7 @@ func checkRecord(rec pipeline.NodeRecord, action pipeline.Action, outputsText []
 		if want := pipeline.OutputID(pipeline.Sum(outputsText)); rec.OutputHash != want {
 			return rowText{}, fmt.Errorf("%w: output hash: expected %s (hash of the outputs' canonical encoding), found %s", ErrIntegrity, want, rec.OutputHash)
 		}
-		return text, nil
+		return text, text.pack(rec)
 	case pipeline.Failed:
 		if rec.Status != pipeline.NodeFailed {
 			return rowText{}, fmt.Errorf("a failed node must have status %q, found %q", pipeline.NodeFailed, rec.Status)
@@ -61,7 +61,11 @@ func checkRecord(rec pipeline.NodeRecord, action pipeline.Action, outputsText []
 		if len(rec.Outputs) != 0 || rec.OutputHash != "" {
 			return rowText{}, fmt.Errorf("a failed node carries outputs (%d values, hash %q); a failure is never a result", len(rec.Outputs), rec.OutputHash)
 		}
-		return describedRow(rec)
+		text, err := describedRow(rec)
+		if err != nil {
+			return text, err
+		}
+		return text, text.pack(rec)
 	}
 	return rowText{}, fmt.Errorf("unknown action %q", action)
 }

@@ -103,7 +103,7 @@ const workColumns = "id, key, nodes, actions, results, errors, span, summary, di
 
 func scanWork(s scanner, extra ...any) (workRow, error) {
 	var w workRow
-	err := s.Scan(append([]any{&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, &w.summary, &w.digest, &w.check}, extra...)...)
+	err := s.Scan(append([]any{&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, summaryColumn{&w.summary}, &w.digest, &w.check}, extra...)...)
 	return w, err
 }
 
@@ -314,7 +314,7 @@ func (l *Ledger) insertWork(ctx context.Context, tx *qtx, w *pipeline.Work, bs *
 		mac = m
 	}
 	res, err := tx.ExecContext(ctx, "INSERT INTO works (key, nodes, actions, results, errors, span, summary, digest, row_check, recorded_at, mac) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)",
-		keyArgV, row.nodes, row.actions, row.results, row.errorsTxt, row.span, row.summary, row.digest, row.check, bs.now, mac)
+		keyArgV, row.nodes, row.actions, row.results, row.errorsTxt, row.span, storedSummary(row.summary), row.digest, row.check, bs.now, mac)
 	if err != nil {
 		return 0, fmt.Errorf("insert work: %w", err)
 	}
@@ -343,11 +343,12 @@ func (l *Ledger) nodeIDs(ctx context.Context, tx *qtx, w *pipeline.Work, bs *bat
 	for len(rest) > 0 {
 		part := rest[:min(len(rest), 500)]
 		rest = rest[len(part):]
-		args := make([]any, len(part))
+		kbs := make([][]byte, len(part))
 		for j, i := range part {
-			args[j] = keyArg(w.Nodes[i].Key)
+			kbs[j] = keyArg(w.Nodes[i].Key)
 		}
-		rows, err := tx.QueryContext(ctx, "SELECT key, id, status, output_hash FROM nodes WHERE key IN ("+marks(len(part))+")", args...)
+		cond, args := keyMatch("", kbs)
+		rows, err := tx.QueryContext(ctx, "SELECT key, id, status, output_hash FROM node_rows WHERE "+cond+" ORDER BY id DESC", args...)
 		if err != nil {
 			return nil, err
 		}
@@ -400,7 +401,7 @@ func storedAccount(ctx context.Context, tx *qtx, w workRow) (workAccount, error)
 	if err := json.Unmarshal([]byte(w.errorsTxt), &errs); err != nil {
 		return acct, fmt.Errorf("work %d errors: %w", w.id, err)
 	}
-	rows, err := tx.QueryContext(ctx, "SELECT j.key, n.key, n.status, n.output_hash FROM json_each(?) j JOIN nodes n ON n.id = j.value ORDER BY j.key", w.nodes)
+	rows, err := tx.QueryContext(ctx, "SELECT j.key, n.key, n.status, n.output_hash FROM json_each(?) j JOIN node_rows n ON n.id = j.value ORDER BY j.key", w.nodes)
 	if err != nil {
 		return acct, err
 	}
@@ -545,7 +546,7 @@ func (l *Ledger) RunWorks(ctx context.Context, id pipeline.RunID) (works []RunWo
 			var action string
 			var w workRow
 			if err := rows.Scan(&rw.Position, &rw.Base, &rw.NodeBase, &action,
-				&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, &w.summary, &w.digest, &w.check); err != nil {
+				&w.id, &w.key, &w.nodes, &w.actions, &w.results, &w.errorsTxt, &w.span, summaryColumn{&w.summary}, &w.digest, &w.check); err != nil {
 				return err
 			}
 			if err := w.checked(); err != nil {

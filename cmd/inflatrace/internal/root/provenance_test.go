@@ -158,7 +158,7 @@ func TestVerifyTagTraceExportImport(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := db.Exec("UPDATE nodes SET outputs = replace(outputs, 'n_s f 0.9', 'n_s f 0.8') WHERE stage = 'reheat' AND rowid = (SELECT min(rowid) FROM nodes WHERE stage = 'reheat')"); err != nil {
+	if _, err := db.Exec("UPDATE nodes SET outputs = replace(outputs, 'n_s f 0.9', 'n_s f 0.8') WHERE id = (SELECT min(id) FROM nodes WHERE stage = 'reheat')"); err != nil {
 		t.Fatal(err)
 	}
 	db.Close()
