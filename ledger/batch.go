@@ -17,7 +17,7 @@ import (
 // either every node of the batch is written or none is. Batching is what
 // makes large scans affordable: one commit costs far more than one row.
 func (l *Ledger) RecordNodes(ctx context.Context, run pipeline.RunID, batch []pipeline.Recorded) error {
-	texts, bad, err := checkBatch(batch)
+	texts, bad, err := l.checkBatch(batch)
 	if err != nil {
 		return fmt.Errorf("ledger: record %s node %s in run %s: %w", batch[bad].Action, batch[bad].Node.Key, run, err)
 	}
@@ -114,8 +114,10 @@ const checkShare = 1000
 // checkBatch verifies every record of a batch (checkRecord) before the
 // transaction begins, sharing a large batch among the CPUs: the writer is
 // a scan's one serial step, and verification needs no database. The first
-// refusal in batch order is returned with its index.
-func checkBatch(batch []pipeline.Recorded) ([]rowText, int, error) {
+// refusal in batch order is returned with its index. The same goroutines
+// resolve the shapes the ledger already holds and compute the nodes'
+// authentication codes, so that the writer only writes.
+func (l *Ledger) checkBatch(batch []pipeline.Recorded) ([]rowText, int, error) {
 	texts := make([]rowText, len(batch))
 	errs := make([]error, len(batch))
 	parts := min(runtime.GOMAXPROCS(0), max(1, len(batch)/checkShare))
@@ -127,7 +129,10 @@ func checkBatch(batch []pipeline.Recorded) ([]rowText, int, error) {
 			defer wg.Done()
 			for i := lo; i < hi; i++ {
 				b := batch[i]
-				texts[i], errs[i] = checkRecord(b.Node, b.Action, b.OutputsText)
+				texts[i], errs[i] = checkRecord(b.Node, b.Action, b.OutputsText, &l.shapes)
+				if errs[i] == nil && b.Action != pipeline.Reused && b.Node.Status == pipeline.NodeOK {
+					texts[i].mac = l.macOf(b.Node.Key, b.Node.Status, b.Node.OutputHash)
+				}
 			}
 		}()
 	}

@@ -227,7 +227,7 @@ func TestMissingKeyWrittenMeanwhile(t *testing.T) {
 
 func mustText(t *testing.T, rec pipeline.NodeRecord) rowText {
 	t.Helper()
-	text, err := checkRecord(rec, pipeline.Computed, nil)
+	text, err := checkRecord(rec, pipeline.Computed, nil, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -37,6 +37,7 @@ const packInline = 64
 type packed struct {
 	shape string
 	slots []uint64 // float64 bits
+	id    int64    // the shape's id when the ledger had it committed (else 0; shape is then set)
 }
 
 // packValues splits vs (canonical order: sorted by name) into a shape and
@@ -46,15 +47,24 @@ func packValues(vs pipeline.Values) (packed, error) {
 	if err != nil {
 		return packed{}, err
 	}
-	return packText(string(text), vs)
+	return packText(string(text), vs, false, nil)
 }
 
 // packText is packValues given the canonical text of vs (Values.Encode),
 // which it rewrites line by line: a float line's number becomes a slot
 // reference unless it is a small integer, every other byte is copied.
-func packText(text string, vs pipeline.Values) (packed, error) {
+// With strict set it also checks that text is exactly the canonical text
+// of vs (each value once, in name order, floats in shortest form), as
+// cheaply as writing it. A shape the ledger has committed is resolved
+// from book (when not nil) without keeping a copy of its text.
+func packText(text string, vs pipeline.Values, strict bool, book *shapeBook) (packed, error) {
 	var p packed
-	b := make([]byte, 0, len(text))
+	var arr [512]byte
+	b := arr[:0]
+	if len(text) > len(arr) {
+		b = make([]byte, 0, len(text))
+	}
+	lines, prev := 0, ""
 	for pos := 0; pos < len(text); {
 		end := strings.IndexByte(text[pos:], '\n')
 		if end < 0 {
@@ -63,7 +73,21 @@ func packText(text string, vs pipeline.Values) (packed, error) {
 		line := text[pos : pos+end+1]
 		pos += end + 1
 		sp := strings.IndexByte(line, ' ')
+		lines++
+		if strict {
+			if sp <= 0 || line[:sp] <= prev {
+				return p, fmt.Errorf("line %q: names not in order after %q", strings.TrimSuffix(line, "\n"), prev)
+			}
+			prev = line[:sp]
+		}
 		if sp <= 0 || !strings.HasPrefix(line[sp:], " f ") {
+			if strict {
+				v, ok := vs[line[:sp]]
+				if !ok || v.Kind != pipeline.KindString || !strings.HasPrefix(line[sp:], " s ") ||
+					line[sp+len(" s "):len(line)-1] != strconv.Quote(v.Str) {
+					return p, fmt.Errorf("line %q is not the canonical line of a value of the record (%v)", strings.TrimSuffix(line, "\n"), v)
+				}
+			}
 			b = append(b, line...) // a string line
 			continue
 		}
@@ -77,6 +101,11 @@ func packText(text string, vs pipeline.Values) (packed, error) {
 			return p, fmt.Errorf("canonical text: line %q is not one of the values", line)
 		}
 		x := v.Float
+		if strict {
+			if f := pipeline.FormatFloat(x); line[numStart:numEnd] != f || line[numEnd+1:len(line)-1] != v.Unit {
+				return p, fmt.Errorf("line %q, the value's canonical line is %q", strings.TrimSuffix(line, "\n"), line[:sp]+" f "+f+" "+v.Unit)
+			}
+		}
 		b = append(b, line[:numStart]...)
 		if x == math.Trunc(x) && math.Abs(x) <= packInline {
 			b = append(b, line[numStart:numEnd]...)
@@ -91,6 +120,15 @@ func packText(text string, vs pipeline.Values) (packed, error) {
 			b = strconv.AppendInt(b, int64(k), 10)
 		}
 		b = append(b, line[numEnd:]...)
+	}
+	if strict && lines != len(vs) {
+		return p, fmt.Errorf("%d lines for %d values", lines, len(vs))
+	}
+	if book != nil {
+		if id, ok := book.lookupBytes(b); ok {
+			p.id = id
+			return p, nil
+		}
 	}
 	p.shape = string(b)
 	return p, nil
@@ -181,6 +219,14 @@ func (sb *shapeBook) lookupText(text string) (int64, bool) {
 	sb.mu.RLock()
 	defer sb.mu.RUnlock()
 	id, ok := sb.byText[text]
+	return id, ok
+}
+
+// lookupBytes is lookupText of a text still in a buffer (no copy made).
+func (sb *shapeBook) lookupBytes(text []byte) (int64, bool) {
+	sb.mu.RLock()
+	defer sb.mu.RUnlock()
+	id, ok := sb.byText[string(text)]
 	return id, ok
 }
 
@@ -325,9 +371,12 @@ func (l *Ledger) valuesText(ctx context.Context, tx *qtx, shapeID sql.NullInt64,
 // packedColumns are the stored shape and blob of a set of values: NULL
 // and '' for the outputs of a failed node.
 func (l *Ledger) packedColumns(ctx context.Context, tx *qtx, p packed) (any, []byte, error) {
-	id, err := l.shapeID(ctx, tx, p.shape)
-	if err != nil {
-		return nil, nil, err
+	id := p.id
+	if id == 0 {
+		var err error
+		if id, err = l.shapeID(ctx, tx, p.shape); err != nil {
+			return nil, nil, err
+		}
 	}
 	return id, p.slotBytes(), nil
 }

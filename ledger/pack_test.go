@@ -32,7 +32,7 @@ func packCases() []pipeline.Values {
 			case 0:
 				vs[name] = num(float64(r.IntN(200) - 100))
 			case 1:
-				vs[name] = num(math.Float64frombits(r.Uint64() &^ (0x7ff << 52) | uint64(r.IntN(0x7ff))<<52))
+				vs[name] = num(math.Float64frombits(r.Uint64()&^(0x7ff<<52) | uint64(r.IntN(0x7ff))<<52))
 			case 2:
 				vs[name] = pipeline.String(strconv.Itoa(r.IntN(4)))
 			default:
@@ -149,5 +149,29 @@ func TestValuesViewDecodesFloats(t *testing.T) {
 	}
 	if n == 0 {
 		t.Fatal("the nodes view shows no row's values")
+	}
+}
+
+// TestPackStrictRefusesOtherText: strict packing accepts only the exact
+// canonical text of the values (what a key was described with), so a
+// record whose description and parameters disagree is refused.
+func TestPackStrictRefusesOtherText(t *testing.T) {
+	vs := pipeline.Values{"a": num(1), "b": num(0.25), "s": pipeline.String("x")}
+	good, _ := vs.Encode()
+	if _, err := packText(string(good), vs, true, nil); err != nil {
+		t.Fatalf("canonical text refused: %v", err)
+	}
+	for _, bad := range []string{
+		"a f 1.0 1\nb f 0.25 1\ns s \"x\"\n",        // not the shortest form
+		"b f 0.25 1\na f 1 1\ns s \"x\"\n",          // out of order
+		"a f 1 1\nb f 0.25 1\n",                     // a value missing
+		"a f 1 1\nb f 0.25 GeV\ns s \"x\"\n",        // another unit
+		"a f 1 1\nb f 0.5 1\ns s \"x\"\n",           // another value
+		"a f 1 1\nb f 0.25 1\ns s \"y\"\n",          // another string
+		"a f 1 1\na f 1 1\nb f 0.25 1\ns s \"x\"\n", // a repeated name
+	} {
+		if _, err := packText(bad, vs, true, nil); err == nil {
+			t.Errorf("strict packing accepted %q", bad)
+		}
 	}
 }

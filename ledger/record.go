@@ -114,7 +114,7 @@ func (l *Ledger) Lookup(ctx context.Context, key pipeline.KeyID) (pipeline.NodeR
 // In every case the run must be running and must not have touched the key
 // before.
 func (l *Ledger) RecordNode(ctx context.Context, run pipeline.RunID, rec pipeline.NodeRecord, action pipeline.Action) error {
-	text, err := checkRecord(rec, action, nil)
+	text, err := checkRecord(rec, action, nil, &l.shapes)
 	if err == nil {
 		err = l.inTx(ctx, func(tx *qtx) error { return l.recordNodeIn(ctx, tx, run, rec, text, action, nil) })
 	}
@@ -369,8 +369,9 @@ func requireRunning(ctx context.Context, tx *qtx, run pipeline.RunID) error {
 // the two packed as they are stored (pack.go; no outputs for a failed
 // node).
 type rowText struct {
-	params, outputs                 string
+	params, outputs             string
 	packedParams, packedOutputs packed
+	mac                         []byte // the node's code, when checkBatch computed it
 }
 
 // rowValues returns the canonical text of a record's parameters and
@@ -385,17 +386,19 @@ func rowValues(rec pipeline.NodeRecord) (rowText, error) {
 		return rowText{}, fmt.Errorf("outputs: %w", err)
 	}
 	t := rowText{params: string(p), outputs: string(o)}
-	return t, t.pack(rec)
+	return t, t.pack(rec, nil)
 }
 
-// pack fills in the packed forms of t's values.
-func (t *rowText) pack(rec pipeline.NodeRecord) error {
+// pack fills in the packed forms of t's values, checking that t.params is
+// the canonical text of rec.Params (the outputs text is checked against
+// the output hash), and resolving the shapes book holds (book may be nil).
+func (t *rowText) pack(rec pipeline.NodeRecord, book *shapeBook) error {
 	var err error
-	if t.packedParams, err = packText(t.params, rec.Params); err != nil {
-		return fmt.Errorf("parameters: %w", err)
+	if t.packedParams, err = packText(t.params, rec.Params, true, book); err != nil {
+		return fmt.Errorf("%w: description does not match the record's stage, version, parameters and inputs: parameters: %v", ErrIntegrity, err)
 	}
 	if rec.Status == pipeline.NodeOK {
-		if t.packedOutputs, err = packText(t.outputs, rec.Outputs); err != nil {
+		if t.packedOutputs, err = packText(t.outputs, rec.Outputs, false, book); err != nil {
 			return fmt.Errorf("outputs: %w", err)
 		}
 	}
@@ -474,7 +477,11 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 	}
 	var mac any
 	if vouch && rec.Status == pipeline.NodeOK {
-		if m := l.macOf(rec.Key, rec.Status, rec.OutputHash); m != nil {
+		m := text.mac
+		if m == nil {
+			m = l.macOf(rec.Key, rec.Status, rec.OutputHash)
+		}
+		if m != nil {
 			mac = m
 		}
 	}

@@ -18,7 +18,8 @@ import (
 // here); a failed one carries an error and no outputs. A Reused record
 // needs only a well-formed key: its row is already in the ledger and is
 // checked there.
-func checkRecord(rec pipeline.NodeRecord, action pipeline.Action, outputsText []byte) (rowText, error) {
+// Shapes book holds are resolved (book may be nil).
+func checkRecord(rec pipeline.NodeRecord, action pipeline.Action, outputsText []byte, book *shapeBook) (rowText, error) {
 	if err := pipeline.ParseHash(string(rec.Key)); err != nil {
 		return rowText{}, fmt.Errorf("%w: node key: %v", ErrIntegrity, err)
 	}
@@ -50,7 +51,7 @@ func checkRecord(rec pipeline.NodeRecord, action pipeline.Action, outputsText []
 		if want := pipeline.OutputID(pipeline.Sum(outputsText)); rec.OutputHash != want {
 			return rowText{}, fmt.Errorf("%w: output hash: expected %s (hash of the outputs' canonical encoding), found %s", ErrIntegrity, want, rec.OutputHash)
 		}
-		return text, text.pack(rec)
+		return text, text.pack(rec, book)
 	case pipeline.Failed:
 		if rec.Status != pipeline.NodeFailed {
 			return rowText{}, fmt.Errorf("a failed node must have status %q, found %q", pipeline.NodeFailed, rec.Status)
@@ -65,7 +66,7 @@ func checkRecord(rec pipeline.NodeRecord, action pipeline.Action, outputsText []
 		if err != nil {
 			return text, err
 		}
-		return text, text.pack(rec)
+		return text, text.pack(rec, book)
 	}
 	return rowText{}, fmt.Errorf("unknown action %q", action)
 }
@@ -125,14 +126,9 @@ func describedRow(rec pipeline.NodeRecord) (rowText, error) {
 	if inputs != len(rec.Inputs) {
 		return bad("%d inputs, the record has %d", inputs, len(rec.Inputs))
 	}
-	enc, err := rec.Params.Encode()
-	if err != nil {
-		return rowText{}, fmt.Errorf("parameters: %w", err)
-	}
-	if p := params.String(); string(enc) != p {
-		return bad("parameters: %s", firstDifference(p, string(enc)))
-	}
-	return rowText{params: string(enc)}, nil
+	// That the parameter lines are the canonical text of rec.Params is
+	// checked as they are packed (rowText.pack).
+	return rowText{params: params.String()}, nil
 }
 
 // checkDescription checks that the key is the hash of the description and

@@ -160,7 +160,7 @@ var _ pipeline.WorkRecorder = (*Ledger)(nil)
 // stored (in this batch or before) with the output hashes the work names;
 // a work key already recorded by another run must have the same digest.
 func (l *Ledger) RecordWorks(ctx context.Context, run pipeline.RunID, batch []pipeline.Recorded, works []pipeline.WorkLink) error {
-	texts, bad, err := checkBatch(batch)
+	texts, bad, err := l.checkBatch(batch)
 	if err != nil {
 		return fmt.Errorf("ledger: record %s node %s in run %s: %w", batch[bad].Action, batch[bad].Node.Key, run, err)
 	}
