@@ -369,7 +369,7 @@ func (l *Ledger) valuesText(ctx context.Context, tx *qtx, shapeID sql.NullInt64,
 }
 
 // packedColumns are the stored shape and blob of a set of values: NULL
-// and '' for the outputs of a failed node.
+// and an empty text for the outputs of a failed node.
 func (l *Ledger) packedColumns(ctx context.Context, tx *qtx, p packed) (any, []byte, error) {
 	id := p.id
 	if id == 0 {

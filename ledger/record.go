@@ -1,13 +1,13 @@
 package ledger
 
 import (
-	"sync"
 	"context"
 	"database/sql"
 	"errors"
 	"fmt"
 	"os"
 	"strings"
+	"sync"
 	"time"
 
 	"github.com/inflatrace/inflatrace/pipeline"

@@ -256,3 +256,21 @@ func AcceptAtFloor(r QuadResult, err error, floor float64) (QuadResult, error) {
 	}
 	return r, err
 }
+
+// KronrodRule15 returns the 15 nodes of the Gauss–Kronrod 7-15 rule on
+// [-1, 1] in increasing order, with the Kronrod weights and the embedded
+// 7-point Gauss weights (zero at the 8 nodes the Gauss rule lacks), the
+// QUADPACK QK15 values above: for product rules built outside this
+// package (the inference cubature), which need the nodes, not a 1-D
+// integral.
+func KronrodRule15() (x, wk, wg [15]float64) {
+	for i := 0; i < 7; i++ {
+		x[i], x[14-i] = -gk15x[i], gk15x[i]
+		wk[i], wk[14-i] = gk15w[i], gk15w[i]
+		if i%2 == 1 {
+			wg[i], wg[14-i] = g7w[i/2], g7w[i/2]
+		}
+	}
+	x[7], wk[7], wg[7] = 0, gk15w[7], g7w[3]
+	return x, wk, wg
+}

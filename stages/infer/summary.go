@@ -1,0 +1,187 @@
+package infer
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"github.com/inflatrace/inflatrace/stages/num/detmath"
+)
+
+// Summaries of the posterior: the nodes of the final rule weighted by the
+// integrand (prior coordinates are uniform, so the integrand is the
+// likelihood and its weighted nodes are the posterior). Each summary is
+// taken with the Kronrod weights and again with the embedded Gauss ones;
+// the difference is its numerical error estimate.
+
+// weights returns the posterior weights of the nodes under w (WK or WG),
+// normalised to 1.
+func (r *Result) weights(w []float64) []float64 {
+	top := math.Inf(-1)
+	for _, l := range r.LnF {
+		top = math.Max(top, l)
+	}
+	p := make([]float64, len(w))
+	var s float64
+	for i, l := range r.LnF {
+		if w[i] == 0 || math.IsInf(l, -1) {
+			continue
+		}
+		p[i] = float64(w[i] * detmath.Exp(l-top))
+		s += p[i]
+	}
+	for i := range p {
+		p[i] /= s
+	}
+	return p
+}
+
+// Estimate is a number with its numerical error estimate.
+type Estimate struct {
+	Value, Err float64
+}
+
+// Mean is the posterior mean of g (a function of the node index).
+func (r *Result) Mean(g func(i int) float64) Estimate {
+	mean := func(p []float64) float64 {
+		var m float64
+		for i, pi := range p {
+			if pi > 0 {
+				m += float64(pi * g(i))
+			}
+		}
+		return m
+	}
+	k, gs := mean(r.weights(r.WK)), mean(r.weights(r.WG))
+	return Estimate{k, math.Abs(k - gs)}
+}
+
+// Quantiles are the posterior quantiles of g at probabilities qs (each in
+// (0, 1)): the weighted nodes sorted by g, each node's mass centred on its
+// value, the distribution function interpolated linearly between nodes.
+func (r *Result) Quantiles(g func(i int) float64, qs ...float64) []Estimate {
+	vals := make([]float64, len(r.LnF))
+	for i := range vals {
+		vals[i] = g(i)
+	}
+	k := quantiles(vals, r.weights(r.WK), qs)
+	gs := quantiles(vals, r.weights(r.WG), qs)
+	out := make([]Estimate, len(qs))
+	for j := range qs {
+		out[j] = Estimate{k[j], math.Abs(k[j] - gs[j])}
+	}
+	return out
+}
+
+func quantiles(vals, p []float64, qs []float64) []float64 {
+	order := make([]int, 0, len(vals))
+	for i, pi := range p {
+		if pi > 0 {
+			order = append(order, i)
+		}
+	}
+	sort.SliceStable(order, func(a, b int) bool { return vals[order[a]] < vals[order[b]] })
+	// Merge nodes of equal value (a coordinate shared by a slab of nodes).
+	var xs, cs []float64 // values and the distribution function at them
+	cum := 0.0
+	for j := 0; j < len(order); {
+		v, m := vals[order[j]], 0.0
+		for ; j < len(order) && vals[order[j]] == v; j++ {
+			m += p[order[j]]
+		}
+		xs = append(xs, v)
+		cs = append(cs, cum+0.5*m)
+		cum += m
+	}
+	out := make([]float64, len(qs))
+	for j, q := range qs {
+		i := sort.SearchFloat64s(cs, q)
+		switch {
+		case len(xs) == 0:
+			out[j] = math.NaN()
+		case i == 0:
+			out[j] = xs[0]
+		case i == len(xs):
+			out[j] = xs[len(xs)-1]
+		default:
+			t := (q - cs[i-1]) / (cs[i] - cs[i-1])
+			out[j] = xs[i-1] + t*(xs[i]-xs[i-1])
+		}
+	}
+	return out
+}
+
+// Interval is a two-sided interval [Lo, Hi] with the error estimates of
+// its ends.
+type Interval struct {
+	Lo, Hi Estimate
+}
+
+// Credible is the equal-tailed credible interval of g of probability p
+// (0.6827 for "68%", 0.9545 for "95%", or as the caller states).
+func (r *Result) Credible(g func(i int) float64, p float64) Interval {
+	q := r.Quantiles(g, (1-p)/2, (1+p)/2)
+	return Interval{q[0], q[1]}
+}
+
+// Profile is the profile-likelihood interval of g at the level where
+// -2 Delta ln L reaches delta (1 for 68.3%, 3.841 for 95% in one
+// parameter: the chi-squared quantiles of one degree of freedom): the
+// range of g over the nodes whose likelihood is within delta/2 of the
+// largest at any node. Its ends are as fine as the nodes near them; the
+// error estimate is the spacing of g between the outermost node inside
+// and the nearest outside.
+func (r *Result) Profile(g func(i int) float64, delta float64) (Interval, error) {
+	top := math.Inf(-1)
+	for _, l := range r.LnF {
+		top = math.Max(top, l)
+	}
+	if math.IsInf(top, -1) {
+		return Interval{}, ErrNoMass
+	}
+	in := math.Inf(1)
+	inHi := math.Inf(-1)
+	for i, l := range r.LnF {
+		if l >= top-delta/2 {
+			v := g(i)
+			in, inHi = math.Min(in, v), math.Max(inHi, v)
+		}
+	}
+	// The nearest values outside, for the resolution.
+	below, above := math.Inf(-1), math.Inf(1)
+	for i, l := range r.LnF {
+		if l < top-delta/2 {
+			v := g(i)
+			if v < in {
+				below = math.Max(below, v)
+			}
+			if v > inHi {
+				above = math.Min(above, v)
+			}
+		}
+	}
+	lo := Estimate{in, 0}
+	if !math.IsInf(below, -1) {
+		lo.Err = in - below
+	}
+	hi := Estimate{inHi, 0}
+	if !math.IsInf(above, 1) {
+		hi.Err = above - inHi
+	}
+	return Interval{lo, hi}, nil
+}
+
+// Probability is the posterior probability of the event that h (a
+// probability at each node, in [0, 1]) describes: the posterior average
+// of h.
+func (r *Result) Probability(h func(i int) float64) (Estimate, error) {
+	vals := make([]float64, len(r.LnF))
+	for i := range vals {
+		v := h(i)
+		if !(v >= 0 && v <= 1) {
+			return Estimate{}, fmt.Errorf("infer: probability %g at node %d (want 0 to 1)", v, i)
+		}
+		vals[i] = v
+	}
+	return r.Mean(func(i int) float64 { return vals[i] }), nil
+}
