@@ -177,6 +177,9 @@ func (r *Result) Profile(g func(i int) float64, delta float64) (Interval, error)
 func (r *Result) Probability(h func(i int) float64) (Estimate, error) {
 	vals := make([]float64, len(r.LnF))
 	for i := range vals {
+		if math.IsInf(r.LnF[i], -1) {
+			continue // no posterior mass: h need not be defined there
+		}
 		v := h(i)
 		if !(v >= 0 && v <= 1) {
 			return Estimate{}, fmt.Errorf("infer: probability %g at node %d (want 0 to 1)", v, i)

@@ -235,3 +235,6 @@ func Names() []string {
 	sort.Strings(names)
 	return names
 }
+
+// Check refuses a value outside the parameter's declared range (Interval).
+func (d Param) Check(v float64) error { return d.check(v) }

@@ -29,5 +29,6 @@ func Stages() map[string]pipeline.Stage {
 		SlowRollStage:  SlowRoll{},
 		ReheatStage:    Reheat{},
 		CompareStage:   Compare{},
+		InferStage:     Infer{},
 	}
 }

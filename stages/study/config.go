@@ -31,6 +31,7 @@ type fileConfig struct {
 	Constraint    []constraintRef  `toml:"constraint"`
 	Forecast      []constraintRef  `toml:"forecast"`
 	Model         []map[string]any `toml:"model"`
+	Inference     []map[string]any `toml:"inference"`
 }
 
 type slowRollConfig struct {
@@ -120,6 +121,8 @@ type Study struct {
 	Constraints []compare.Gaussian
 	SampleSets  []SampleSet
 	Forecasts   []compare.Forecast
+	// Inferences are the [[inference]] tables (inflatrace infer).
+	Inferences []Inference
 	// The model points, expanded on demand (see NumModels and ModelAt).
 	points modelPoints
 	// wk caches the shared part of the work keys of the study's chunks.
@@ -176,8 +179,11 @@ func Parse(file string, data []byte, dir string) (*Study, error) {
 		}
 	}
 	var err error
-	if s.Histories, err = c.histories(fc.Reheating); err != nil {
-		return nil, err
+	// A study of inferences alone states its reheating priors in them.
+	if len(fc.Reheating) > 0 || len(fc.Model) > 0 || len(fc.Inference) == 0 {
+		if s.Histories, err = c.histories(fc.Reheating); err != nil {
+			return nil, err
+		}
 	}
 	if s.Constraints, err = c.constraints(fc.Constraint); err != nil {
 		return nil, err
@@ -185,6 +191,14 @@ func Parse(file string, data []byte, dir string) (*Study, error) {
 	s.SampleSets = c.samples
 	if s.Forecasts, err = c.forecasts(fc.Forecast); err != nil {
 		return nil, err
+	}
+	if s.Inferences, err = c.inferences(fc.Inference, s.Constraints); err != nil {
+		return nil, err
+	}
+	if len(fc.Model) == 0 && len(s.Inferences) > 0 {
+		// A study of inferences alone: nothing to predict point by point.
+		s.points = newModelPoints(nil)
+		return s, nil
 	}
 	groups, err := c.models(fc.Model)
 	if err != nil {

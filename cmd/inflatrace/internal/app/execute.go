@@ -87,12 +87,8 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 		ConfigPath: s.File, ConfigText: string(s.Text), ConfigHash: s.Hash(), Owner: e.Owner(),
 		DerivedFrom: o.DerivedFrom, Parts: o.Parts,
 	}
-	if closed, err := l.CloseAbandoned(ctx, e.Alive, ledger.StaleAfter); err != nil {
+	if err := e.closeAbandoned(ctx, l); err != nil {
 		return nil, err
-	} else {
-		for _, c := range closed {
-			fmt.Fprintf(e.Stderr, "run %s was interrupted (its process is gone or silent for %s): marked failed; its recorded nodes are reused\n", c, ledger.StaleAfter)
-		}
 	}
 	// The run's lock, held until this process ends or the run is
 	// finished: a later run or runs --close-stale sees it held while the
@@ -113,28 +109,7 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 	}
 	// The run says it is alive while it runs, so that a later run can
 	// tell it from one whose process died on another host.
-	beat := make(chan struct{})
-	beatDone := make(chan struct{})
-	go func() {
-		defer close(beatDone)
-		t := time.NewTicker(ledger.HeartbeatEvery)
-		defer t.Stop()
-		for {
-			select {
-			case <-beat:
-				return
-			case <-t.C:
-				l.Heartbeat(context.WithoutCancel(ctx), id) // a missed beat only ages the run
-			}
-		}
-	}()
-	stopBeat := func() {
-		if beat != nil {
-			close(beat)
-			<-beatDone
-			beat = nil
-		}
-	}
+	stopBeat := startHeartbeat(ctx, l, id)
 	defer stopBeat()
 	out := &Outcome{Ledger: l.Path()}
 	var firstErr error
@@ -369,4 +344,44 @@ func LoadRun(ctx context.Context, l *ledger.Ledger, ref string) (ledger.RunDetai
 	}
 	results, err := RecordedResults(ctx, l, id)
 	return run, results, err
+}
+
+// closeAbandoned closes the runs left running by processes that are gone
+// (ledger.CloseAbandoned), saying so.
+func (e *Env) closeAbandoned(ctx context.Context, l *ledger.Ledger) error {
+	closed, err := l.CloseAbandoned(ctx, e.Alive, ledger.StaleAfter)
+	if err != nil {
+		return err
+	}
+	for _, c := range closed {
+		fmt.Fprintf(e.Stderr, "run %s was interrupted (its process is gone or silent for %s): marked failed; its recorded nodes are reused\n", c, ledger.StaleAfter)
+	}
+	return nil
+}
+
+// startHeartbeat records that run id is alive every ledger.HeartbeatEvery
+// until the returned function is called (which may be called again).
+func startHeartbeat(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) (stop func()) {
+	beat := make(chan struct{})
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		t := time.NewTicker(ledger.HeartbeatEvery)
+		defer t.Stop()
+		for {
+			select {
+			case <-beat:
+				return
+			case <-t.C:
+				l.Heartbeat(context.WithoutCancel(ctx), id) // a missed beat only ages the run
+			}
+		}
+	}()
+	return func() {
+		if beat != nil {
+			close(beat)
+			<-done
+			beat = nil
+		}
+	}
 }

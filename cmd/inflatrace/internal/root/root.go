@@ -16,6 +16,7 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/diffcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/exportcmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/graphcmd"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/infercmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/keycmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/mergecmd"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/modelscmd"
@@ -68,6 +69,7 @@ with its inputs in an SQLite ledger so it can be regenerated and audited.`,
 		exportcmd.NewImportCmd(env, g),
 		graphcmd.NewCmd(env, g, dag.PNG),
 		keycmd.NewCmd(env),
+		infercmd.NewCmd(env, g, nil),
 	)
 	return root
 }

@@ -98,6 +98,9 @@ func Run(ctx context.Context, o *Options) error {
 	if err != nil {
 		return err
 	}
+	if s.NumModels() == 0 {
+		return app.Usage(fmt.Errorf("%s: no [[model]] to predict; its [[inference]] tables run with \"inflatrace infer %s\"", s.File, s.File))
+	}
 	if o.DryRun {
 		if o.WriteConfig == "" {
 			_, err := o.Env.Stdout.Write(s.Text)

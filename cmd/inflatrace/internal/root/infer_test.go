@@ -1,0 +1,117 @@
+package root
+
+import (
+	"encoding/json"
+	"math"
+	"strings"
+	"testing"
+)
+
+// inferStudy is a study of inferences alone: the Starobinsky model as the
+// reference, and the E-model with alpha log-uniform, both with w_reh = 0
+// and T_reh log-uniform from the BBN bound to its maximum.
+const inferStudy = `title = "Orrery Collaboration: alpha-attractors and reheating"
+
+[[constraint]]
+use = "cmb-combined-2025"
+
+[[forecast]]
+use = "simons-observatory"
+
+[[inference]]
+label = "Starobinsky"
+family = "e-model"
+alpha = 1
+reference = true
+
+[[inference]]
+label = "E-model"
+family = "e-model"
+alpha = {log_uniform = [0.01, 100]}
+`
+
+type inferJSON struct {
+	Run  string `json:"run"`
+	Rows []struct {
+		Label     string             `json:"label"`
+		Reference bool               `json:"reference"`
+		LnZ       float64            `json:"ln_Z"`
+		LnZErr    float64            `json:"ln_Z_err"`
+		LnB       *float64           `json:"ln_B"`
+		Grade     string             `json:"grade"`
+		Values    map[string]float64 `json:"values"`
+	} `json:"rows"`
+}
+
+// TestInferRecordsAndReuses: infer records one node per inference; a
+// re-run reuses them and prints the same numbers bit for bit; verify
+// recomputes them identically; ln B is the difference of the evidences,
+// the reference's 0; and the posterior keeps T_reh between the BBN bound
+// and the instantaneous maximum and N* below its instantaneous value
+// (about 55.6 for Starobinsky with A_s = 2.1e-9: ExampleInstant in
+// stages/reheat).
+func TestInferRecordsAndReuses(t *testing.T) {
+	h := newHarness(t)
+	p := h.write("inf.toml", inferStudy)
+	out, errs, code := h.run("infer", p, "--format", "json")
+	if code != 0 {
+		t.Fatalf("infer: exit %d: %s", code, errs)
+	}
+	if !strings.Contains(errs, "2 computed, 0 reused") {
+		t.Errorf("cold infer: %s", errs)
+	}
+	var a inferJSON
+	if err := json.Unmarshal([]byte(out), &a); err != nil || len(a.Rows) != 2 {
+		t.Fatalf("infer --format json: %v: %s", err, out)
+	}
+	out2, errs2, code := h.run("infer", p, "--format", "json")
+	if code != 0 || !strings.Contains(errs2, "0 computed, 2 reused") {
+		t.Fatalf("warm infer: exit %d: %s", code, errs2)
+	}
+	var b inferJSON
+	if err := json.Unmarshal([]byte(out2), &b); err != nil {
+		t.Fatal(err)
+	}
+	for i := range a.Rows {
+		for k, v := range a.Rows[i].Values {
+			if math.Float64bits(v) != math.Float64bits(b.Rows[i].Values[k]) {
+				t.Errorf("%s %s: %v cold, %v warm", a.Rows[i].Label, k, v, b.Rows[i].Values[k])
+			}
+		}
+	}
+	ref, em := a.Rows[0], a.Rows[1]
+	if !ref.Reference || ref.LnB == nil || *ref.LnB != 0 || em.LnB == nil || math.Abs(*em.LnB-(em.LnZ-ref.LnZ)) > 1e-15 || em.Grade == "" {
+		t.Errorf("Bayes factors: reference %+v, E-model ln B %v (%q)", ref.LnB, em.LnB, em.Grade)
+	}
+	for _, r := range a.Rows {
+		v := r.Values
+		if v["ln_Z_err"] > 0.01 {
+			t.Errorf("%s: ln Z error %g above the default tolerance", r.Label, v["ln_Z_err"])
+		}
+		if !(v["log10_T_reh_GeV:lo95"] >= math.Log10(4.1e-3)-1e-9 && v["log10_T_reh_GeV:hi95"] <= 16) {
+			t.Errorf("%s: T_reh 95%% range [%g, %g] outside [BBN, maximum]", r.Label, v["log10_T_reh_GeV:lo95"], v["log10_T_reh_GeV:hi95"])
+		}
+		if !(v["N_star:lo68"] < v["N_star:median"] && v["N_star:median"] < v["N_star:hi68"] && v["N_star:hi95"] < 56) {
+			t.Errorf("%s: N* intervals %g %g %g %g", r.Label, v["N_star:lo68"], v["N_star:median"], v["N_star:hi68"], v["N_star:hi95"])
+		}
+		if p := v["P_detect_3sigma:simons-observatory"]; !(p >= 0 && p <= 1) {
+			t.Errorf("%s: detection probability %g", r.Label, p)
+		}
+	}
+	vout, verrs, code := h.run("verify", b.Run)
+	if code != 0 || !strings.Contains(vout+verrs, "2 identical") {
+		t.Errorf("verify: exit %d: %s%s", code, vout, verrs)
+	}
+	// run refuses a study of inferences alone, pointing to infer.
+	if _, errs, code := h.run("run", p); code != 2 || !strings.Contains(errs, "inflatrace infer") {
+		t.Errorf("run of an inference study: exit %d: %s", code, errs)
+	}
+	for _, f := range []string{"text", "markdown", "csv", "latex"} {
+		if out, errs, code := h.run("infer", p, "--format", f); code != 0 || !strings.Contains(out, "E-model") {
+			t.Errorf("--format %s: exit %d: %s%s", f, code, out, errs)
+		}
+	}
+	if _, errs, code := h.run("infer", p, "--format", "pdf"); code != 2 || !strings.Contains(errs, "--format") {
+		t.Errorf("--format pdf: exit %d: %s", code, errs)
+	}
+}

@@ -1,0 +1,324 @@
+package nodes
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"slices"
+	"strings"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/compare"
+	"github.com/inflatrace/inflatrace/stages/infer"
+	"github.com/inflatrace/inflatrace/stages/reheat"
+)
+
+// InferStage is the inference stage: one node is the whole posterior of
+// one model family with its priors against one constraint set (an
+// integral over many points of the model, taken inside the node by the
+// deterministic cubature of stages/infer, so that the node's key covers
+// every influence on it).
+const InferStage = "infer"
+
+// InferVersion is the inference stage's version (bump it when its
+// numerics or outputs change).
+const InferVersion = 1
+
+// Parameter prefixes of an inference node: a family parameter is fixed
+// ("fixed:n"), uniform ("uniform_lo:alpha", "uniform_hi:alpha") or
+// log-uniform ("log_lo:alpha", "log_hi:alpha"); w_reh is one of them too;
+// each forecast gives its sigma(r) ("forecast:SO").
+const (
+	inferFixed     = "fixed:"
+	inferUniformLo = "uniform_lo:"
+	inferUniformHi = "uniform_hi:"
+	inferLogLo     = "log_lo:"
+	inferLogHi     = "log_hi:"
+	inferForecast  = "forecast:"
+)
+
+// Infer is the inference stage.
+type Infer struct{}
+
+var inferSpec = pipeline.Spec{
+	Name: InferStage, Version: InferVersion,
+	Params: []pipeline.ParamSpec{
+		{Name: keyFamily, Kind: pipeline.KindString},
+		{Name: "constraint", Kind: pipeline.KindString},
+		{Name: "citation", Kind: pipeline.KindString},
+		{Name: "mean_n_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "sigma_n_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "mean_r", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "sigma_r", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "rho", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "A_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "k_pivot", Kind: pipeline.KindFloat, Unit: pipeline.UnitPerMpc},
+		{Name: "T_0", Kind: pipeline.KindFloat, Unit: pipeline.UnitKelvin},
+		{Name: "g_s0", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "g_reh", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "g_s_reh", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		{Name: "T_reh_min", Kind: pipeline.KindFloat, Unit: pipeline.UnitGeV},
+		{Name: "tolerance", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+	},
+	OpenParams: []string{inferFixed, inferUniformLo, inferUniformHi, inferLogLo, inferLogHi, inferForecast},
+}
+
+// Spec declares the stage.
+func (Infer) Spec() pipeline.Spec { return inferSpec }
+
+// InferSpec is what an inference node is made of.
+type InferSpec struct {
+	Family     string
+	Params     []infer.Prior // the family's parameters
+	W          infer.Prior
+	TLoGeV     float64
+	As         float64
+	History    reheat.History
+	Constraint compare.Gaussian
+	Forecasts  []compare.Forecast
+	Tol        float64
+}
+
+// InferParams encodes an inference as a node's parameters.
+func InferParams(s InferSpec) (pipeline.Values, error) {
+	f := func(x float64, unit string) pipeline.Value { return pipeline.Float(x, unit) }
+	vs := GaussianParams(s.Constraint)
+	delete(vs, "kind")
+	vs[keyFamily] = pipeline.String(s.Family)
+	vs["A_s"] = f(s.As, pipeline.UnitNone)
+	vs["k_pivot"] = f(s.History.PivotPerMpc, pipeline.UnitPerMpc)
+	vs["T_0"] = f(s.History.T0K, pipeline.UnitKelvin)
+	vs["g_s0"] = f(s.History.GS0, pipeline.UnitNone)
+	vs["g_reh"] = f(s.History.GReh, pipeline.UnitNone)
+	vs["g_s_reh"] = f(s.History.GSReh, pipeline.UnitNone)
+	vs["T_reh_min"] = f(s.TLoGeV, pipeline.UnitGeV)
+	vs["tolerance"] = f(s.Tol, pipeline.UnitNone)
+	for _, p := range append(slices.Clone(s.Params), s.W) {
+		if err := p.Check(); err != nil {
+			return nil, err
+		}
+		switch p.Kind {
+		case infer.Fixed:
+			vs[inferFixed+p.Name] = f(p.Value, pipeline.UnitNone)
+		case infer.Uniform:
+			vs[inferUniformLo+p.Name], vs[inferUniformHi+p.Name] = f(p.Lo, pipeline.UnitNone), f(p.Hi, pipeline.UnitNone)
+		case infer.LogUniform:
+			vs[inferLogLo+p.Name], vs[inferLogHi+p.Name] = f(p.Lo, pipeline.UnitNone), f(p.Hi, pipeline.UnitNone)
+		}
+	}
+	for _, fc := range s.Forecasts {
+		if strings.ContainsAny(fc.Name, " \"") {
+			return nil, fmt.Errorf("forecast %q: a name for inference holds no space or quote", fc.Name)
+		}
+		vs[inferForecast+fc.Name] = f(fc.SigmaR, pipeline.UnitNone)
+	}
+	return vs, nil
+}
+
+// inferFrom decodes an inference node's parameters.
+func inferFrom(params pipeline.Values) (InferSpec, error) {
+	var s InferSpec
+	var err error
+	if s.Family, err = params.Text(keyFamily); err != nil {
+		return s, err
+	}
+	g, _ := GaussianFrom(params)
+	s.Constraint = g
+	v, err := need(params, "inference", "A_s", "k_pivot", "T_0", "g_s0", "g_reh", "g_s_reh", "T_reh_min", "tolerance")
+	if err != nil {
+		return s, err
+	}
+	s.As, s.TLoGeV, s.Tol = v[0], v[6], v[7]
+	s.History = reheat.History{PivotPerMpc: v[1], T0K: v[2], GS0: v[3], GReh: v[4], GSReh: v[5]}
+	priors := map[string]*infer.Prior{}
+	get := func(name string) *infer.Prior {
+		if p, ok := priors[name]; ok {
+			return p
+		}
+		p := &infer.Prior{Name: name}
+		priors[name] = p
+		return p
+	}
+	for _, n := range params.Names() {
+		x := params[n].Float
+		switch {
+		case strings.HasPrefix(n, inferFixed):
+			p := get(strings.TrimPrefix(n, inferFixed))
+			p.Kind, p.Value = infer.Fixed, x
+		case strings.HasPrefix(n, inferUniformLo):
+			p := get(strings.TrimPrefix(n, inferUniformLo))
+			p.Kind, p.Lo = infer.Uniform, x
+		case strings.HasPrefix(n, inferUniformHi):
+			p := get(strings.TrimPrefix(n, inferUniformHi))
+			p.Kind, p.Hi = infer.Uniform, x
+		case strings.HasPrefix(n, inferLogLo):
+			p := get(strings.TrimPrefix(n, inferLogLo))
+			p.Kind, p.Lo = infer.LogUniform, x
+		case strings.HasPrefix(n, inferLogHi):
+			p := get(strings.TrimPrefix(n, inferLogHi))
+			p.Kind, p.Hi = infer.LogUniform, x
+		case strings.HasPrefix(n, inferForecast):
+			s.Forecasts = append(s.Forecasts, compare.Forecast{Name: strings.TrimPrefix(n, inferForecast), SigmaR: x})
+		}
+	}
+	w, ok := priors["w_reh"]
+	if !ok {
+		return s, fmt.Errorf("inference: no prior for w_reh")
+	}
+	s.W = *w
+	delete(priors, "w_reh")
+	names := make([]string, 0, len(priors))
+	for n := range priors {
+		names = append(names, n)
+	}
+	slices.Sort(names)
+	for _, n := range names {
+		s.Params = append(s.Params, *priors[n])
+	}
+	return s, nil
+}
+
+// InferQuantities are the quantities an inference node summarises, after
+// the free parameters (the reheating ones only when they vary).
+var InferQuantities = []string{"N_star", "log10_T_reh_GeV", "N_reh", "n_s", "r"}
+
+// Run integrates the posterior and records its summaries.
+func (Infer) Run(_ context.Context, params pipeline.Values, _ []pipeline.Values) (pipeline.Values, error) {
+	s, err := inferFrom(params)
+	if err != nil {
+		return nil, err
+	}
+	prob := infer.Problem{Family: s.Family, Params: s.Params, W: s.W, TLoGeV: s.TLoGeV, As: s.As, History: s.History, Like: s.Constraint}
+	f, d, err := prob.Integrand()
+	if err != nil {
+		return nil, err
+	}
+	res, err := integrateForSummaries(f, d, s.Tol)
+	if err != nil {
+		return nil, err
+	}
+	out := pipeline.Values{
+		"ln_Z":        pipeline.Float(res.LnZ, pipeline.UnitNone),
+		"ln_Z_err":    pipeline.Float(res.LnZErr, pipeline.UnitNone),
+		"evaluations": pipeline.Float(float64(res.Evals), pipeline.UnitNone),
+		"constraint":  pipeline.String(s.Constraint.Name),
+		keyFamily:     pipeline.String(s.Family),
+	}
+	// The quantities: each free parameter (by its interpolated marginal),
+	// then the derived ones (by the weighted nodes).
+	var free []infer.Prior
+	for _, p := range s.Params {
+		if p.Kind != infer.Fixed {
+			free = append(free, p)
+		}
+	}
+	qs := []float64{0.5, 0.15865, 0.84135, 0.02275, 0.97725}
+	put := func(name string, es []infer.Estimate) {
+		for i, suffix := range []string{"median", "lo68", "hi68", "lo95", "hi95"} {
+			out[name+":"+suffix] = pipeline.Float(es[i].Value, pipeline.UnitNone)
+			out[name+":"+suffix+"_err"] = pipeline.Float(es[i].Err, pipeline.UnitNone)
+		}
+	}
+	for k, p := range free {
+		es, err := res.MarginalQuantiles(k, qs...)
+		if err != nil {
+			return nil, err
+		}
+		for i := range es {
+			v := p.At(es[i].Value)
+			// The error through the prior's map, by its local slope.
+			h := 1e-6
+			slope := (p.At(math.Min(1, es[i].Value+h)) - p.At(math.Max(0, es[i].Value-h))) / (math.Min(1, es[i].Value+h) - math.Max(0, es[i].Value-h))
+			es[i] = infer.Estimate{Value: v, Err: math.Abs(slope) * es[i].Err}
+		}
+		put("param:"+p.Name, es)
+		if err := putProfile(out, "param:"+p.Name, res, func(i int) float64 { return res.Derived[i][k] }); err != nil {
+			return nil, err
+		}
+	}
+	base := len(free)
+	derived := infer.Derived // w_reh, log10 T, N_reh, N*, n_s, r
+	for j, name := range derived {
+		if name == "w_reh" && s.W.Kind == infer.Fixed {
+			continue
+		}
+		g := func(i int) float64 { return res.Derived[i][base+j] }
+		put(name, res.Quantiles(g, qs...))
+		if err := putProfile(out, name, res, g); err != nil {
+			return nil, err
+		}
+	}
+	rIndex := base + slices.Index(derived, "r")
+	for _, fc := range s.Forecasts {
+		det, err := res.Probability(func(i int) float64 {
+			p, _ := infer.DetectionProbability(res.Derived[i][rIndex], fc.SigmaR, 3)
+			return p
+		})
+		if err != nil {
+			return nil, err
+		}
+		exc, err := res.Probability(func(i int) float64 {
+			p, _ := infer.ExclusionProbability(res.Derived[i][rIndex], fc.SigmaR, 0.95)
+			return p
+		})
+		if err != nil {
+			return nil, err
+		}
+		out["P_detect_3sigma:"+fc.Name] = pipeline.Float(det.Value, pipeline.UnitNone)
+		out["P_detect_3sigma:"+fc.Name+"_err"] = pipeline.Float(det.Err, pipeline.UnitNone)
+		out["P_exclude_95:"+fc.Name] = pipeline.Float(exc.Value, pipeline.UnitNone)
+		out["P_exclude_95:"+fc.Name+"_err"] = pipeline.Float(exc.Err, pipeline.UnitNone)
+	}
+	return out, nil
+}
+
+// integrateForSummaries integrates to ln Z within tol, then refines the
+// starting partition (2, 4, 8... panels a dimension) until every derived
+// quantity's 68% and 95% interval ends have error estimates below a
+// fiftieth of its 68% width, so that the intervals, not only ln Z, are as
+// good as stated (deterministically: the same partitions every time).
+func integrateForSummaries(f infer.Integrand, d int, tol float64) (*infer.Result, error) {
+	var res *infer.Result
+	for panels := 2; ; panels *= 2 {
+		r, err := infer.Integrate(f, d, &infer.Settings{Tol: tol, Panels: panels})
+		if err != nil {
+			if res != nil {
+				return res, nil // the finer partition is beyond the budget: keep the last
+			}
+			return nil, err
+		}
+		res = r
+		worst := 0.0
+		for j := range infer.Derived {
+			g := func(i int) float64 { return res.Derived[i][len(res.Derived[i])-len(infer.Derived)+j] }
+			q := res.Quantiles(g, 0.15865, 0.84135, 0.02275, 0.97725)
+			width := q[1].Value - q[0].Value
+			if !(width > 0) {
+				continue
+			}
+			for _, e := range q {
+				worst = math.Max(worst, e.Err/width)
+			}
+		}
+		if worst <= 0.02 || res.Evals*(1<<d) > 2_000_000 {
+			return res, nil
+		}
+	}
+}
+
+// putProfile records the 68% and 95% profile-likelihood intervals of g
+// (Delta chi^2 = 1 and 3.841, one parameter).
+func putProfile(out pipeline.Values, name string, res *infer.Result, g func(int) float64) error {
+	for _, lv := range []struct {
+		suffix string
+		delta  float64
+	}{{"68", 1}, {"95", 3.841}} {
+		iv, err := res.Profile(g, lv.delta)
+		if err != nil {
+			return err
+		}
+		out[name+":profile_lo"+lv.suffix] = pipeline.Float(iv.Lo.Value, pipeline.UnitNone)
+		out[name+":profile_hi"+lv.suffix] = pipeline.Float(iv.Hi.Value, pipeline.UnitNone)
+	}
+	return nil
+}

@@ -1,0 +1,229 @@
+package study
+
+import (
+	"fmt"
+	"math"
+	"slices"
+
+	"github.com/inflatrace/inflatrace/pipeline"
+	"github.com/inflatrace/inflatrace/stages/compare"
+	"github.com/inflatrace/inflatrace/stages/infer"
+	"github.com/inflatrace/inflatrace/stages/model"
+	"github.com/inflatrace/inflatrace/stages/nodes"
+	"github.com/inflatrace/inflatrace/stages/reheat"
+)
+
+// Inference is one [[inference]] table: a model family with a prior on
+// each of its parameters and on its reheating history, inferred against
+// each of the constraint sets it names (inflatrace infer).
+type Inference struct {
+	Label       string
+	Family      string
+	Params      []infer.Prior // every parameter of the family, in its declared order
+	W           infer.Prior
+	TLoGeV      float64
+	Constraints []compare.Gaussian
+	Reference   bool
+	Tol         float64
+}
+
+// inferenceKeys are the keys an [[inference]] table may hold besides the
+// family's parameters.
+var inferenceKeys = []string{"label", "family", "w_reh", "T_reh_min_GeV", "constraint", "reference", "tolerance"}
+
+// inferences reads the [[inference]] tables against the study's
+// constraint sets.
+func (c *parser) inferences(tables []map[string]any, sets []compare.Gaussian) ([]Inference, error) {
+	var out []Inference
+	refs := 0
+	labels := map[string]bool{}
+	for i, t := range tables {
+		path := fmt.Sprintf("inference[%d]", i)
+		inf := Inference{W: infer.Prior{Name: "w_reh", Kind: infer.Fixed, Value: 0}, TLoGeV: reheat.DefaultBBNBoundGeV, Tol: 0.01}
+		name, ok := t["family"].(string)
+		if !ok {
+			return nil, c.errAt(path, "an [[inference]] needs family = \"...\" (see inflatrace models)")
+		}
+		fam, err := model.Lookup(name)
+		if err != nil {
+			return nil, c.errAt(path+".family", "%v", err)
+		}
+		inf.Family, inf.Label = fam.Name, fam.Name
+		for k := range t {
+			if !slices.Contains(inferenceKeys, k) && !slices.ContainsFunc(fam.Params, func(p model.Param) bool { return p.Name == k }) {
+				return nil, c.errAt(path+"."+k, "unknown key: an [[inference]] takes %v and the parameters of %s (%s)", inferenceKeys, fam.Name, paramNames(fam))
+			}
+		}
+		for _, d := range fam.Params {
+			p, err := c.prior(path+"."+d.Name, d.Name, t[d.Name], d)
+			if err != nil {
+				return nil, err
+			}
+			inf.Params = append(inf.Params, p)
+		}
+		if v, ok := t["w_reh"]; ok {
+			if inf.W, err = c.prior(path+".w_reh", "w_reh", v, model.Param{Name: "w_reh", Min: -1.0 / 3, MinOpen: true, Max: 1, Default: 0}); err != nil {
+				return nil, err
+			}
+			if inf.W.Kind == infer.LogUniform {
+				return nil, c.errAt(path+".w_reh", "w_reh takes a value or {uniform = [lo, hi]}")
+			}
+		}
+		if v, ok := t["T_reh_min_GeV"]; ok {
+			x, _, err := number(v)
+			if err != nil || !(x > 0) || math.IsInf(x, 0) {
+				return nil, c.errAt(path+".T_reh_min_GeV", "want a positive temperature in GeV (the BBN bound, %g GeV, by default)", reheat.DefaultBBNBoundGeV)
+			}
+			inf.TLoGeV = x
+		}
+		if v, ok := t["tolerance"]; ok {
+			x, _, err := number(v)
+			if err != nil || !(x > 0 && x <= 1) {
+				return nil, c.errAt(path+".tolerance", "want the target error of ln Z, 0 < tolerance <= 1 (0.01 by default)")
+			}
+			inf.Tol = x
+		}
+		if v, ok := t["label"]; ok {
+			s, ok := v.(string)
+			if !ok || s == "" {
+				return nil, c.errAt(path+".label", "want a non-empty string")
+			}
+			inf.Label = s
+		}
+		if labels[inf.Label] {
+			return nil, c.errAt(path+".label", "label %q names another [[inference]]: give each a label of its own", inf.Label)
+		}
+		labels[inf.Label] = true
+		if v, ok := t["reference"]; ok {
+			b, ok := v.(bool)
+			if !ok {
+				return nil, c.errAt(path+".reference", "want true or false")
+			}
+			inf.Reference = b
+			if b {
+				refs++
+			}
+		}
+		if refs > 1 {
+			return nil, c.errAt(path+".reference", "a second reference model: the Bayes factors are taken against one")
+		}
+		names := make([]string, 0, len(sets))
+		for _, g := range sets {
+			names = append(names, g.Name)
+		}
+		if v, ok := t["constraint"]; ok {
+			if names, err = c.strings(path+".constraint", v); err != nil {
+				return nil, err
+			}
+		}
+		for _, n := range names {
+			j := slices.IndexFunc(sets, func(g compare.Gaussian) bool { return g.Name == n })
+			if j < 0 {
+				if slices.ContainsFunc(c.samples, func(s SampleSet) bool { return s.Name == n }) {
+					return nil, c.errAt(path+".constraint", "constraint set %q is sample-based: inference takes Gaussian sets so far", n)
+				}
+				return nil, c.errAt(path+".constraint", "no [[constraint]] named %q in the study", n)
+			}
+			inf.Constraints = append(inf.Constraints, sets[j])
+		}
+		if len(inf.Constraints) == 0 {
+			return nil, c.errAt(path, "no Gaussian constraint set to infer against: add a [[constraint]]")
+		}
+		out = append(out, inf)
+	}
+	return out, nil
+}
+
+func paramNames(f *model.Family) []string {
+	var out []string
+	for _, p := range f.Params {
+		out = append(out, p.Name)
+	}
+	return out
+}
+
+// prior reads a parameter's prior: a number (fixed), {uniform = [lo, hi]}
+// or {log_uniform = [lo, hi]}; absent, the family's default (fixed). The
+// range must lie in the parameter's declared one.
+func (c *parser) prior(path, name string, v any, d model.Param) (infer.Prior, error) {
+	p := infer.Prior{Name: name, Kind: infer.Fixed}
+	switch x := v.(type) {
+	case nil:
+		if math.IsNaN(d.Default) {
+			return p, c.errAt(path, "%s has no default: give a value or a prior ({uniform = [lo, hi]} or {log_uniform = [lo, hi]})", name)
+		}
+		p.Value = d.Default
+		return p, nil
+	case map[string]any:
+		if len(x) != 1 {
+			return p, c.errAt(path, "a prior is one of {uniform = [lo, hi]} and {log_uniform = [lo, hi]}")
+		}
+		for kind, r := range x {
+			switch kind {
+			case "uniform":
+				p.Kind = infer.Uniform
+			case "log_uniform":
+				p.Kind = infer.LogUniform
+			default:
+				return p, c.errAt(path+"."+kind, "unknown prior %q (uniform or log_uniform)", kind)
+			}
+			xs, _, err := numbers(r)
+			if err != nil || len(xs) != 2 {
+				return p, c.errAt(path+"."+kind, "want [lo, hi]")
+			}
+			p.Lo, p.Hi = xs[0], xs[1]
+		}
+		if err := p.Check(); err != nil {
+			return p, c.errAt(path, "%v", err)
+		}
+		for _, e := range []float64{p.Lo, p.Hi} {
+			if err := d.Check(e); err != nil {
+				return p, c.errAt(path, "%s prior [%g, %g]: %v (%s allows %s)", name, p.Lo, p.Hi, err, name, d.Interval())
+			}
+		}
+		return p, nil
+	}
+	val, _, err := number(v)
+	if err != nil {
+		return p, c.errAt(path, "%v", err)
+	}
+	if err := d.Check(val); err != nil {
+		return p, c.errAt(path, "%s = %g: %v", name, val, err)
+	}
+	p.Value = val
+	return p, nil
+}
+
+// InferenceSpecs are the study's inferences as nodes.InferSpec values, one
+// per inference and constraint set, with their labels "<label> | <set>".
+func (s *Study) InferenceSpecs() ([]string, []nodes.InferSpec) {
+	var labels []string
+	var out []nodes.InferSpec
+	for _, inf := range s.Inferences {
+		for _, g := range inf.Constraints {
+			labels = append(labels, inf.Label+" | "+g.Name)
+			out = append(out, nodes.InferSpec{Family: inf.Family, Params: inf.Params, W: inf.W, TLoGeV: inf.TLoGeV, As: s.As,
+				History: reheat.DefaultHistory(), Constraint: g, Forecasts: s.Forecasts, Tol: inf.Tol})
+		}
+	}
+	return labels, out
+}
+
+// InferenceGraph is the graph of the study's inferences: one node per
+// inference and constraint set, each a result.
+func (s *Study) InferenceGraph() (*pipeline.Graph, error) {
+	g := &pipeline.Graph{}
+	labels, specs := s.InferenceSpecs()
+	for i, sp := range specs {
+		params, err := nodes.InferParams(sp)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", labels[i], err)
+		}
+		n, err := g.Add(nodes.Infer{}, params, labels[i])
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", labels[i], err)
+		}
+		g.MarkResult(labels[i], n)
+	}
+	return g, nil
+}
