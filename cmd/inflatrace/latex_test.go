@@ -36,6 +36,30 @@ label = "E-model"
 alpha = {log = [0.01, 100], points = 60}
 `
 
+// latexInference is a study of inferences in the demo scenario: the
+// Starobinsky model as reference, the E-model with alpha log-uniform and
+// w_reh free, against a shipped set and the invented TERN-B forecast.
+const latexInference = `title = "Orrery Collaboration: inferences for the TERN-B sheet (invented demo)"
+
+[[constraint]]
+use = "cmb-combined-2025"
+
+[[forecast]]
+use = "tern-b"
+
+[[inference]]
+label = "Starobinsky"
+family = "e-model"
+alpha = 1
+reference = true
+
+[[inference]]
+label = "E-model"
+family = "e-model"
+alpha = {log_uniform = [0.01, 100]}
+w_reh = {uniform = [0, "1/3"]}
+`
+
 // TestLaTeXDocument writes every kind of LaTeX table of a run (the
 // default wide layout, the long layout, a longtable with caption and
 // label, a --where-filtered table, exact numbers) and the run's PDF
@@ -105,6 +129,15 @@ func TestLaTeXDocument(t *testing.T) {
 		}
 		body.WriteString("\\section*{" + tb.name + "}\n\\input{" + tb.name + "}\n\n")
 	}
+	// The inference table (inflatrace infer) of a small study.
+	inferFile := filepath.Join(dir, "infer.toml")
+	if err := os.WriteFile(inferFile, []byte(latexInference), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "infer.tex"), run("infer", inferFile, "--format", "latex"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	body.WriteString("\\section*{infer}\n\\input{infer}\n\n")
 	figs := filepath.Join(dir, "figures")
 	run("plot", scanRun, "--out", figs)
 	pdfs, _ := filepath.Glob(filepath.Join(figs, "*.pdf"))

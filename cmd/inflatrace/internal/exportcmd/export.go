@@ -16,6 +16,7 @@ import (
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/archive"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/infertable"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/sshsig"
 	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -122,7 +123,12 @@ func Export(ctx context.Context, o *Options, extra Extra) error {
 	if err != nil {
 		return err
 	}
-	err = app.JSON(f, map[string]any{"run": id, "tool_version": run.ToolVersion, "config_hash": run.ConfigHash, "results": results})
+	rec, err := recordOf(ctx, l, run, results)
+	if err != nil {
+		f.Close()
+		return err
+	}
+	err = app.JSON(f, rec)
 	if cerr := f.Close(); err == nil {
 		err = cerr
 	}
@@ -217,8 +223,12 @@ func crossCheck(ctx context.Context, from, ledgerPath, resultsPath string, m arc
 	if err != nil {
 		return &archive.TamperError{Archive: from, File: archive.LedgerName, Msg: fmt.Sprintf("does not hold the run the manifest names (%s): %v", m.Run, err)}
 	}
+	rec, err := recordOf(ctx, l, run, results)
+	if err != nil {
+		return &archive.TamperError{Archive: from, File: archive.LedgerName, Msg: fmt.Sprintf("its run %s cannot be read back: %v", m.Run, err)}
+	}
 	var got bytes.Buffer
-	if err := app.JSON(&got, map[string]any{"run": run.ID, "tool_version": run.ToolVersion, "config_hash": run.ConfigHash, "results": results}); err != nil {
+	if err := app.JSON(&got, rec); err != nil {
 		return err
 	}
 	if !bytes.Equal(got.Bytes(), want) {
@@ -418,4 +428,20 @@ func (s *Size) bytes() int64 {
 		return archive.DefaultMaxBytes
 	}
 	return int64(*s)
+}
+
+// recordOf is an archive's results.json for run: its results, or for a
+// run of inferences the rows of its inference table (infertable).
+func recordOf(ctx context.Context, l *ledger.Ledger, run ledger.RunDetail, results []study.Result) (map[string]any, error) {
+	rec := map[string]any{"run": run.ID, "tool_version": run.ToolVersion, "config_hash": run.ConfigHash}
+	rows, ok, err := infertable.Recorded(ctx, l, run.ID)
+	if err != nil {
+		return nil, err
+	}
+	if ok {
+		rec["inferences"] = rows
+		return rec, nil
+	}
+	rec["results"] = results
+	return rec, nil
 }

@@ -12,6 +12,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/infertable"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tables"
 	"github.com/inflatrace/inflatrace/stages/study"
 )
@@ -71,11 +72,24 @@ func Table(ctx context.Context, o *TableOptions) error {
 	if err != nil {
 		return err
 	}
+	var b bytes.Buffer
+	if rows, ok, err := infertable.Recorded(ctx, l, id); err != nil {
+		return err
+	} else if ok {
+		// A run of inferences: its own table (inflatrace infer's).
+		digits := o.Options.Digits
+		if digits == 0 {
+			digits = 3
+		}
+		if err := infertable.Write(&b, o.Options.Format, digits, id, rows); err != nil {
+			return err
+		}
+		return o.write(b.Bytes())
+	}
 	results, err := app.RecordedResults(ctx, l, id)
 	if err != nil {
 		return err
 	}
-	var b bytes.Buffer
 	if err := tables.Write(&b, results, o.Options); err != nil {
 		var oe *tables.OptionError
 		if errors.As(err, &oe) {
@@ -83,11 +97,16 @@ func Table(ctx context.Context, o *TableOptions) error {
 		}
 		return err
 	}
+	return o.write(b.Bytes())
+}
+
+// write writes the finished table to --out or stdout.
+func (o *TableOptions) write(b []byte) error {
 	if o.Out == "" {
-		_, err = o.Env.Stdout.Write(b.Bytes())
+		_, err := o.Env.Stdout.Write(b)
 		return err
 	}
-	if err := os.WriteFile(o.Out, b.Bytes(), 0o644); err != nil {
+	if err := os.WriteFile(o.Out, b, 0o644); err != nil {
 		return fmt.Errorf("table --out: %w", err)
 	}
 	return nil
