@@ -41,10 +41,10 @@ func ExclusionProbability(r, sigma, p float64) (float64, error) {
 // Grade is the strength of evidence a Bayes factor carries on Jeffreys'
 // scale: log10 B below 1/2 "barely worth mentioning", then "substantial",
 // "strong" (from 1), "very strong" (from 3/2) and "decisive" (from 2)
-// (Jeffreys 1961, Theory of Probability, 3rd ed., Appendix B; the
-// thresholds as tabulated in the statlect.com entry "Jeffreys' scale of
-// evidence"). The grade is for the model favoured: a negative ln B grades
-// the evidence for the reference model.
+// (Jeffreys 1939, Theory of Probability; the thresholds as the
+// statlect.com entry "Jeffreys' scale of evidence" tabulates Jeffreys'
+// original scale, a secondary source). The grade is for the model
+// favoured: a negative ln B grades the evidence for the reference model.
 func Grade(lnB float64) string {
 	l := math.Abs(lnB) / math.Ln10
 	switch {
