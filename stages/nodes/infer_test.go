@@ -1,8 +1,13 @@
 package nodes
 
 import (
+	"context"
+	"math"
 	"reflect"
 	"testing"
+
+	"github.com/inflatrace/inflatrace/stages/compare"
+	"github.com/inflatrace/inflatrace/stages/infer"
 )
 
 // TestInferParamsRoundTrip: an inference's parameters decode to the same
@@ -26,4 +31,38 @@ func TestInferParamsRoundTrip(t *testing.T) {
 			t.Errorf("round trip:\n got %+v\nwant %+v", got, s)
 		}
 	}
+}
+
+// TestStarobinskyNeedsStiffReheating: against ACT DR6 + Planck + DESI BAO
+// (P-ACT-LB: n_s = 0.9743 ± 0.0034, Louis et al. 2025, arXiv:2503.14452;
+// with BK18, r < 0.038 at 95%, Calabrese et al. 2025, arXiv:2503.14454),
+// the Starobinsky model needs a stiff reheating era: Drees & Xu 2025
+// (arXiv:2504.20757, abstract) find w_reh >~ 0.462 at 2 sigma, which
+// excludes w_reh = 0. Here: the 95% profile-likelihood lower bound on
+// w_reh (Delta chi^2 = 3.841) over w_reh in [0, 1] and T_reh from the BBN
+// bound to its maximum. Their predictions go beyond first-order slow
+// roll and their 2 sigma is their own reading of the data, so the bound
+// is compared to 0.03.
+func TestStarobinskyNeedsStiffReheating(t *testing.T) {
+	s := inferBench(true)
+	s.Params = []infer.Prior{{Name: "alpha", Kind: infer.Fixed, Value: 1}, {Name: "n", Kind: infer.Fixed, Value: 1}}
+	s.W = infer.Prior{Name: "w_reh", Kind: infer.Uniform, Lo: 0, Hi: 1}
+	s.Constraint = compare.Gaussian{Name: "p-act-lb-bk18", MeanNs: 0.9743, SigmaNs: 0.0034, SigmaR: 0.038 / compare.HalfNormal95}
+	params, err := InferParams(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	out, err := Infer{}.Run(context.Background(), params, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lo := out["w_reh:profile_lo95"].Float
+	if math.Abs(lo-0.462) > 0.03 {
+		t.Errorf("95%% profile lower bound on w_reh = %.4f, Drees & Xu 2025 find about 0.462", lo)
+	}
+	if out["w_reh:lo95"].Float <= 0 {
+		t.Errorf("the posterior's 95%% interval of w_reh reaches %g: w_reh = 0 not disfavoured", out["w_reh:lo95"].Float)
+	}
+	t.Logf("w_reh: profile 95%% lower bound %.4f, posterior median %.3f [%.3f, %.3f] (68%%); log10 T_reh profile 95%% upper %.2f",
+		lo, out["w_reh:median"].Float, out["w_reh:lo68"].Float, out["w_reh:hi68"].Float, out["log10_T_reh_GeV:profile_hi95"].Float)
 }
