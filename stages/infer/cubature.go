@@ -42,11 +42,17 @@ type Settings struct {
 	// Panels is the number of panels each dimension starts with
 	// (default 2).
 	Panels int
+	// Progress, when set, is told the number of evaluations so far after
+	// each round of refinement; Cancel, when set, stops the integration
+	// with its error when it returns one (checked between boxes).
+	Progress func(evals int)
+	Cancel   func() error
 }
 
 func (s *Settings) withDefaults() Settings {
 	out := Settings{Tol: 0.01, MaxEvals: 4_000_000, Panels: 2}
 	if s != nil {
+		out.Progress, out.Cancel = s.Progress, s.Cancel
 		if s.Tol > 0 {
 			out.Tol = s.Tol
 		}
@@ -130,6 +136,11 @@ func Integrate(f Integrand, d int, s *Settings) (*Result, error) {
 		if c, ok := cache[key]; ok {
 			return c, nil
 		}
+		if set.Cancel != nil {
+			if err := set.Cancel(); err != nil {
+				return nil, err
+			}
+		}
 		c, err := evalBox(f, lo, hi, &x, &wk, &wg)
 		if err != nil {
 			return nil, err
@@ -180,6 +191,9 @@ func Integrate(f Integrand, d int, s *Settings) (*Result, error) {
 				total += e
 				worst = math.Max(worst, e)
 			}
+		}
+		if set.Progress != nil {
+			set.Progress(evals)
 		}
 		res := &Result{LnZ: detmath.Log(z) + ref, LnZErr: total / z, Evals: evals, Dims: d, Panels: parts}
 		if total <= set.Tol*z || evals >= set.MaxEvals {

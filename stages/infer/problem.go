@@ -7,7 +7,6 @@ import (
 	"strconv"
 	"sync"
 
-	"github.com/inflatrace/inflatrace/stages/compare"
 	"github.com/inflatrace/inflatrace/stages/model"
 	"github.com/inflatrace/inflatrace/stages/num/detmath"
 	"github.com/inflatrace/inflatrace/stages/reheat"
@@ -84,7 +83,27 @@ type Problem struct {
 	TLoGeV  float64 // default reheat.DefaultBBNBoundGeV
 	As      float64 // scalar amplitude the potential is normalised to
 	History reheat.History
-	Like    compare.Constraint
+	Like    Likelihood
+}
+
+// Likelihood is what an inference needs of a constraint set: -2 ln of the
+// likelihood of (n_s, r) relative to its peak (compare.Constraint's
+// DeltaChi2).
+type Likelihood interface {
+	DeltaChi2(ns, r float64) float64
+}
+
+// Product is the likelihood of independent constraint sets: the product
+// of theirs (the sum of their Delta chi^2).
+type Product []Likelihood
+
+// DeltaChi2 implements Likelihood.
+func (p Product) DeltaChi2(ns, r float64) float64 {
+	var s float64
+	for _, l := range p {
+		s += l.DeltaChi2(ns, r)
+	}
+	return s
 }
 
 // Derived are the quantities every node records, in this order after the

@@ -35,7 +35,11 @@ const (
 	inferLogLo     = "log_lo:"
 	inferLogHi     = "log_hi:"
 	inferForecast  = "forecast:"
+	inferAnd       = "and_" // and_mean_n_s:NAME and the like: a further independent set
 )
+
+// andFields are the fields of a further independent constraint set.
+var andFields = []string{"mean_n_s", "sigma_n_s", "mean_r", "sigma_r", "rho"}
 
 // Infer is the inference stage.
 type Infer struct{}
@@ -60,7 +64,7 @@ var inferSpec = pipeline.Spec{
 		{Name: "T_reh_min", Kind: pipeline.KindFloat, Unit: pipeline.UnitGeV},
 		{Name: "tolerance", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
 	},
-	OpenParams: []string{inferFixed, inferUniformLo, inferUniformHi, inferLogLo, inferLogHi, inferForecast},
+	OpenParams: []string{inferFixed, inferUniformLo, inferUniformHi, inferLogLo, inferLogHi, inferForecast, inferAnd},
 }
 
 // Spec declares the stage.
@@ -75,8 +79,11 @@ type InferSpec struct {
 	As         float64
 	History    reheat.History
 	Constraint compare.Gaussian
-	Forecasts  []compare.Forecast
-	Tol        float64
+	// Also are further constraint sets the study declares independent of
+	// Constraint: the likelihood is the product of all.
+	Also      []compare.Gaussian
+	Forecasts []compare.Forecast
+	Tol       float64
 }
 
 // InferParams encodes an inference as a node's parameters.
@@ -106,6 +113,17 @@ func InferParams(s InferSpec) (pipeline.Values, error) {
 			vs[inferLogLo+p.Name], vs[inferLogHi+p.Name] = f(p.Lo, pipeline.UnitNone), f(p.Hi, pipeline.UnitNone)
 		}
 	}
+	for _, g := range s.Also {
+		if err := g.Check(); err != nil {
+			return nil, err
+		}
+		if strings.ContainsAny(g.Name, " \"") || g.Name == "" {
+			return nil, fmt.Errorf("constraint set %q: a name for a product holds no space or quote", g.Name)
+		}
+		for i, x := range []float64{g.MeanNs, g.SigmaNs, g.MeanR, g.SigmaR, g.Rho} {
+			vs[inferAnd+andFields[i]+":"+g.Name] = f(x, pipeline.UnitNone)
+		}
+	}
 	for _, fc := range s.Forecasts {
 		if strings.ContainsAny(fc.Name, " \"") {
 			return nil, fmt.Errorf("forecast %q: a name for inference holds no space or quote", fc.Name)
@@ -131,6 +149,7 @@ func inferFrom(params pipeline.Values) (InferSpec, error) {
 	s.As, s.TLoGeV, s.Tol = v[0], v[6], v[7]
 	s.History = reheat.History{PivotPerMpc: v[1], T0K: v[2], GS0: v[3], GReh: v[4], GSReh: v[5]}
 	priors := map[string]*infer.Prior{}
+	also := map[string]*compare.Gaussian{}
 	get := func(name string) *infer.Prior {
 		if p, ok := priors[name]; ok {
 			return p
@@ -159,7 +178,27 @@ func inferFrom(params pipeline.Values) (InferSpec, error) {
 			p.Kind, p.Hi = infer.LogUniform, x
 		case strings.HasPrefix(n, inferForecast):
 			s.Forecasts = append(s.Forecasts, compare.Forecast{Name: strings.TrimPrefix(n, inferForecast), SigmaR: x})
+		case strings.HasPrefix(n, inferAnd):
+			field, name, ok := strings.Cut(strings.TrimPrefix(n, inferAnd), ":")
+			i := slices.Index(andFields, field)
+			if !ok || i < 0 {
+				return s, fmt.Errorf("inference: unknown parameter %q", n)
+			}
+			g := also[name]
+			if g == nil {
+				g = &compare.Gaussian{Name: name}
+				also[name] = g
+			}
+			*[]*float64{&g.MeanNs, &g.SigmaNs, &g.MeanR, &g.SigmaR, &g.Rho}[i] = x
 		}
+	}
+	alsoNames := make([]string, 0, len(also))
+	for n := range also {
+		alsoNames = append(alsoNames, n)
+	}
+	slices.Sort(alsoNames)
+	for _, n := range alsoNames {
+		s.Also = append(s.Also, *also[n])
 	}
 	w, ok := priors["w_reh"]
 	if !ok {
@@ -183,17 +222,33 @@ func inferFrom(params pipeline.Values) (InferSpec, error) {
 var InferQuantities = []string{"N_star", "log10_T_reh_GeV", "N_reh", "n_s", "r"}
 
 // Run integrates the posterior and records its summaries.
-func (Infer) Run(_ context.Context, params pipeline.Values, _ []pipeline.Values) (pipeline.Values, error) {
+// A long inference reports its evaluations to the context's progress
+// starter (pipeline.WithProgress) and stops when the context is done.
+func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Values) (pipeline.Values, error) {
 	s, err := inferFrom(params)
 	if err != nil {
 		return nil, err
 	}
-	prob := infer.Problem{Family: s.Family, Params: s.Params, W: s.W, TLoGeV: s.TLoGeV, As: s.As, History: s.History, Like: s.Constraint}
+	var like infer.Likelihood = s.Constraint
+	if len(s.Also) > 0 {
+		p := infer.Product{s.Constraint}
+		for _, g := range s.Also {
+			p = append(p, g)
+		}
+		like = p
+	}
+	prob := infer.Problem{Family: s.Family, Params: s.Params, W: s.W, TLoGeV: s.TLoGeV, As: s.As, History: s.History, Like: like}
 	f, d, err := prob.Integrand()
 	if err != nil {
 		return nil, err
 	}
-	res, err := integrateForSummaries(f, d, s.Tol)
+	report, end := pipeline.Progress(ctx)
+	defer end()
+	set := infer.Settings{Tol: s.Tol, Cancel: ctx.Err}
+	if report != nil {
+		set.Progress = func(evals int) { report(int64(evals), summaryBudget) }
+	}
+	res, err := integrateForSummaries(f, d, set)
 	if err != nil {
 		return nil, err
 	}
@@ -277,12 +332,13 @@ func (Infer) Run(_ context.Context, params pipeline.Values, _ []pipeline.Values)
 // quantity's 68% and 95% interval ends have error estimates below a
 // fiftieth of its 68% width, so that the intervals, not only ln Z, are as
 // good as stated (deterministically: the same partitions every time).
-func integrateForSummaries(f infer.Integrand, d int, tol float64) (*infer.Result, error) {
+func integrateForSummaries(f infer.Integrand, d int, set infer.Settings) (*infer.Result, error) {
 	var res *infer.Result
 	for panels := 2; ; panels *= 2 {
-		r, err := infer.Integrate(f, d, &infer.Settings{Tol: tol, Panels: panels})
+		set.Panels = panels
+		r, err := infer.Integrate(f, d, &set)
 		if err != nil {
-			if res != nil {
+			if res != nil && (set.Cancel == nil || set.Cancel() == nil) {
 				return res, nil // the finer partition is beyond the budget: keep the last
 			}
 			return nil, err
@@ -300,11 +356,15 @@ func integrateForSummaries(f infer.Integrand, d int, tol float64) (*infer.Result
 				worst = math.Max(worst, e.Err/width)
 			}
 		}
-		if worst <= 0.02 || res.Evals*(1<<d) > 2_000_000 {
+		if worst <= 0.02 || res.Evals*(1<<d) > summaryBudget {
 			return res, nil
 		}
 	}
 }
+
+// summaryBudget bounds the evaluations integrateForSummaries spends on
+// refining the intervals.
+const summaryBudget = 2_000_000
 
 // putProfile records the 68% and 95% profile-likelihood intervals of g
 // (Delta chi^2 = 1 and 3.841, one parameter).

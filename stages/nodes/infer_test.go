@@ -6,6 +6,7 @@ import (
 	"reflect"
 	"testing"
 
+	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/compare"
 	"github.com/inflatrace/inflatrace/stages/infer"
 )
@@ -65,4 +66,38 @@ func TestStarobinskyNeedsStiffReheating(t *testing.T) {
 	}
 	t.Logf("w_reh: profile 95%% lower bound %.4f, posterior median %.3f [%.3f, %.3f] (68%%); log10 T_reh profile 95%% upper %.2f",
 		lo, out["w_reh:median"].Float, out["w_reh:lo68"].Float, out["w_reh:hi68"].Float, out["log10_T_reh_GeV:profile_hi95"].Float)
+}
+
+// TestInferProductOfSets: the product of a set's likelihood with itself
+// is the likelihood of the same set with every sigma divided by sqrt 2
+// (Delta chi^2 adds: 2 (x/sigma)^2 = (x/(sigma/sqrt 2))^2), so both give
+// the same ln Z; and a product's parameters round-trip.
+func TestInferProductOfSets(t *testing.T) {
+	s := inferBench(false)
+	s.Forecasts = nil
+	twice := s
+	g := s.Constraint
+	g.Name = "copy"
+	twice.Also = []compare.Gaussian{g}
+	narrow := s
+	narrow.Constraint.SigmaNs /= math.Sqrt2
+	narrow.Constraint.SigmaR /= math.Sqrt2
+	run := func(sp InferSpec) pipeline.Values {
+		vs, err := InferParams(sp)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if back, err := inferFrom(vs); err != nil || !reflect.DeepEqual(back, sp) {
+			t.Fatalf("round trip: %v\n got %+v\nwant %+v", err, back, sp)
+		}
+		out, err := Infer{}.Run(context.Background(), vs, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return out
+	}
+	a, b := run(twice), run(narrow)
+	if d := math.Abs(a["ln_Z"].Float - b["ln_Z"].Float); d > 1e-9 {
+		t.Errorf("ln Z of the product %.10f, of the narrower set %.10f", a["ln_Z"].Float, b["ln_Z"].Float)
+	}
 }

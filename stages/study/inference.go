@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 	"github.com/inflatrace/inflatrace/stages/compare"
@@ -23,13 +24,29 @@ type Inference struct {
 	W           infer.Prior
 	TLoGeV      float64
 	Constraints []compare.Gaussian
+	// Independent: the sets are independent, and one inference takes the
+	// product of their likelihoods (else one inference per set).
+	Independent bool
 	Reference   bool
 	Tol         float64
 }
 
+// SetNames are the constraint sets each of the inference's results is
+// inferred against: one per set, or their product ("A × B").
+func (inf Inference) SetNames() []string {
+	var names []string
+	for _, g := range inf.Constraints {
+		names = append(names, g.Name)
+	}
+	if inf.Independent {
+		return []string{strings.Join(names, " × ")}
+	}
+	return names
+}
+
 // inferenceKeys are the keys an [[inference]] table may hold besides the
 // family's parameters.
-var inferenceKeys = []string{"label", "family", "w_reh", "T_reh_min_GeV", "constraint", "reference", "tolerance"}
+var inferenceKeys = []string{"label", "family", "w_reh", "T_reh_min_GeV", "constraint", "independent", "reference", "tolerance"}
 
 // inferences reads the [[inference]] tables against the study's
 // constraint sets.
@@ -129,6 +146,16 @@ func (c *parser) inferences(tables []map[string]any, sets []compare.Gaussian) ([
 		if len(inf.Constraints) == 0 {
 			return nil, c.errAt(path, "no Gaussian constraint set to infer against: add a [[constraint]]")
 		}
+		if v, ok := t["independent"]; ok {
+			b, ok := v.(bool)
+			if !ok {
+				return nil, c.errAt(path+".independent", "want true or false")
+			}
+			if b && len(inf.Constraints) < 2 {
+				return nil, c.errAt(path+".independent", "independent = true multiplies the likelihoods of two or more constraint sets; this inference names one")
+			}
+			inf.Independent = b
+		}
 		out = append(out, inf)
 	}
 	return out, nil
@@ -200,10 +227,22 @@ func (s *Study) InferenceSpecs() ([]string, []nodes.InferSpec) {
 	var labels []string
 	var out []nodes.InferSpec
 	for _, inf := range s.Inferences {
+		spec := func(g compare.Gaussian) nodes.InferSpec {
+			return nodes.InferSpec{Family: inf.Family, Params: inf.Params, W: inf.W, TLoGeV: inf.TLoGeV, As: s.As,
+				History: reheat.DefaultHistory(), Constraint: g, Forecasts: s.Forecasts, Tol: inf.Tol}
+		}
+		if inf.Independent {
+			sp := spec(inf.Constraints[0])
+			for _, g := range inf.Constraints[1:] {
+				sp.Also = append(sp.Also, compare.Gaussian{Name: g.Name, MeanNs: g.MeanNs, SigmaNs: g.SigmaNs, MeanR: g.MeanR, SigmaR: g.SigmaR, Rho: g.Rho})
+			}
+			labels = append(labels, inf.Label+" | "+inf.SetNames()[0])
+			out = append(out, sp)
+			continue
+		}
 		for _, g := range inf.Constraints {
 			labels = append(labels, inf.Label+" | "+g.Name)
-			out = append(out, nodes.InferSpec{Family: inf.Family, Params: inf.Params, W: inf.W, TLoGeV: inf.TLoGeV, As: s.As,
-				History: reheat.DefaultHistory(), Constraint: g, Forecasts: s.Forecasts, Tol: inf.Tol})
+			out = append(out, spec(g))
 		}
 	}
 	return labels, out

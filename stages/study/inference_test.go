@@ -80,3 +80,20 @@ func TestInferenceErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestInferenceIndependentSets: independent = true makes one inference
+// against the product of the sets' likelihoods.
+func TestInferenceIndependentSets(t *testing.T) {
+	text := "[[constraint]]\nuse = \"cmb-combined-2025\"\n\n[[constraint]]\nuse = \"planck2018-bk18\"\n\n[[inference]]\nfamily = \"e-model\"\nalpha = 1\nindependent = true\n"
+	s, err := Parse("s.toml", []byte(text), ".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	labels, specs := s.InferenceSpecs()
+	if len(specs) != 1 || len(specs[0].Also) != 1 || specs[0].Also[0].Name != "planck2018-bk18" || labels[0] != "e-model | cmb-combined-2025 × planck2018-bk18" {
+		t.Errorf("independent sets: %v %+v", labels, specs)
+	}
+	if _, err := Parse("s.toml", []byte(inferHead+"[[inference]]\nfamily = \"e-model\"\nalpha = 1\nindependent = true\n"), "."); err == nil || !strings.Contains(err.Error(), "two or more") {
+		t.Errorf("independent with one set: %v", err)
+	}
+}

@@ -55,13 +55,13 @@ func Rows(s *study.Study, outputs []pipeline.Values) []Row {
 		if inf.W.Kind != infer.Fixed {
 			free = append(free, "w_reh")
 		}
-		for _, g := range inf.Constraints {
+		for _, set := range inf.SetNames() {
 			vs := outputs[i]
 			i++
 			if vs == nil {
 				continue
 			}
-			r := Row{Label: inf.Label, Family: inf.Family, Constraint: g.Name, Reference: inf.Reference, Free: free, Values: map[string]float64{}}
+			r := Row{Label: inf.Label, Family: inf.Family, Constraint: set, Reference: inf.Reference, Free: free, Values: map[string]float64{}}
 			for n, v := range vs {
 				if v.Kind == pipeline.KindFloat {
 					r.Values[n] = v.Float
