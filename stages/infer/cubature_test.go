@@ -242,3 +242,41 @@ func TestMarginalTwoParameters(t *testing.T) {
 		}
 	}
 }
+
+// TestMarginalDensity: the interpolated marginal density of theta is the
+// truncated normal's, and the smooth density of the nodes integrates to
+// one and peaks near it (a kernel estimate is broadened by its bandwidth).
+func TestMarginalDensity(t *testing.T) {
+	m := linearGaussian{a: 0, b: 2, c0: 0.95, c1: 0.01, mu: 0.965, sigma: 0.004}
+	res, err := Integrate(m.integrand(), 1, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mean, sd := (m.mu-m.c0)/m.c1, m.sigma/m.c1
+	Phi := func(x float64) float64 { return 0.5 * math.Erfc(-x/math.Sqrt2) }
+	norm := Phi((m.b-mean)/sd) - Phi((m.a-mean)/sd)
+	us := []float64{0.25, 0.5, 0.75, 0.9}
+	got, err := res.MarginalDensity(0, us)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for j, u := range us {
+		th := m.theta(u)
+		want := math.Exp(-0.5*math.Pow((th-mean)/sd, 2)) / (sd * math.Sqrt(2*math.Pi) * norm) * (m.b - m.a) // per unit u
+		if math.Abs(got[j]-want) > 1e-3*want {
+			t.Errorf("density at u = %g: %.6g, truncated normal %.6g", u, got[j], want)
+		}
+	}
+	xs := make([]float64, 401)
+	for i := range xs {
+		xs[i] = -1 + float64(i)/100 // wider than the prior: the kernels' tails
+	}
+	d := res.Density(func(i int) float64 { return res.Derived[i][0] }, xs)
+	var total float64
+	for i := range d {
+		total += d[i] * 0.01
+	}
+	if math.Abs(total-1) > 1e-3 {
+		t.Errorf("the smooth density integrates to %.4f", total)
+	}
+}

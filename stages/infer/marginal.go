@@ -172,3 +172,28 @@ func (r *Result) MarginalQuantiles(k int, qs ...float64) ([]Estimate, error) {
 	}
 	return out, nil
 }
+
+// MarginalDensity is the posterior density of coordinate k at each of us
+// (prior coordinates in [0, 1], per unit of u), from the interpolated
+// marginal, normalised to integrate to 1 over [0, 1].
+func (r *Result) MarginalDensity(k int, us []float64) ([]float64, error) {
+	if k < 0 || k >= r.Dims {
+		return nil, fmt.Errorf("infer: coordinate %d of a %d-dimensional cube", k, r.Dims)
+	}
+	ms := r.marginal(k, false)
+	var total float64
+	for _, pm := range ms {
+		total += pm.mass
+	}
+	out := make([]float64, len(us))
+	for j, u := range us {
+		for i := range ms {
+			pm := &ms[i]
+			if u >= pm.a && (u < pm.b || (i == len(ms)-1 && u <= pm.b)) {
+				out[j] = math.Max(0, pm.at(u)) / total
+				break
+			}
+		}
+	}
+	return out, nil
+}

@@ -22,7 +22,7 @@ const InferStage = "infer"
 
 // InferVersion is the inference stage's version (bump it when its
 // numerics or outputs change).
-const InferVersion = 1
+const InferVersion = 2 // 2: densities for figures (pdf:NAME:x|y:NN)
 
 // Parameter prefixes of an inference node: a family parameter is fixed
 // ("fixed:n"), uniform ("uniform_lo:alpha", "uniform_hi:alpha") or
@@ -303,6 +303,51 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 			return nil, err
 		}
 	}
+	// Densities for figures, on pdfPoints points: each free parameter's
+	// marginal (per unit of the parameter, or of ln of it for a
+	// log-uniform prior), and smooth densities of the derived quantities
+	// between their 0.1% and 99.9% quantiles (r as log10 r).
+	for k, p := range free {
+		us := make([]float64, pdfPoints)
+		for j := range us {
+			us[j] = float64(j) / float64(pdfPoints-1)
+		}
+		ys, err := res.MarginalDensity(k, us)
+		if err != nil {
+			return nil, err
+		}
+		scale := p.Hi - p.Lo
+		if p.Kind == infer.LogUniform {
+			scale = math.Log(p.Hi / p.Lo)
+		}
+		xs := make([]float64, len(us))
+		for j, u := range us {
+			xs[j], ys[j] = p.At(u), ys[j]/scale
+		}
+		putPDF(out, "param:"+p.Name, xs, ys)
+	}
+	for j, name := range derived {
+		if name == "w_reh" && s.W.Kind == infer.Fixed {
+			continue
+		}
+		g := func(i int) float64 { return res.Derived[i][base+j] }
+		if name == "r" {
+			name = "log10_r"
+			g = func(i int) float64 { return math.Log10(res.Derived[i][base+j]) }
+		}
+		q := res.Quantiles(g, 0.001, 0.999)
+		lo, hi := q[0].Value, q[1].Value
+		if !(hi > lo) {
+			continue
+		}
+		// A tenth of the range more on each side, for the kernels' tails.
+		lo, hi = lo-0.1*(hi-lo), hi+0.1*(hi-lo)
+		xs := make([]float64, pdfPoints)
+		for i := range xs {
+			xs[i] = lo + float64(i)*(hi-lo)/float64(pdfPoints-1)
+		}
+		putPDF(out, name, xs, res.Density(g, xs))
+	}
 	rIndex := base + slices.Index(derived, "r")
 	for _, fc := range s.Forecasts {
 		det, err := res.Probability(func(i int) float64 {
@@ -359,6 +404,29 @@ func integrateForSummaries(f infer.Integrand, d int, set infer.Settings) (*infer
 		if worst <= 0.02 || res.Evals*(1<<d) > summaryBudget {
 			return res, nil
 		}
+	}
+}
+
+// pdfPoints is the number of points of each recorded density.
+const pdfPoints = 41
+
+// putPDF records a density as pdf:NAME:x:NN and pdf:NAME:y:NN.
+func putPDF(out pipeline.Values, name string, xs, ys []float64) {
+	for i := range xs {
+		out[fmt.Sprintf("pdf:%s:x:%02d", name, i)] = pipeline.Float(xs[i], pipeline.UnitNone)
+		out[fmt.Sprintf("pdf:%s:y:%02d", name, i)] = pipeline.Float(ys[i], pipeline.UnitNone)
+	}
+}
+
+// PDF reads a recorded density back (pdf:NAME:x:NN, pdf:NAME:y:NN).
+func PDF(vs pipeline.Values, name string) (xs, ys []float64, ok bool) {
+	for i := 0; ; i++ {
+		x, okx := vs[fmt.Sprintf("pdf:%s:x:%02d", name, i)]
+		y, oky := vs[fmt.Sprintf("pdf:%s:y:%02d", name, i)]
+		if !okx || !oky {
+			return xs, ys, len(xs) > 1
+		}
+		xs, ys = append(xs, x.Float), append(ys, y.Float)
 	}
 }
 

@@ -388,3 +388,16 @@ func Recorded(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) (rows []
 	}
 	return Rows(s, outputs), true, nil
 }
+
+// PDF is the recorded density of a quantity (nodes.PDF): its points and
+// densities, ok when recorded.
+func (r Row) PDF(name string) (xs, ys []float64, ok bool) {
+	for i := 0; ; i++ {
+		x, okx := r.Values[fmt.Sprintf("pdf:%s:x:%02d", name, i)]
+		y, oky := r.Values[fmt.Sprintf("pdf:%s:y:%02d", name, i)]
+		if !okx || !oky {
+			return xs, ys, len(xs) > 2
+		}
+		xs, ys = append(xs, x), append(ys, y)
+	}
+}

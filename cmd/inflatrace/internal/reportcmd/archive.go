@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/figures"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/infertable"
 	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -27,7 +28,14 @@ func ArchiveExtra(l func() (*ledger.Ledger, error)) func(ctx context.Context, di
 			return err
 		}
 		if ok {
-			return archiveInferenceTables(dir, run.ID, rows)
+			if err := archiveInferenceTables(dir, run.ID, rows); err != nil {
+				return err
+			}
+			built, err := inferenceFigures(run, rows)
+			if err != nil {
+				return err
+			}
+			return saveBuilt(filepath.Join(dir, "figures"), built)
 		}
 		if err := archiveTables(dir, results); err != nil {
 			return err
@@ -46,6 +54,21 @@ func archiveInferenceTables(dir string, run pipeline.RunID, rows []infertable.Ro
 		}
 		if err := os.WriteFile(filepath.Join(dir, t.name), b.Bytes(), 0o644); err != nil {
 			return err
+		}
+	}
+	return nil
+}
+
+// saveBuilt writes figures into dir in every format.
+func saveBuilt(dir string, built []Built) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return err
+	}
+	for _, format := range figures.Formats {
+		for _, b := range built {
+			if err := figures.Save(b.Figure, filepath.Join(dir, b.Name+"."+format)); err != nil {
+				return err
+			}
 		}
 	}
 	return nil

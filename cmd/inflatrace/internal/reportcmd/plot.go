@@ -16,6 +16,7 @@ import (
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/figures"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/infertable"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tables"
 	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/pipeline"
@@ -116,6 +117,26 @@ func Plot(ctx context.Context, o *PlotOptions) error {
 	run, err := l.Run(ctx, id)
 	if err != nil {
 		return err
+	}
+	if rows, ok, err := infertable.Recorded(ctx, l, id); err != nil {
+		return err
+	} else if ok {
+		// A run of inferences: its posterior densities.
+		built, err := inferenceFigures(run, rows)
+		if err != nil {
+			return err
+		}
+		if err := os.MkdirAll(o.Out, 0o755); err != nil {
+			return err
+		}
+		for _, b := range built {
+			path := filepath.Join(o.Out, b.Name+"."+fo.Format)
+			if err := figures.Save(b.Figure, path); err != nil {
+				return err
+			}
+			fmt.Fprintf(o.Env.Stderr, "wrote %s\n", path)
+		}
+		return nil
 	}
 	// The figures draw predictions and bands; the comparison nodes'
 	// figures are not decoded (the constraint sets come from their

@@ -3,6 +3,8 @@ package root
 import (
 	"encoding/json"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 )
@@ -110,6 +112,20 @@ func TestInferRecordsAndReuses(t *testing.T) {
 		if out, errs, code := h.run("infer", p, "--format", f); code != 0 || !strings.Contains(out, "E-model") {
 			t.Errorf("--format %s: exit %d: %s%s", f, code, out, errs)
 		}
+	}
+	// Figures from the ledger: a posterior density per quantity.
+	figs := filepath.Join(h.dir, "figs")
+	if _, errs, code := h.run("plot", b.Run, "--out", figs); code != 0 {
+		t.Fatalf("plot of an inference run: exit %d: %s", code, errs)
+	}
+	for _, name := range []string{"posterior-alpha.pdf", "posterior-N_star.pdf", "posterior-log10_T_reh_GeV.pdf", "posterior-log10_r.pdf"} {
+		if st, err := os.Stat(filepath.Join(figs, name)); err != nil || st.Size() < 1000 {
+			t.Errorf("plot wrote no %s: %v", name, err)
+		}
+	}
+	// table RUN writes the inference table, not a prediction table.
+	if out, errs, code := h.run("table", b.Run, "--format", "markdown"); code != 0 || !strings.Contains(out, "ln B") {
+		t.Errorf("table of an inference run: exit %d: %s%s", code, out, errs)
 	}
 	if _, errs, code := h.run("infer", p, "--format", "pdf"); code != 2 || !strings.Contains(errs, "--format") {
 		t.Errorf("--format pdf: exit %d: %s", code, errs)
