@@ -1,8 +1,8 @@
 #!/usr/bin/env bash
 # .ci/builds.sh: the same numbers on every build (issue: bit-identical
 # outputs). Compares, bit for bit, the output hashes of the demo, a
-# reheating study (every history, a sample-based constraint, a forecast)
-# and an exact-method study between
+# reheating study (every history, a sample-based constraint, a forecast),
+# an exact-method study and (amd64 only) a study of inferences between
 #   - amd64 GOAMD64=v1 (the golden, testdata/golden/build-identity.txt),
 #   - amd64 GOAMD64=v3, where gc fuses multiply-adds,
 #   - arm64, which fuses by default, run under qemu-user (Debian's
@@ -39,5 +39,9 @@ for study in configs/demo.toml testdata/configs/build-reheating.toml testdata/co
 	"$bin/inflatrace-v3" --ledger "$bin/v3.db" run "$study" > "$bin/v3.tsv"
 	cmp "$bin/v1.tsv" "$bin/v3.tsv"
 done
+# Inference: every recorded number, exact (csv), and the nodes merged below.
+"$bin/inflatrace-v1" --ledger "$bin/v1.db" infer testdata/configs/build-infer.toml --format csv > "$bin/v1.csv"
+"$bin/inflatrace-v3" --ledger "$bin/v3.db" infer testdata/configs/build-infer.toml --format csv > "$bin/v3.csv"
+cmp "$bin/v1.csv" "$bin/v3.csv"
 "$bin/inflatrace-v1" --ledger "$bin/v1.db" merge "$bin/v3.db"
 echo "builds: outputs identical on amd64 v1, amd64 v3 and arm64"

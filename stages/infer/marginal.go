@@ -57,7 +57,7 @@ func (r *Result) marginal(k int, gauss bool) []panelMarginal {
 	out := make([]panelMarginal, np)
 	for p := range out {
 		a, b := r.Panels[k][p], r.Panels[k][p+1]
-		h, c := 0.5*(b-a), 0.5*(a+b)
+		h, c := float64(0.5*(b-a)), float64(0.5*(a+b))
 		pm := panelMarginal{a: a, b: b}
 		for j := 0; j < 15; j++ {
 			if gauss && wg[j] == 0 {
@@ -67,7 +67,7 @@ func (r *Result) marginal(k int, gauss bool) []panelMarginal {
 			if gauss {
 				w = wg[j]
 			}
-			pm.x = append(pm.x, c+h*x[j])
+			pm.x = append(pm.x, c+float64(h*x[j]))
 			pm.m = append(pm.m, dens[p][j])
 			pm.weight = append(pm.weight, h*w)
 			pm.mass += float64(h * w * dens[p][j])
@@ -113,7 +113,7 @@ func (pm *panelMarginal) at(t float64) float64 {
 // to rounding).
 func (pm *panelMarginal) cdf(t float64) float64 {
 	x, wk, _ := num.KronrodRule15()
-	h, c := 0.5*(t-pm.a), 0.5*(t+pm.a)
+	h, c := float64(0.5*(t-pm.a)), float64(0.5*(t+pm.a))
 	var s float64
 	for j := range x {
 		s += float64(wk[j] * pm.at(c+float64(h*x[j])))

@@ -90,7 +90,7 @@ func quantiles(vals, p []float64, qs []float64) []float64 {
 			m += p[order[j]]
 		}
 		xs = append(xs, v)
-		cs = append(cs, cum+0.5*m)
+		cs = append(cs, cum+float64(0.5*m))
 		cum += m
 	}
 	out := make([]float64, len(qs))
@@ -105,7 +105,7 @@ func quantiles(vals, p []float64, qs []float64) []float64 {
 			out[j] = xs[len(xs)-1]
 		default:
 			t := (q - cs[i-1]) / (cs[i] - cs[i-1])
-			out[j] = xs[i-1] + t*(xs[i]-xs[i-1])
+			out[j] = xs[i-1] + float64(t*(xs[i]-xs[i-1]))
 		}
 	}
 	return out
@@ -142,7 +142,7 @@ func (r *Result) Profile(g func(i int) float64, delta float64) (Interval, error)
 	in := math.Inf(1)
 	inHi := math.Inf(-1)
 	for i, l := range r.LnF {
-		if l >= top-delta/2 {
+		if l >= top-float64(delta/2) {
 			v := g(i)
 			in, inHi = math.Min(in, v), math.Max(inHi, v)
 		}
@@ -150,7 +150,7 @@ func (r *Result) Profile(g func(i int) float64, delta float64) (Interval, error)
 	// The nearest values outside, for the resolution.
 	below, above := math.Inf(-1), math.Inf(1)
 	for i, l := range r.LnF {
-		if l < top-delta/2 {
+		if l < top-float64(delta/2) {
 			v := g(i)
 			if v < in {
 				below = math.Max(below, v)
@@ -202,12 +202,12 @@ func (r *Result) Density(g func(i int) float64, xs []float64) []float64 {
 	for i, pi := range p {
 		if pi > 0 {
 			vals[i] = g(i)
-			m += pi * vals[i]
-			m2 += pi * vals[i] * vals[i]
-			s2 += pi * pi
+			m += float64(pi * vals[i])
+			m2 += float64(float64(pi*vals[i]) * vals[i])
+			s2 += float64(pi * pi)
 		}
 	}
-	sd := math.Sqrt(math.Max(0, m2-m*m))
+	sd := math.Sqrt(math.Max(0, m2-float64(m*m)))
 	out := make([]float64, len(xs))
 	if !(sd > 0) || !(s2 > 0) {
 		return out

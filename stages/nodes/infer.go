@@ -341,7 +341,8 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 			continue
 		}
 		// A tenth of the range more on each side, for the kernels' tails.
-		lo, hi = lo-0.1*(hi-lo), hi+0.1*(hi-lo)
+		pad := float64(0.1 * (hi - lo))
+		lo, hi = lo-pad, hi+pad
 		xs := make([]float64, pdfPoints)
 		for i := range xs {
 			xs[i] = lo + float64(i)*(hi-lo)/float64(pdfPoints-1)
