@@ -280,3 +280,44 @@ func TestMarginalDensity(t *testing.T) {
 		t.Errorf("the smooth density integrates to %.4f", total)
 	}
 }
+
+// TestDensity2: the joint density of a separable two-parameter model
+// integrates to one on a grid wider than its posterior, and its mean
+// along each axis is the product's (the truncated normals' means, to a
+// fiftieth of their deviations: the kernel is symmetric).
+func TestDensity2(t *testing.T) {
+	mA := linearGaussian{a: 0, b: 1, c0: 0.95, c1: 0.03, mu: 0.9632, sigma: 0.0032}
+	mB := linearGaussian{a: 0, b: 1, c0: 0, c1: 0.05, mu: 0.02, sigma: 0.005}
+	sep := func(u []float64) (float64, []float64, error) {
+		return mA.lnL(mA.theta(u[0])) + mB.lnL(mB.theta(u[1])), nil, nil
+	}
+	res, err := Integrate(sep, 2, &Settings{Tol: 1e-4})
+	if err != nil {
+		t.Fatal(err)
+	}
+	xs, ys := make([]float64, 61), make([]float64, 61)
+	for i := range xs {
+		xs[i], ys[i] = -0.5+2*float64(i)/60, -0.5+2*float64(i)/60
+	}
+	z, err := res.Density2(func(i int) float64 { return res.U[2*i] }, func(i int) float64 { return res.U[2*i+1] }, xs, ys)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var total, mx, my float64
+	d := (2.0 / 60) * (2.0 / 60)
+	for i := range xs {
+		for j := range ys {
+			total += z[i][j] * d
+			mx += z[i][j] * d * xs[i]
+			my += z[i][j] * d * ys[j]
+		}
+	}
+	if math.Abs(total-1) > 1e-9 {
+		t.Errorf("the joint density integrates to %.6f", total)
+	}
+	wantX := res.Mean(func(i int) float64 { return res.U[2*i] }).Value
+	wantY := res.Mean(func(i int) float64 { return res.U[2*i+1] }).Value
+	if math.Abs(mx-wantX) > 0.02*mA.sigma/mA.c1 || math.Abs(my-wantY) > 0.02*mB.sigma/mB.c1 {
+		t.Errorf("means on the grid (%.4f, %.4f), posterior means (%.4f, %.4f)", mx, my, wantX, wantY)
+	}
+}

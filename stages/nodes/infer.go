@@ -22,7 +22,7 @@ const InferStage = "infer"
 
 // InferVersion is the inference stage's version (bump it when its
 // numerics or outputs change).
-const InferVersion = 2 // 2: densities for figures (pdf:NAME:x|y:NN)
+const InferVersion = 2 // 2: densities for figures (pdf:NAME:x|y:NN, pdf2:NAME:x|y|z)
 
 // Parameter prefixes of an inference node: a family parameter is fixed
 // ("fixed:n"), uniform ("uniform_lo:alpha", "uniform_hi:alpha") or
@@ -349,6 +349,35 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 		}
 		putPDF(out, name, xs, res.Density(g, xs))
 	}
+	// Joint densities with log10 T_reh, on pdf2Points x pdf2Points: each
+	// free parameter's (on its prior coordinate, recorded as its values)
+	// and w_reh's when it is free.
+	tIndex := base + slices.Index(derived, "log10_T_reh_GeV")
+	tq := res.Quantiles(func(i int) float64 { return res.Derived[i][tIndex] }, 0.001, 0.999)
+	if tlo, thi := tq[0].Value, tq[1].Value; thi > tlo {
+		pad := float64(0.1 * (thi - tlo))
+		ys := grid(tlo-pad, thi+pad, pdf2Points)
+		us := grid(0, 1, pdf2Points)
+		coords := free
+		if s.W.Kind != infer.Fixed {
+			coords = append(slices.Clone(free), s.W)
+		}
+		for k, p := range coords {
+			z, err := res.Density2(func(i int) float64 { return res.U[i*d+k] }, func(i int) float64 { return res.Derived[i][tIndex] }, us, ys)
+			if err != nil {
+				return nil, err
+			}
+			xs := make([]float64, len(us))
+			for i, u := range us {
+				xs[i] = p.At(u)
+			}
+			name := "param:" + p.Name
+			if p.Name == "w_reh" {
+				name = "w_reh"
+			}
+			putPDF2(out, name, xs, ys, z)
+		}
+	}
 	rIndex := base + slices.Index(derived, "r")
 	for _, fc := range s.Forecasts {
 		det, err := res.Probability(func(i int) float64 {
@@ -416,6 +445,35 @@ func putPDF(out pipeline.Values, name string, xs, ys []float64) {
 	for i := range xs {
 		out[fmt.Sprintf("pdf:%s:x:%02d", name, i)] = pipeline.Float(xs[i], pipeline.UnitNone)
 		out[fmt.Sprintf("pdf:%s:y:%02d", name, i)] = pipeline.Float(ys[i], pipeline.UnitNone)
+	}
+}
+
+// pdf2Points is the number of points along each axis of a recorded joint
+// density.
+const pdf2Points = 31
+
+// grid is n evenly spaced points from lo to hi.
+func grid(lo, hi float64, n int) []float64 {
+	out := make([]float64, n)
+	for i := range out {
+		out[i] = lo + float64(i)*(hi-lo)/float64(n-1)
+	}
+	return out
+}
+
+// putPDF2 records a joint density with log10 T_reh as pdf2:NAME:x:NN,
+// pdf2:NAME:y:NN and pdf2:NAME:z:NN:MM.
+func putPDF2(out pipeline.Values, name string, xs, ys []float64, z [][]float64) {
+	for i := range xs {
+		out[fmt.Sprintf("pdf2:%s:x:%02d", name, i)] = pipeline.Float(xs[i], pipeline.UnitNone)
+	}
+	for j := range ys {
+		out[fmt.Sprintf("pdf2:%s:y:%02d", name, j)] = pipeline.Float(ys[j], pipeline.UnitNone)
+	}
+	for i := range z {
+		for j := range z[i] {
+			out[fmt.Sprintf("pdf2:%s:z:%02d:%02d", name, i, j)] = pipeline.Float(z[i][j], pipeline.UnitNone)
+		}
 	}
 }
 

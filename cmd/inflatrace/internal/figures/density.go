@@ -13,6 +13,7 @@ import (
 type DensityCurve struct {
 	Label string // key text (typeset markup)
 	X, Y  []float64
+	Style int // line style index (curveStyle): the same inference, the same line in every figure
 }
 
 // DensitySpec describes a figure of posterior densities of one quantity,
@@ -48,7 +49,7 @@ func Densities(spec DensitySpec) (*Figure, error) {
 	p := newPlot(spec.Title, spec.XLabel, ylabel)
 	f := &Figure{Plot: p}
 	var ext extent
-	for i, cv := range spec.Curves {
+	for _, cv := range spec.Curves {
 		if len(cv.X) != len(cv.Y) || len(cv.X) < 2 {
 			return nil, fmt.Errorf("figures: density %q: %d x values for %d densities", cv.Label, len(cv.X), len(cv.Y))
 		}
@@ -64,7 +65,7 @@ func Densities(spec DensitySpec) (*Figure, error) {
 			}
 			ext.add(cv.X[k], pts[k].Y)
 		}
-		if err := f.addCurve(cv.Label, pts, nil, MarkerNone, true, i, nil); err != nil {
+		if err := f.addCurve(cv.Label, pts, nil, MarkerNone, true, cv.Style, nil); err != nil {
 			return nil, err
 		}
 	}

@@ -401,3 +401,38 @@ func (r Row) PDF(name string) (xs, ys []float64, ok bool) {
 		xs, ys = append(xs, x), append(ys, y)
 	}
 }
+
+// PDF2 is the recorded joint density of a quantity with log10 T_reh
+// (pdf2:NAME:...): the quantity's values, the log10 T_reh values and the
+// density z[i][j] at (x[i], y[j]).
+func (r Row) PDF2(name string) (xs, ys []float64, z [][]float64, ok bool) {
+	for i := 0; ; i++ {
+		x, okx := r.Values[fmt.Sprintf("pdf2:%s:x:%02d", name, i)]
+		if !okx {
+			break
+		}
+		xs = append(xs, x)
+	}
+	for j := 0; ; j++ {
+		y, oky := r.Values[fmt.Sprintf("pdf2:%s:y:%02d", name, j)]
+		if !oky {
+			break
+		}
+		ys = append(ys, y)
+	}
+	if len(xs) < 3 || len(ys) < 3 {
+		return nil, nil, nil, false
+	}
+	z = make([][]float64, len(xs))
+	for i := range xs {
+		z[i] = make([]float64, len(ys))
+		for j := range ys {
+			v, okz := r.Values[fmt.Sprintf("pdf2:%s:z:%02d:%02d", name, i, j)]
+			if !okz {
+				return nil, nil, nil, false
+			}
+			z[i][j] = v
+		}
+	}
+	return xs, ys, z, true
+}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 
@@ -80,12 +81,12 @@ func inferenceFigures(run ledger.RunDetail, rows []infertable.Row) ([]Built, err
 	for _, q := range qs {
 		spec := figures.DensitySpec{XLabel: q.label, XScale: figures.Linear}
 		logSpaced := true
-		for _, r := range rows {
+		for ri, r := range rows {
 			xs, ys, ok := r.PDF(q.key)
 			if !ok {
 				continue
 			}
-			spec.Curves = append(spec.Curves, figures.DensityCurve{Label: label(r), X: xs, Y: ys})
+			spec.Curves = append(spec.Curves, figures.DensityCurve{Label: label(r), X: xs, Y: ys, Style: ri})
 			if !(xs[0] > 0) || math.Abs(xs[2]/xs[1]-xs[1]/xs[0]) > 1e-6*xs[1]/xs[0] {
 				logSpaced = false
 			}
@@ -107,6 +108,43 @@ func inferenceFigures(run ledger.RunDetail, rows []infertable.Row) ([]Built, err
 			return nil, fmt.Errorf("%s: %w", q.file, err)
 		}
 		out = append(out, Built{Name: q.file, Figure: f})
+	}
+	// Joint posteriors with log10 T_reh.
+	pairs := append([]string(nil), params...)
+	for _, r := range rows {
+		if slices.Contains(r.Free, "w_reh") {
+			pairs = append(pairs, "w_reh")
+			break
+		}
+	}
+	for _, p := range pairs {
+		key, xlabel := "param:"+p, paramLabel(p)
+		if p == "w_reh" {
+			key, xlabel = "w_reh", `$w_{reh}$`
+		}
+		spec := figures.Density2Spec{XLabel: xlabel, YLabel: `$log_{10}(T_{reh}$/GeV$)$`, XScale: figures.Linear}
+		logSpaced := true
+		for ri, r := range rows {
+			xs, ys, z, ok := r.PDF2(key)
+			if !ok {
+				continue
+			}
+			spec.Curves = append(spec.Curves, figures.Density2Curve{Label: label(r), X: xs, Y: ys, Z: z, Style: ri})
+			if !(xs[0] > 0) || math.Abs(xs[2]/xs[1]-xs[1]/xs[0]) > 1e-6*xs[1]/xs[0] {
+				logSpaced = false
+			}
+		}
+		if len(spec.Curves) == 0 {
+			continue
+		}
+		if logSpaced {
+			spec.XScale = figures.Log
+		}
+		f, err := figures.Densities2(spec)
+		if err != nil {
+			return nil, fmt.Errorf("posterior-%s-T_reh: %w", p, err)
+		}
+		out = append(out, Built{Name: "posterior-" + p + "-T_reh", Figure: f})
 	}
 	return out, nil
 }

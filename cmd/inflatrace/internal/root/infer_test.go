@@ -118,7 +118,7 @@ func TestInferRecordsAndReuses(t *testing.T) {
 	if _, errs, code := h.run("plot", b.Run, "--out", figs); code != 0 {
 		t.Fatalf("plot of an inference run: exit %d: %s", code, errs)
 	}
-	for _, name := range []string{"posterior-alpha.pdf", "posterior-N_star.pdf", "posterior-log10_T_reh_GeV.pdf", "posterior-log10_r.pdf"} {
+	for _, name := range []string{"posterior-alpha.pdf", "posterior-N_star.pdf", "posterior-log10_T_reh_GeV.pdf", "posterior-log10_r.pdf", "posterior-alpha-T_reh.pdf"} {
 		if st, err := os.Stat(filepath.Join(figs, name)); err != nil || st.Size() < 1000 {
 			t.Errorf("plot wrote no %s: %v", name, err)
 		}
