@@ -1,8 +1,10 @@
 package infer
 
 import (
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 
 	"github.com/inflatrace/inflatrace/stages/num/detmath"
@@ -64,8 +66,23 @@ func (r *Result) Quantiles(g func(i int) float64, qs ...float64) []Estimate {
 	for i := range vals {
 		vals[i] = g(i)
 	}
-	k := quantiles(vals, r.weights(r.WK), qs)
-	gs := quantiles(vals, r.weights(r.WG), qs)
+	pk, pg := r.weights(r.WK), r.weights(r.WG)
+	// One order for both rules: by value, ties by index (a total order,
+	// so the result does not depend on the sorting algorithm).
+	order := make([]int32, 0, len(vals))
+	for i := range vals {
+		if pk[i] > 0 || pg[i] > 0 {
+			order = append(order, int32(i))
+		}
+	}
+	slices.SortFunc(order, func(a, b int32) int {
+		if c := cmp.Compare(vals[a], vals[b]); c != 0 {
+			return c
+		}
+		return cmp.Compare(a, b)
+	})
+	k := quantiles(vals, pk, order, qs)
+	gs := quantiles(vals, pg, order, qs)
 	out := make([]Estimate, len(qs))
 	for j := range qs {
 		out[j] = Estimate{k[j], math.Abs(k[j] - gs[j])}
@@ -73,14 +90,7 @@ func (r *Result) Quantiles(g func(i int) float64, qs ...float64) []Estimate {
 	return out
 }
 
-func quantiles(vals, p []float64, qs []float64) []float64 {
-	order := make([]int, 0, len(vals))
-	for i, pi := range p {
-		if pi > 0 {
-			order = append(order, i)
-		}
-	}
-	sort.SliceStable(order, func(a, b int) bool { return vals[order[a]] < vals[order[b]] })
+func quantiles(vals, p []float64, order []int32, qs []float64) []float64 {
 	// Merge nodes of equal value (a coordinate shared by a slab of nodes).
 	var xs, cs []float64 // values and the distribution function at them
 	cum := 0.0
@@ -88,6 +98,9 @@ func quantiles(vals, p []float64, qs []float64) []float64 {
 		v, m := vals[order[j]], 0.0
 		for ; j < len(order) && vals[order[j]] == v; j++ {
 			m += p[order[j]]
+		}
+		if m == 0 {
+			continue
 		}
 		xs = append(xs, v)
 		cs = append(cs, cum+float64(0.5*m))
@@ -189,43 +202,62 @@ func (r *Result) Probability(h func(i int) float64) (Estimate, error) {
 	return r.Mean(func(i int) float64 { return vals[i] }), nil
 }
 
-// Density is a smooth estimate of the posterior density of g at each of
-// xs: a Gaussian kernel over the weighted nodes, of bandwidth 1.06 sigma
-// n^(-1/5) (Silverman 1986, Density Estimation, eq. 3.28), with sigma the
-// posterior deviation of g and n the nodes' effective number 1/sum p^2.
-// Deterministic, like every summary here; for a figure, not for a number
-// with an error.
+// Density is a smooth estimate of the posterior density of g on the grid
+// xs (increasing, evenly spaced): the weighted nodes assigned to the grid
+// by distance (cloud in cell), then smoothed by a Gaussian kernel of
+// bandwidth 1.06 sigma n^(-1/5) (Silverman 1986, Density Estimation, eq.
+// 3.28), with sigma the posterior deviation of g and n the nodes'
+// effective number 1/sum p^2; normalised to the mass that falls on the
+// grid. Deterministic, like every summary here; for a figure, not for a
+// number with an error.
 func (r *Result) Density(g func(i int) float64, xs []float64) []float64 {
+	n := len(xs)
+	out := make([]float64, n)
+	if n < 3 {
+		return out
+	}
+	dx := (xs[n-1] - xs[0]) / float64(n-1)
+	if !(dx > 0) {
+		return out
+	}
 	p := r.weights(r.WK)
 	var m, m2, s2 float64
-	vals := make([]float64, len(p))
 	for i, pi := range p {
-		if pi > 0 {
-			vals[i] = g(i)
-			m += float64(pi * vals[i])
-			m2 += float64(float64(pi*vals[i]) * vals[i])
-			s2 += float64(pi * pi)
+		if pi <= 0 {
+			continue
+		}
+		v := g(i)
+		m += float64(pi * v)
+		m2 += float64(float64(pi*v) * v)
+		s2 += float64(pi * pi)
+		f := (v - xs[0]) / dx
+		k := int(math.Floor(f))
+		t := f - float64(k)
+		if k >= 0 && k < n {
+			out[k] += float64(pi * (1 - t))
+		}
+		if k+1 >= 0 && k+1 < n {
+			out[k+1] += float64(pi * t)
 		}
 	}
 	sd := math.Sqrt(math.Max(0, m2-float64(m*m)))
-	out := make([]float64, len(xs))
 	if !(sd > 0) || !(s2 > 0) {
 		return out
 	}
-	h := 1.06 * sd * math.Pow(1/s2, -0.2)
-	norm := 1 / (h * math.Sqrt(2*math.Pi))
-	for i, pi := range p {
-		if pi < 1e-14 {
+	h := 1.06 * sd * math.Pow(1/s2, -0.2) / dx // in grid steps
+	sm := make([]float64, n)
+	reach := int(math.Ceil(8 * h))
+	norm := 1 / (h * math.Sqrt(2*math.Pi) * dx)
+	for i, w := range out {
+		if w == 0 {
 			continue
 		}
-		for j, x := range xs {
-			z := (x - vals[i]) / h
-			if z > -8 && z < 8 {
-				out[j] += float64(pi * norm * detmath.Exp(-0.5*z*z))
-			}
+		for k := max(0, i-reach); k <= min(n-1, i+reach); k++ {
+			z := float64(k-i) / h
+			sm[k] += float64(float64(w*norm) * detmath.Exp(-0.5*float64(z*z)))
 		}
 	}
-	return out
+	return sm
 }
 
 // Density2 is a smooth estimate of the joint posterior density of (g1, g2)
