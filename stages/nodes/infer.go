@@ -50,11 +50,14 @@ var inferSpec = pipeline.Spec{
 		{Name: keyFamily, Kind: pipeline.KindString},
 		{Name: "constraint", Kind: pipeline.KindString},
 		{Name: "citation", Kind: pipeline.KindString},
-		{Name: "mean_n_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
-		{Name: "sigma_n_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
-		{Name: "mean_r", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
-		{Name: "sigma_r", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
-		{Name: "rho", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
+		// A Gaussian set's fields, or a sample-based set's samples.
+		{Name: "mean_n_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone, Optional: true},
+		{Name: "sigma_n_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone, Optional: true},
+		{Name: "mean_r", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone, Optional: true},
+		{Name: "sigma_r", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone, Optional: true},
+		{Name: "rho", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone, Optional: true},
+		{Name: "kind", Kind: pipeline.KindString, Optional: true},
+		{Name: "samples", Kind: pipeline.KindString, Optional: true},
 		{Name: "A_s", Kind: pipeline.KindFloat, Unit: pipeline.UnitNone},
 		{Name: "k_pivot", Kind: pipeline.KindFloat, Unit: pipeline.UnitPerMpc},
 		{Name: "T_0", Kind: pipeline.KindFloat, Unit: pipeline.UnitKelvin},
@@ -79,6 +82,10 @@ type InferSpec struct {
 	As         float64
 	History    reheat.History
 	Constraint compare.Gaussian
+	// Samples, when not nil, make the set sample-based: its likelihood is
+	// the kernel density estimate of these (n_s, r) samples (compare.KDE;
+	// Constraint then gives only its name and citation).
+	Samples []compare.Point
 	// Also are further constraint sets the study declares independent of
 	// Constraint: the likelihood is the product of all.
 	Also      []compare.Gaussian
@@ -91,6 +98,9 @@ func InferParams(s InferSpec) (pipeline.Values, error) {
 	f := func(x float64, unit string) pipeline.Value { return pipeline.Float(x, unit) }
 	vs := GaussianParams(s.Constraint)
 	delete(vs, "kind")
+	if s.Samples != nil {
+		vs = SamplesParams(s.Constraint.Name, s.Constraint.Citation, s.Samples)
+	}
 	vs[keyFamily] = pipeline.String(s.Family)
 	vs["A_s"] = f(s.As, pipeline.UnitNone)
 	vs["k_pivot"] = f(s.History.PivotPerMpc, pipeline.UnitPerMpc)
@@ -140,8 +150,17 @@ func inferFrom(params pipeline.Values) (InferSpec, error) {
 	if s.Family, err = params.Text(keyFamily); err != nil {
 		return s, err
 	}
-	g, _ := GaussianFrom(params)
-	s.Constraint = g
+	if k, err := params.Text("kind"); err == nil && k == KindSamples {
+		text, _ := params.Text("samples")
+		if s.Samples, err = compare.ParseSamples("inference samples", []byte(text)); err != nil {
+			return s, err
+		}
+		s.Constraint.Name, _ = params.Text("constraint")
+		s.Constraint.Citation, _ = params.Text("citation")
+	} else {
+		g, _ := GaussianFrom(params)
+		s.Constraint = g
+	}
 	v, err := need(params, "inference", "A_s", "k_pivot", "T_0", "g_s0", "g_reh", "g_s_reh", "T_reh_min", "tolerance")
 	if err != nil {
 		return s, err
@@ -230,6 +249,13 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 		return nil, err
 	}
 	var like infer.Likelihood = s.Constraint
+	if s.Samples != nil {
+		kde, err := kdeFor(s.Constraint.Name, s.Constraint.Citation, params["samples"].Str)
+		if err != nil {
+			return nil, err
+		}
+		like = kde
+	}
 	if len(s.Also) > 0 {
 		p := infer.Product{s.Constraint}
 		for _, g := range s.Also {

@@ -24,6 +24,9 @@ type Inference struct {
 	W           infer.Prior
 	TLoGeV      float64
 	Constraints []compare.Gaussian
+	// Samples holds the samples of each sample-based set among
+	// Constraints (by index; nil for a Gaussian one).
+	Samples [][]compare.Point
 	// Independent: the sets are independent, and one inference takes the
 	// product of their likelihoods (else one inference per set).
 	Independent bool
@@ -133,18 +136,27 @@ func (c *parser) inferences(tables []map[string]any, sets []compare.Gaussian) ([
 				return nil, err
 			}
 		}
+		if _, given := t["constraint"]; !given {
+			for _, ss := range c.samples {
+				names = append(names, ss.Name)
+			}
+		}
 		for _, n := range names {
-			j := slices.IndexFunc(sets, func(g compare.Gaussian) bool { return g.Name == n })
+			if j := slices.IndexFunc(sets, func(g compare.Gaussian) bool { return g.Name == n }); j >= 0 {
+				inf.Constraints = append(inf.Constraints, sets[j])
+				inf.Samples = append(inf.Samples, nil)
+				continue
+			}
+			j := slices.IndexFunc(c.samples, func(s SampleSet) bool { return s.Name == n })
 			if j < 0 {
-				if slices.ContainsFunc(c.samples, func(s SampleSet) bool { return s.Name == n }) {
-					return nil, c.errAt(path+".constraint", "constraint set %q is sample-based: inference takes Gaussian sets so far", n)
-				}
 				return nil, c.errAt(path+".constraint", "no [[constraint]] named %q in the study", n)
 			}
-			inf.Constraints = append(inf.Constraints, sets[j])
+			ss := c.samples[j]
+			inf.Constraints = append(inf.Constraints, compare.Gaussian{Name: ss.Name, Citation: ss.Citation})
+			inf.Samples = append(inf.Samples, ss.Points)
 		}
 		if len(inf.Constraints) == 0 {
-			return nil, c.errAt(path, "no Gaussian constraint set to infer against: add a [[constraint]]")
+			return nil, c.errAt(path, "no constraint set to infer against: add a [[constraint]]")
 		}
 		if v, ok := t["independent"]; ok {
 			b, ok := v.(bool)
@@ -153,6 +165,9 @@ func (c *parser) inferences(tables []map[string]any, sets []compare.Gaussian) ([
 			}
 			if b && len(inf.Constraints) < 2 {
 				return nil, c.errAt(path+".independent", "independent = true multiplies the likelihoods of two or more constraint sets; this inference names one")
+			}
+			if b && slices.ContainsFunc(inf.Samples, func(p []compare.Point) bool { return p != nil }) {
+				return nil, c.errAt(path+".independent", "independent = true multiplies Gaussian sets; a sample-based set is inferred on its own")
 			}
 			inf.Independent = b
 		}
@@ -240,9 +255,11 @@ func (s *Study) InferenceSpecs() ([]string, []nodes.InferSpec) {
 			out = append(out, sp)
 			continue
 		}
-		for _, g := range inf.Constraints {
+		for i, g := range inf.Constraints {
 			labels = append(labels, inf.Label+" | "+g.Name)
-			out = append(out, spec(g))
+			sp := spec(g)
+			sp.Samples = inf.Samples[i]
+			out = append(out, sp)
 		}
 	}
 	return labels, out
