@@ -84,6 +84,11 @@ type Problem struct {
 	As      float64 // scalar amplitude the potential is normalised to
 	History reheat.History
 	Like    Likelihood
+	// NReh, when set, replaces the T_reh prior by one on the e-folds of
+	// reheating (fixed or uniform; a point whose T_reh falls below TLoGeV
+	// has zero likelihood). NStar, when set, replaces the reheating
+	// history by a prior on N* itself (W, TLoGeV and NReh are then unused).
+	NReh, NStar *Prior
 }
 
 // Likelihood is what an inference needs of a constraint set: -2 ln of the
@@ -150,6 +155,27 @@ func (p Problem) Integrand() (Integrand, int, error) {
 	if p.Like == nil {
 		return nil, 0, errors.New("inference needs a likelihood (a constraint set)")
 	}
+	for _, q := range []*Prior{p.NReh, p.NStar} {
+		if q == nil {
+			continue
+		}
+		if err := q.Check(); err != nil {
+			return nil, 0, err
+		}
+		if q.Kind == LogUniform {
+			return nil, 0, fmt.Errorf("prior of %s: a value or a uniform range", q.Name)
+		}
+		lo := q.Value
+		if q.free() {
+			lo = q.Lo
+		}
+		if !(lo >= 0) {
+			return nil, 0, fmt.Errorf("prior of %s: %g e-folds, want >= 0", q.Name, lo)
+		}
+	}
+	if p.NReh != nil && p.NStar != nil {
+		return nil, 0, errors.New("a prior on N_reh or on N*, not both")
+	}
 	tlo := p.TLoGeV
 	if tlo == 0 {
 		tlo = reheat.DefaultBBNBoundGeV
@@ -164,9 +190,27 @@ func (p Problem) Integrand() (Integrand, int, error) {
 			free++
 		}
 	}
-	dims := free + 1
-	if p.W.free() {
-		dims++
+	dims := free
+	switch {
+	case p.NStar != nil:
+		if p.NStar.free() {
+			dims++
+		}
+	case p.NReh != nil:
+		if p.NReh.free() {
+			dims++
+		}
+		if p.W.free() {
+			dims++
+		}
+	default:
+		dims++ // u_T
+		if p.W.free() {
+			dims++
+		}
+	}
+	if dims == 0 {
+		return nil, 0, errors.New("nothing to infer: every prior is fixed")
 	}
 	// The slow-roll solution and its instantaneous maximum depend on the
 	// model's parameters only: kept per point of the parameters (nodes
@@ -218,13 +262,42 @@ func (p Problem) Integrand() (Integrand, int, error) {
 			params[q.Name] = v
 			key += strconv.FormatUint(math.Float64bits(v), 16) + ","
 		}
+		nan := math.NaN()
+		s := solve(params, key)
+		if p.NStar != nil {
+			N := p.NStar.Value
+			if p.NStar.free() {
+				N = p.NStar.At(u[i])
+			}
+			if s.err != nil {
+				return math.Inf(-1), append(der, nan, nan, nan, N, nan, nan), nil
+			}
+			pr, err := reheat.AtEfolds(s.sol, N, norm)
+			if err != nil {
+				return math.Inf(-1), append(der, nan, nan, nan, N, nan, nan), nil
+			}
+			return -0.5 * p.Like.DeltaChi2(pr.Obs.Ns, pr.Obs.R), append(der, nan, nan, nan, pr.N, pr.Obs.Ns, pr.Obs.R), nil
+		}
 		w := p.W.Value
 		if p.W.free() {
 			w = p.W.At(u[i])
 			i++
 		}
+		if p.NReh != nil {
+			n := p.NReh.Value
+			if p.NReh.free() {
+				n = p.NReh.At(u[i])
+			}
+			if s.err != nil {
+				return math.Inf(-1), append(der, w, nan, n, nan, nan, nan), nil
+			}
+			pr, err := reheat.Match(reheat.FirstOrder{Sol: s.sol, Norm: norm}, p.History, reheat.Era{Kind: reheat.EraEfolds, W: w, NReh: n}, 55)
+			if err != nil || pr.TReh < tlo/reheat.ReducedPlanckGeV {
+				return math.Inf(-1), append(der, w, nan, n, nan, nan, nan), nil
+			}
+			return -0.5 * p.Like.DeltaChi2(pr.Obs.Ns, pr.Obs.R), append(der, w, detmath.Log10(reheat.GeV(pr.TReh)), pr.NReh, pr.N, pr.Obs.Ns, pr.Obs.R), nil
+		}
 		uT := u[i]
-		s := solve(params, key)
 		if s.err != nil || !(s.tmax > 0) {
 			return math.Inf(-1), append(der, w, math.NaN(), math.NaN(), math.NaN(), math.NaN(), math.NaN()), nil
 		}

@@ -70,8 +70,8 @@ func (r *Result) Quantiles(g func(i int) float64, qs ...float64) []Estimate {
 	// One order for both rules: by value, ties by index (a total order,
 	// so the result does not depend on the sorting algorithm).
 	order := make([]int32, 0, len(vals))
-	for i := range vals {
-		if pk[i] > 0 || pg[i] > 0 {
+	for i, v := range vals {
+		if (pk[i] > 0 || pg[i] > 0) && !math.IsNaN(v) { // a quantity undefined at a node has no quantile there
 			order = append(order, int32(i))
 		}
 	}

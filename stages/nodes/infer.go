@@ -91,6 +91,8 @@ type InferSpec struct {
 	Also      []compare.Gaussian
 	Forecasts []compare.Forecast
 	Tol       float64
+	// NReh and NStar, when set, replace the T_reh prior (infer.Problem).
+	NReh, NStar *infer.Prior
 }
 
 // InferParams encodes an inference as a node's parameters.
@@ -110,7 +112,14 @@ func InferParams(s InferSpec) (pipeline.Values, error) {
 	vs["g_s_reh"] = f(s.History.GSReh, pipeline.UnitNone)
 	vs["T_reh_min"] = f(s.TLoGeV, pipeline.UnitGeV)
 	vs["tolerance"] = f(s.Tol, pipeline.UnitNone)
-	for _, p := range append(slices.Clone(s.Params), s.W) {
+	extra := []infer.Prior{s.W}
+	if s.NReh != nil {
+		extra = append(extra, *s.NReh)
+	}
+	if s.NStar != nil {
+		extra = append(extra, *s.NStar)
+	}
+	for _, p := range append(slices.Clone(s.Params), extra...) {
 		if err := p.Check(); err != nil {
 			return nil, err
 		}
@@ -225,6 +234,14 @@ func inferFrom(params pipeline.Values) (InferSpec, error) {
 	}
 	s.W = *w
 	delete(priors, "w_reh")
+	if p, ok := priors["N_reh"]; ok {
+		s.NReh = p
+		delete(priors, "N_reh")
+	}
+	if p, ok := priors["N_star"]; ok {
+		s.NStar = p
+		delete(priors, "N_star")
+	}
 	names := make([]string, 0, len(priors))
 	for n := range priors {
 		names = append(names, n)
@@ -263,7 +280,7 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 		}
 		like = p
 	}
-	prob := infer.Problem{Family: s.Family, Params: s.Params, W: s.W, TLoGeV: s.TLoGeV, As: s.As, History: s.History, Like: like}
+	prob := infer.Problem{Family: s.Family, Params: s.Params, W: s.W, TLoGeV: s.TLoGeV, As: s.As, History: s.History, Like: like, NReh: s.NReh, NStar: s.NStar}
 	f, d, err := prob.Integrand()
 	if err != nil {
 		return nil, err
@@ -320,7 +337,7 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 	base := len(free)
 	derived := infer.Derived // w_reh, log10 T, N_reh, N*, n_s, r
 	for j, name := range derived {
-		if name == "w_reh" && s.W.Kind == infer.Fixed {
+		if (name == "w_reh" && (s.W.Kind == infer.Fixed || s.NStar != nil)) || !finiteAt(res, base+j) {
 			continue
 		}
 		g := func(i int) float64 { return res.Derived[i][base+j] }
@@ -353,7 +370,7 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 		putPDF(out, "param:"+p.Name, xs, ys)
 	}
 	for j, name := range derived {
-		if name == "w_reh" && s.W.Kind == infer.Fixed {
+		if (name == "w_reh" && (s.W.Kind == infer.Fixed || s.NStar != nil)) || !finiteAt(res, base+j) {
 			continue
 		}
 		g := func(i int) float64 { return res.Derived[i][base+j] }
@@ -380,12 +397,12 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 	// and w_reh's when it is free.
 	tIndex := base + slices.Index(derived, "log10_T_reh_GeV")
 	tq := res.Quantiles(func(i int) float64 { return res.Derived[i][tIndex] }, 0.001, 0.999)
-	if tlo, thi := tq[0].Value, tq[1].Value; thi > tlo {
+	if tlo, thi := tq[0].Value, tq[1].Value; finiteAt(res, tIndex) && thi > tlo {
 		pad := float64(0.1 * (thi - tlo))
 		ys := grid(tlo-pad, thi+pad, pdf2Points)
 		us := grid(0, 1, pdf2Points)
 		coords := free
-		if s.W.Kind != infer.Fixed {
+		if s.W.Kind != infer.Fixed && s.NStar == nil {
 			coords = append(slices.Clone(free), s.W)
 		}
 		for k, p := range coords {
@@ -513,6 +530,18 @@ func PDF(vs pipeline.Values, name string) (xs, ys []float64, ok bool) {
 		}
 		xs, ys = append(xs, x.Float), append(ys, y.Float)
 	}
+}
+
+// finiteAt reports whether the derived quantity j is a number where the
+// posterior has mass (log10 T_reh is not, when N* is given directly).
+func finiteAt(res *infer.Result, j int) bool {
+	for i, l := range res.LnF {
+		if !math.IsInf(l, -1) {
+			v := res.Derived[i][j]
+			return !math.IsNaN(v) && !math.IsInf(v, 0)
+		}
+	}
+	return false
 }
 
 // summaryBudget bounds the evaluations integrateForSummaries spends on

@@ -101,3 +101,46 @@ func TestInferProductOfSets(t *testing.T) {
 		t.Errorf("ln Z of the product %.10f, of the narrower set %.10f", a["ln_Z"].Float, b["ln_Z"].Float)
 	}
 }
+
+// TestInferEfoldPriors: with a prior on N* itself, the Starobinsky
+// model's n_s stays within 1 - 2/N* over the prior's range (the large-N
+// relation n_s = 1 - 2/N*, Mukhanov & Chibisov 1981 and Starobinsky 1983,
+// from memory; to 0.002 for first-order corrections); with a prior on
+// N_reh at w_reh = 1/3, reheating is radiation and N* is the instantaneous
+// one whatever N_reh (Liddle & Leach 2003, PRD 68, 103503,
+// astro-ph/0305263).
+func TestInferEfoldPriors(t *testing.T) {
+	base := inferBench(false)
+	base.Params = []infer.Prior{{Name: "alpha", Kind: infer.Fixed, Value: 1}, {Name: "n", Kind: infer.Fixed, Value: 1}}
+	base.Forecasts = nil
+	run := func(sp InferSpec) pipeline.Values {
+		vs, err := InferParams(sp)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if back, err := inferFrom(vs); err != nil || !reflect.DeepEqual(back, sp) {
+			t.Fatalf("round trip: %v\n got %+v\nwant %+v", err, back, sp)
+		}
+		out, err := Infer{}.Run(context.Background(), vs, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return out
+	}
+	ns := base
+	ns.NStar = &infer.Prior{Name: "N_star", Kind: infer.Uniform, Lo: 50, Hi: 60}
+	out := run(ns)
+	if lo, hi := out["n_s:lo95"].Float, out["n_s:hi95"].Float; lo < 1-2.0/50-0.002 || hi > 1-2.0/60+0.002 {
+		t.Errorf("n_s 95%% interval [%.5f, %.5f] for N* in [50, 60]", lo, hi)
+	}
+	if _, ok := out["log10_T_reh_GeV:median"]; ok {
+		t.Error("a reheating temperature recorded where N* was given directly")
+	}
+	nr := base
+	nr.W = infer.Prior{Name: "w_reh", Kind: infer.Fixed, Value: 1.0 / 3}
+	nr.NReh = &infer.Prior{Name: "N_reh", Kind: infer.Uniform, Lo: 0, Hi: 10}
+	out = run(nr)
+	if lo, hi := out["N_star:lo95"].Float, out["N_star:hi95"].Float; hi-lo > 1e-6 {
+		t.Errorf("N* 95%% interval [%.6f, %.6f] at w_reh = 1/3: reheating then changes nothing", lo, hi)
+	}
+}

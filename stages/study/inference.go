@@ -18,10 +18,13 @@ import (
 // each of its parameters and on its reheating history, inferred against
 // each of the constraint sets it names (inflatrace infer).
 type Inference struct {
-	Label       string
-	Family      string
-	Params      []infer.Prior // every parameter of the family, in its declared order
-	W           infer.Prior
+	Label  string
+	Family string
+	Params []infer.Prior // every parameter of the family, in its declared order
+	W      infer.Prior
+	// NReh or NStar, when set, replace the T_reh prior: a prior on the
+	// e-folds of reheating, or on N* itself (no reheating history).
+	NReh, NStar *infer.Prior
 	TLoGeV      float64
 	Constraints []compare.Gaussian
 	// Samples holds the samples of each sample-based set among
@@ -49,7 +52,7 @@ func (inf Inference) SetNames() []string {
 
 // inferenceKeys are the keys an [[inference]] table may hold besides the
 // family's parameters.
-var inferenceKeys = []string{"label", "family", "w_reh", "T_reh_min_GeV", "constraint", "independent", "reference", "tolerance"}
+var inferenceKeys = []string{"label", "family", "w_reh", "T_reh_min_GeV", "N_reh", "N_star", "constraint", "independent", "reference", "tolerance"}
 
 // inferences reads the [[inference]] tables against the study's
 // constraint sets.
@@ -87,6 +90,30 @@ func (c *parser) inferences(tables []map[string]any, sets []compare.Gaussian) ([
 			}
 			if inf.W.Kind == infer.LogUniform {
 				return nil, c.errAt(path+".w_reh", "w_reh takes a value or {uniform = [lo, hi]}")
+			}
+		}
+		for _, e := range []struct {
+			key string
+			dst **infer.Prior
+		}{{"N_reh", &inf.NReh}, {"N_star", &inf.NStar}} {
+			v, ok := t[e.key]
+			if !ok {
+				continue
+			}
+			p, err := c.prior(path+"."+e.key, e.key, v, model.Param{Name: e.key, Min: 0, Max: math.Inf(1), Default: math.NaN()})
+			if err != nil {
+				return nil, err
+			}
+			if p.Kind == infer.LogUniform {
+				return nil, c.errAt(path+"."+e.key, "%s takes a value or {uniform = [lo, hi]}", e.key)
+			}
+			*e.dst = &p
+		}
+		if inf.NStar != nil {
+			for _, k := range []string{"w_reh", "N_reh", "T_reh_min_GeV"} {
+				if _, ok := t[k]; ok {
+					return nil, c.errAt(path+"."+k, "N_star is given: the reheating history (%s) plays no part", k)
+				}
 			}
 		}
 		if v, ok := t["T_reh_min_GeV"]; ok {
@@ -244,7 +271,7 @@ func (s *Study) InferenceSpecs() ([]string, []nodes.InferSpec) {
 	for _, inf := range s.Inferences {
 		spec := func(g compare.Gaussian) nodes.InferSpec {
 			return nodes.InferSpec{Family: inf.Family, Params: inf.Params, W: inf.W, TLoGeV: inf.TLoGeV, As: s.As,
-				History: reheat.DefaultHistory(), Constraint: g, Forecasts: s.Forecasts, Tol: inf.Tol}
+				History: reheat.DefaultHistory(), Constraint: g, Forecasts: s.Forecasts, Tol: inf.Tol, NReh: inf.NReh, NStar: inf.NStar}
 		}
 		if inf.Independent {
 			sp := spec(inf.Constraints[0])

@@ -97,3 +97,19 @@ func TestInferenceIndependentSets(t *testing.T) {
 		t.Errorf("independent with one set: %v", err)
 	}
 }
+
+// TestInferenceEfoldPriors: N_reh or N_star replace the T_reh prior, and
+// N_star excludes the reheating keys.
+func TestInferenceEfoldPriors(t *testing.T) {
+	s, err := Parse("s.toml", []byte(inferHead+"[[inference]]\nfamily = \"e-model\"\nalpha = 1\nN_star = {uniform = [50, 60]}\n\n[[inference]]\nlabel = \"b\"\nfamily = \"e-model\"\nalpha = 1\nN_reh = {uniform = [0, 10]}\nw_reh = 0.5\n"), ".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, b := s.Inferences[0], s.Inferences[1]
+	if a.NStar == nil || a.NStar.Kind != infer.Uniform || a.NStar.Lo != 50 || b.NReh == nil || b.NReh.Hi != 10 || b.W.Value != 0.5 {
+		t.Errorf("priors: %+v %+v", a.NStar, b.NReh)
+	}
+	if _, err := Parse("s.toml", []byte(inferHead+"[[inference]]\nfamily = \"e-model\"\nalpha = 1\nN_star = 55\nw_reh = 0.3\n"), "."); err == nil || !strings.Contains(err.Error(), "plays no part") {
+		t.Errorf("N_star with w_reh: %v", err)
+	}
+}
