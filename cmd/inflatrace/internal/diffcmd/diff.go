@@ -16,6 +16,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/app"
+	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/infertable"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tables"
 	"github.com/inflatrace/inflatrace/ledger"
 	"github.com/inflatrace/inflatrace/stages/study/revision"
@@ -123,6 +124,19 @@ func Run(ctx context.Context, o *Options) error {
 		return err
 	}
 	defer l.Close()
+	// Runs of inferences have no predictions to pair: saying their 0
+	// predictions are "unchanged" would mislead.
+	for _, ref := range []string{o.A, o.B} {
+		id, err := l.ResolveRun(ctx, ref)
+		if err != nil {
+			return err
+		}
+		if _, inference, err := infertable.Recorded(ctx, l, id); err != nil {
+			return err
+		} else if inference {
+			return app.Usage(fmt.Errorf("run %s is a run of inferences: diff compares runs of predictions and does not attribute inferences yet; compare their tables (inflatrace table %s --format csv)", id, id))
+		}
+	}
 	a, pathA, err := load(ctx, l, o.A)
 	if err != nil {
 		return err

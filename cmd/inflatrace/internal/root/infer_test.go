@@ -104,6 +104,10 @@ func TestInferRecordsAndReuses(t *testing.T) {
 	if code != 0 || !strings.Contains(vout+verrs, "2 identical") {
 		t.Errorf("verify: exit %d: %s%s", code, vout, verrs)
 	}
+	// diff does not pair inferences yet, and says so (not "unchanged").
+	if _, errs, code := h.run("diff", a.Run, b.Run); code != 2 || !strings.Contains(errs, "run of inferences") {
+		t.Errorf("diff of inference runs: exit %d: %s", code, errs)
+	}
 	// run refuses a study of inferences alone, pointing to infer.
 	if _, errs, code := h.run("run", p); code != 2 || !strings.Contains(errs, "inflatrace infer") {
 		t.Errorf("run of an inference study: exit %d: %s", code, errs)
