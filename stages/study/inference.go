@@ -310,3 +310,65 @@ func (s *Study) InferenceGraph() (*pipeline.Graph, error) {
 	}
 	return g, nil
 }
+
+// InferenceResult is an inference's result as the comparison of two runs
+// reads it (stages/study/revision): labelled "<label> | <set>", with the
+// node's summaries (ln_Z, and the median and 68%/95% interval ends of
+// each quantity, the forecasts' probabilities) in Inference. values are
+// the node's float outputs.
+func InferenceResult(label, family, set string, values map[string]float64) Result {
+	r := Result{Label: label + " | " + set, Model: family, Constraint: set, Params: map[string]float64{}, Inference: map[string]float64{}}
+	for k, v := range values {
+		if InferenceSummary(k) {
+			r.Inference[k] = v
+		}
+	}
+	return r
+}
+
+// InferenceSummary says whether an inference node's output is a summary
+// a comparison reports (not an error estimate or a density).
+func InferenceSummary(k string) bool {
+	if k == "ln_Z" {
+		return true
+	}
+	if strings.HasPrefix(k, "pdf") || strings.HasSuffix(k, "_err") {
+		return false
+	}
+	if strings.HasPrefix(k, "P_detect_3sigma:") || strings.HasPrefix(k, "P_exclude_95:") {
+		return true
+	}
+	for _, s := range []string{":median", ":lo68", ":hi68", ":lo95", ":hi95"} {
+		if strings.HasSuffix(k, s) {
+			return true
+		}
+	}
+	return false
+}
+
+// InferenceResults are the results of the study's inference graph
+// (InferenceGraph), from its result nodes' outputs in order (nil for a
+// failed node: a result with an error).
+func (s *Study) InferenceResults(outputs []pipeline.Values) []Result {
+	var out []Result
+	i := 0
+	for _, inf := range s.Inferences {
+		for _, set := range inf.SetNames() {
+			vals := map[string]float64{}
+			if i < len(outputs) && outputs[i] != nil {
+				for k, v := range outputs[i] {
+					if v.Kind == pipeline.KindFloat {
+						vals[k] = v.Float
+					}
+				}
+			}
+			r := InferenceResult(inf.Label, inf.Family, set, vals)
+			if i >= len(outputs) || outputs[i] == nil {
+				r.Error = "the inference failed"
+			}
+			out = append(out, r)
+			i++
+		}
+	}
+	return out
+}

@@ -45,6 +45,10 @@ type Result struct {
 	Detected5Sigma *bool              `json:"detected_5sigma,omitempty"`
 	Key            string             `json:"key"`
 	Error          string             `json:"error,omitempty"`
+	// Inference holds the summaries of an inference's result
+	// (InferenceResult): ln_Z, and each quantity's median and interval
+	// ends; nil for a prediction.
+	Inference map[string]float64 `json:"inference,omitempty"`
 	// Row is the N of "trace RUN#N" for this result: its position, from 1,
 	// among the run's recorded results. It is set only where a command
 	// writes results as JSON (run --json, predict --json) and is 0, so

@@ -157,6 +157,10 @@ func quantity(r study.Result, q string) (float64, bool) {
 	if r.Error != "" {
 		return 0, false
 	}
+	if r.Inference != nil {
+		x, ok := r.Inference[q]
+		return x, ok
+	}
 	if b := r.Band; b != nil {
 		switch q {
 		case "N_star_min", "N_star_max":
@@ -193,6 +197,22 @@ func quantity(r study.Result, q string) (float64, bool) {
 		return opt(r.NSigma)
 	}
 	return 0, false
+}
+
+// quantitiesOf are the quantities compared for a pair: Quantities for
+// predictions, the summaries both inferences recorded for inferences.
+func quantitiesOf(a, b study.Result) []string {
+	if a.Inference == nil && b.Inference == nil {
+		return Quantities
+	}
+	var out []string
+	for k := range a.Inference {
+		if _, ok := b.Inference[k]; ok {
+			out = append(out, k)
+		}
+	}
+	sort.Strings(out)
+	return out
 }
 
 // bandEnd is 0 for a band's least value, 1 for its greatest.
@@ -418,7 +438,7 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 				continue
 			}
 			m := map[string]float64{}
-			for _, q := range Quantities {
+			for _, q := range quantitiesOf(a.Results[pr.i], b.Results[pr.j]) {
 				if x, ok := quantity(res[ri], q); ok {
 					m[q] = x
 				}
@@ -430,7 +450,7 @@ func Compare(ctx context.Context, a, b Run, eval Evaluate) (*Report, error) {
 	for p, pr := range pairs {
 		ra, rb := a.Results[pr.i], b.Results[pr.j]
 		pair := Pair{RowA: pr.i + 1, RowB: pr.j + 1, LabelA: ra.Label, LabelB: rb.Label, Changes: map[string]Change{}, Unseparated: missing[p]}
-		for _, q := range Quantities {
+		for _, q := range quantitiesOf(ra, rb) {
 			xa, okA := quantity(ra, q)
 			xb, okB := quantity(rb, q)
 			if !okA || !okB {
@@ -598,7 +618,13 @@ func Evaluator(rec pipeline.Recorder, dir, tool string, jobs int, now func() tim
 		if err != nil {
 			return nil, err
 		}
-		g, err := s.Graph()
+		inference := s.NumModels() == 0 && len(s.Inferences) > 0
+		var g *pipeline.Graph
+		if inference {
+			g, err = s.InferenceGraph()
+		} else {
+			g, err = s.Graph()
+		}
 		if err != nil {
 			return nil, err
 		}
@@ -609,6 +635,13 @@ func Evaluator(rec pipeline.Recorder, dir, tool string, jobs int, now func() tim
 		if rep.Failed > 0 {
 			return nil, errors.New("some nodes failed")
 		}
+		if inference {
+			outs := make([]pipeline.Values, len(g.Results))
+			for i, r := range g.Results {
+				outs[i] = rep.Outcomes[r.Node].Outputs
+			}
+			return s.InferenceResults(outs), nil
+		}
 		return study.Results(g, rep), nil
 	}
 }
@@ -618,6 +651,12 @@ func Evaluator(rec pipeline.Recorder, dir, tool string, jobs int, now func() tim
 // (as its label writes it), method, end condition and constraint. Each part
 // is keyed by the configuration section it comes from.
 func identity(r study.Result) map[string]string {
+	if r.Inference != nil {
+		// An inference is its [[inference]] entry (its label) against a
+		// set; its priors are what a revision changes.
+		label, _, _ := strings.Cut(r.Label, " | ")
+		return map[string]string{"model": "inference|" + label, "reheating": "", "slow_roll": "", "constraint": r.Constraint}
+	}
 	names := make([]string, 0, len(r.Params))
 	for k := range r.Params {
 		names = append(names, k)

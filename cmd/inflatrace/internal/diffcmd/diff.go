@@ -11,6 +11,7 @@ import (
 	"io"
 	"path/filepath"
 	"slices"
+	"sort"
 	"strings"
 
 	"github.com/spf13/cobra"
@@ -19,6 +20,7 @@ import (
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/infertable"
 	"github.com/inflatrace/inflatrace/cmd/inflatrace/internal/tables"
 	"github.com/inflatrace/inflatrace/ledger"
+	"github.com/inflatrace/inflatrace/stages/study"
 	"github.com/inflatrace/inflatrace/stages/study/revision"
 )
 
@@ -83,8 +85,8 @@ whole report.`,
 				return app.Usage(fmt.Errorf("--format %q: want one of %s", opts.Format, strings.Join(Formats, ", ")))
 			}
 			for _, q := range opts.Quantities {
-				if !slices.Contains(revision.Quantities, q) {
-					return app.Usage(fmt.Errorf("--quantities: unknown quantity %q (want %s)", q, strings.Join(revision.Quantities, ", ")))
+				if !slices.Contains(revision.Quantities, q) && !study.InferenceSummary(q) {
+					return app.Usage(fmt.Errorf("--quantities: unknown quantity %q (want %s, or for inferences ln_Z, NAME:median, NAME:lo68...)", q, strings.Join(revision.Quantities, ", ")))
 				}
 			}
 			if opts.Digits < 1 || opts.Digits > 17 {
@@ -106,6 +108,15 @@ func load(ctx context.Context, l *ledger.Ledger, ref string) (revision.Run, stri
 	if err != nil {
 		return revision.Run{}, "", err
 	}
+	// A run of inferences: its results are the inferences' summaries.
+	if rows, inference, err := infertable.Recorded(ctx, l, d.ID); err != nil {
+		return revision.Run{}, "", err
+	} else if inference {
+		rs = rs[:0]
+		for _, r := range rows {
+			rs = append(rs, study.InferenceResult(r.Label, r.Family, r.Constraint, r.Values))
+		}
+	}
 	ns, err := l.RunNodeHeads(ctx, d.ID)
 	if err != nil {
 		return revision.Run{}, "", err
@@ -124,19 +135,6 @@ func Run(ctx context.Context, o *Options) error {
 		return err
 	}
 	defer l.Close()
-	// Runs of inferences have no predictions to pair: saying their 0
-	// predictions are "unchanged" would mislead.
-	for _, ref := range []string{o.A, o.B} {
-		id, err := l.ResolveRun(ctx, ref)
-		if err != nil {
-			return err
-		}
-		if _, inference, err := infertable.Recorded(ctx, l, id); err != nil {
-			return err
-		} else if inference {
-			return app.Usage(fmt.Errorf("run %s is a run of inferences: diff compares runs of predictions and does not attribute inferences yet; compare their tables (inflatrace table %s --format csv)", id, id))
-		}
-	}
 	a, pathA, err := load(ctx, l, o.A)
 	if err != nil {
 		return err
@@ -213,7 +211,7 @@ func writeText(w io.Writer, rep *revision.Report, shown []revision.Pair, unchang
 		if len(p.Unseparated) > 0 {
 			fmt.Fprintf(w, "  (not separated: configurations %s failed or lack this result; total change only)\n", listSome(p.Unseparated, 4))
 		}
-		for _, q := range revision.Quantities {
+		for _, q := range quantitiesOf(p.Changes) {
 			c, ok := p.Changes[q]
 			if !ok || c.Total == 0 && !all {
 				continue
@@ -308,7 +306,7 @@ func Grid(rep *revision.Report, shown []revision.Pair) tables.Grid {
 	for _, p := range shown {
 		// The new label: the assumptions list and row_a say what it was.
 		label := p.LabelB
-		for _, q := range revision.Quantities {
+		for _, q := range quantitiesOf(p.Changes) {
 			c, ok := p.Changes[q]
 			if !ok || c.Total == 0 && p.Changed() {
 				continue
@@ -324,4 +322,23 @@ func Grid(rep *revision.Report, shown []revision.Pair) tables.Grid {
 		}
 	}
 	return g
+}
+
+// quantitiesOf are a pair's changed quantities in the order diff writes
+// them: the predictions' (revision.Quantities), then an inference's
+// summaries by name.
+func quantitiesOf(changes map[string]revision.Change) []string {
+	var out, rest []string
+	for _, q := range revision.Quantities {
+		if _, ok := changes[q]; ok {
+			out = append(out, q)
+		}
+	}
+	for q := range changes {
+		if !slices.Contains(revision.Quantities, q) {
+			rest = append(rest, q)
+		}
+	}
+	sort.Strings(rest)
+	return append(out, rest...)
 }

@@ -104,9 +104,9 @@ func TestInferRecordsAndReuses(t *testing.T) {
 	if code != 0 || !strings.Contains(vout+verrs, "2 identical") {
 		t.Errorf("verify: exit %d: %s%s", code, vout, verrs)
 	}
-	// diff does not pair inferences yet, and says so (not "unchanged").
-	if _, errs, code := h.run("diff", a.Run, b.Run); code != 2 || !strings.Contains(errs, "run of inferences") {
-		t.Errorf("diff of inference runs: exit %d: %s", code, errs)
+	// Two identical runs: diff pairs every inference, nothing changed.
+	if out, errs, code := h.run("diff", a.Run, b.Run); code != 0 || !strings.Contains(out, "2 paired results unchanged") {
+		t.Errorf("diff of identical inference runs: exit %d: %s%s", code, out, errs)
 	}
 	// run refuses a study of inferences alone, pointing to infer.
 	if _, errs, code := h.run("run", p); code != 2 || !strings.Contains(errs, "inflatrace infer") {
@@ -162,4 +162,58 @@ func TestInferSampleBasedSet(t *testing.T) {
 		t.Errorf("ln Z against the samples %.4f ± %.2g, against the Gaussian %.4f", kde.LnZ, kde.LnZErr, g.LnZ)
 	}
 	t.Logf("ln Z: samples %.4f, Gaussian %.4f", kde.LnZ, g.LnZ)
+}
+
+// TestDiffAttributesInferences: a revision that narrows the E-model's
+// alpha prior changes its ln Z and intervals, not the Starobinsky
+// inference's; diff pairs the inferences by label and set, attributes the
+// change to the prior, and reports the reference unchanged.
+func TestDiffAttributesInferences(t *testing.T) {
+	h := newHarness(t)
+	p1 := h.write("a.toml", inferStudy)
+	p2 := h.write("b.toml", strings.Replace(inferStudy, "alpha = {log_uniform = [0.01, 100]}", "alpha = {log_uniform = [0.1, 10]}", 1))
+	runOf := func(p string) string {
+		out, errs, code := h.run("infer", p, "--format", "json")
+		if code != 0 {
+			t.Fatalf("infer %s: exit %d: %s", p, code, errs)
+		}
+		var r inferJSON
+		if err := json.Unmarshal([]byte(out), &r); err != nil {
+			t.Fatal(err)
+		}
+		return r.Run
+	}
+	a, b := runOf(p1), runOf(p2)
+	out, errs, code := h.run("diff", a, b, "--format", "json")
+	if code != 0 {
+		t.Fatalf("diff: exit %d: %s", code, errs)
+	}
+	var rep struct {
+		Pairs []struct {
+			LabelA  string `json:"label_a"`
+			Changes map[string]struct {
+				A, B      float64
+				MainCause string `json:"main_cause"`
+			} `json:"changes"`
+		} `json:"pairs"`
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatalf("%v: %s", err, out)
+	}
+	found := false
+	for _, p := range rep.Pairs {
+		c, ok := p.Changes["ln_Z"]
+		switch {
+		case strings.HasPrefix(p.LabelA, "Starobinsky") && ok && c.A != c.B:
+			t.Errorf("the reference's ln Z changed: %+v", c)
+		case strings.HasPrefix(p.LabelA, "E-model") && ok && c.A != c.B:
+			found = true
+			if !strings.Contains(c.MainCause, "alpha") {
+				t.Errorf("ln Z change attributed to %q, want the alpha prior", c.MainCause)
+			}
+		}
+	}
+	if !found {
+		t.Errorf("no E-model ln Z change in the diff: %s", out)
+	}
 }
