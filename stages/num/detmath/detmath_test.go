@@ -208,3 +208,40 @@ func TestSameBitsEveryBuild(t *testing.T) {
 		t.Errorf("digest of detmath's bits %s, want %s (an amd64 GOAMD64=v1 build)", got, want)
 	}
 }
+
+// TestExpAtTheScaleBoundaries: the final scaling by 2^k (math.Ldexp)
+// reaches both ends of float64's exponent range: the largest finite
+// results, the subnormals down to the smallest, and overflow to +Inf and
+// underflow to 0 just beyond them (IEEE 754 binary64 limits; math.Exp's
+// own values, to its documented accuracy of 1 ulp, as the reference).
+func TestExpAtTheScaleBoundaries(t *testing.T) {
+	for _, x := range []float64{709.782712893384, 709.7, -708.39, -708.4, -720, -740, -745.1332191019411} {
+		got, want := Exp(x), math.Exp(x)
+		if math.IsInf(got, 0) || got == 0 || math.Abs(got-want) > 2*ulp(want) {
+			t.Errorf("Exp(%v) = %v, math.Exp %v", x, got, want)
+		}
+	}
+	if got := Exp(709.79); !math.IsInf(got, 1) {
+		t.Errorf("Exp(709.79) = %v, want +Inf", got)
+	}
+	if got := Exp(-745.2); got != 0 {
+		t.Errorf("Exp(-745.2) = %v, want 0", got)
+	}
+	for _, c := range []struct{ x, want float64 }{
+		{-1074, 5e-324}, {-1022, 0x1p-1022}, {-1030, 0x1p-1030}, {1023, 0x1p1023},
+	} {
+		if got := Exp2(c.x); got != c.want {
+			t.Errorf("Exp2(%v) = %v, want %v (a power of two, exactly)", c.x, got, c.want)
+		}
+	}
+	if got := Exp2(1024); !math.IsInf(got, 1) {
+		t.Errorf("Exp2(1024) = %v, want +Inf", got)
+	}
+}
+
+// ulp is the spacing of float64 values at x (the smallest subnormal at
+// and below the normal range).
+func ulp(x float64) float64 {
+	x = math.Abs(x)
+	return math.Max(math.Nextafter(x, math.Inf(1))-x, 5e-324)
+}

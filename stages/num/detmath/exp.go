@@ -190,6 +190,8 @@ func expmulti(hi, lo float64, k int) float64 {
 	t := float64(r * r)
 	c := r - float64(t*(P1+float64(t*(P2+float64(t*(P3+float64(t*(P4+float64(t*P5)))))))))
 	y := 1 - ((lo - (float64(r*c))/(2-c)) - hi)
-	// TODO(rsc): make sure Ldexp can handle boundary k
+	// math.Ldexp takes every k the reduction gives (|k| <= 1075 past the
+	// special cases): it rounds a subnormal result and overflows to +Inf
+	// (TestExpAtTheScaleBoundaries).
 	return math.Ldexp(y, k)
 }
