@@ -40,18 +40,8 @@ type packed struct {
 	id    int64    // the shape's id when the ledger had it committed (else 0; shape is then set)
 }
 
-// packValues splits vs (canonical order: sorted by name) into a shape and
-// slots.
-func packValues(vs pipeline.Values) (packed, error) {
-	text, err := vs.Encode()
-	if err != nil {
-		return packed{}, err
-	}
-	return packText(string(text), vs, false, nil)
-}
-
-// packText is packValues given the canonical text of vs (Values.Encode),
-// which it rewrites line by line: a float line's number becomes a slot
+// packText splits vs into a shape and slots, given its canonical text
+// (Values.Encode), which it rewrites line by line: a float line's number becomes a slot
 // reference unless it is a small integer, every other byte is copied.
 // With strict set it also checks that text is exactly the canonical text
 // of vs (each value once, in name order, floats in shortest form), as

@@ -44,6 +44,15 @@ func packCases() []pipeline.Values {
 	return cases
 }
 
+// packValues packs vs from its own canonical text.
+func packValues(vs pipeline.Values) (packed, error) {
+	text, err := vs.Encode()
+	if err != nil {
+		return packed{}, err
+	}
+	return packText(string(text), vs, false, nil)
+}
+
 // TestPackRoundTrip: the shape and slots of a set give back its canonical
 // text exactly (a property: any difference would change an output hash).
 func TestPackRoundTrip(t *testing.T) {

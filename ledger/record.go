@@ -219,7 +219,6 @@ type batchState struct {
 	nowUnix int64  // the same in Unix seconds (node rows)
 	known   map[pipeline.KeyID]storedNode
 	noLink  bool                    // the node being recorded belongs to a work: no link of its own
-	kinds   map[nodeKind]bool       // of the nodes inserted
 	healed  []pipeline.KeyID        // suspect rows rewritten in this batch
 	absent  map[pipeline.KeyID]bool // keys known not to be stored
 	// Rows to insert at the end of the batch, many per statement.
@@ -461,11 +460,7 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 		}
 		ups[i] = up.id
 	}
-	tool, err := describedTool(rec.Description)
-	if err != nil {
-		return 0, fmt.Errorf("%w: description: %v", ErrIntegrity, err)
-	}
-	hash, err := outputHashArg(rec)
+	ra, err := l.rowArgsOf(ctx, tx, rec, text, vouch)
 	if err != nil {
 		return 0, err
 	}
@@ -475,27 +470,8 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 	} else {
 		now = l.now().Unix()
 	}
-	var mac any
-	if vouch && rec.Status == pipeline.NodeOK {
-		m := text.mac
-		if m == nil {
-			m = l.macOf(rec.Key, rec.Status, rec.OutputHash)
-		}
-		if m != nil {
-			mac = m
-		}
-	}
-	kind, err := l.kindID(ctx, tx, nodeKind{tool, rec.Stage, rec.Version})
-	if err != nil {
-		return 0, err
-	}
-	vals, err := l.storedValues(ctx, tx, rec, text)
-	if err != nil {
-		return 0, err
-	}
-	kb := keyArg(rec.Key)
-	row := []any{nil, kpOf(kb), kb, kind, vals[0], vals[1], vals[2], vals[3], hash,
-		string(rec.Status), rec.Error, int64(rec.Duration), now, mac}
+	row := []any{nil, ra.kp, ra.key, ra.kind, ra.vals[0], ra.vals[1], ra.vals[2], ra.vals[3], ra.hash,
+		string(rec.Status), rec.Error, int64(rec.Duration), now, ra.mac}
 	var id int64
 	if bs != nil {
 		id = bs.nextID
@@ -505,7 +481,7 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 		for i := range ups {
 			bs.inputRows = append(bs.inputRows, []any{id, i, ups[i]})
 		}
-		bs.known[rec.Key] = storedNode{id: id, status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, tool: tool, version: rec.Version, params: text.params}
+		bs.known[rec.Key] = storedNode{id: id, status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, tool: ra.tool, version: rec.Version, params: text.params}
 		delete(bs.absent, rec.Key)
 		return id, nil
 	}
@@ -522,6 +498,51 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 		}
 	}
 	return id, nil
+}
+
+// rowArgs are the stored columns of a record that insertNodeInAs,
+// updateNodeAs and quarantine write: its key and key prefix, kind (with
+// the tool named in its description), packed values (params_shape,
+// params, outputs_shape, outputs), output hash and code.
+type rowArgs struct {
+	kp   int64
+	key  []byte
+	tool string
+	kind int64
+	vals []any
+	hash any
+	mac  any
+}
+
+// rowArgsOf computes a record's rowArgs; vouch gives an ok record this
+// user's code (the one checkBatch computed, when it did).
+func (l *Ledger) rowArgsOf(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, text rowText, vouch bool) (rowArgs, error) {
+	var ra rowArgs
+	var err error
+	if ra.tool, err = describedTool(rec.Description); err != nil {
+		return ra, fmt.Errorf("%w: description: %v", ErrIntegrity, err)
+	}
+	if ra.hash, err = outputHashArg(rec); err != nil {
+		return ra, err
+	}
+	if ra.kind, err = l.kindID(ctx, tx, nodeKind{ra.tool, rec.Stage, rec.Version}); err != nil {
+		return ra, err
+	}
+	if ra.vals, err = l.storedValues(ctx, tx, rec, text); err != nil {
+		return ra, err
+	}
+	if vouch && rec.Status == pipeline.NodeOK {
+		m := text.mac
+		if m == nil {
+			m = l.macOf(rec.Key, rec.Status, rec.OutputHash)
+		}
+		if m != nil {
+			ra.mac = m
+		}
+	}
+	ra.key = keyArg(rec.Key)
+	ra.kp = kpOf(ra.key)
+	return ra, nil
 }
 
 // outputHashArg is a record's output hash as stored: its digest, or NULL
@@ -553,25 +574,14 @@ func (l *Ledger) updateNode(ctx context.Context, tx *qtx, rec pipeline.NodeRecor
 
 // updateNodeAs is updateNode; vouch gives the row this user's code.
 func (l *Ledger) updateNodeAs(ctx context.Context, tx *qtx, rec pipeline.NodeRecord, text rowText, vouch bool) error {
-	hash, err := outputHashArg(rec)
+	ra, err := l.rowArgsOf(ctx, tx, rec, text, vouch)
 	if err != nil {
 		return err
-	}
-	vals, err := l.storedValues(ctx, tx, rec, text)
-	if err != nil {
-		return err
-	}
-	kb := keyArg(rec.Key)
-	var mac any
-	if vouch && rec.Status == pipeline.NodeOK {
-		if m := l.macOf(rec.Key, rec.Status, rec.OutputHash); m != nil {
-			mac = m
-		}
 	}
 	res, err := tx.ExecContext(ctx, `UPDATE node_rows
 		SET outputs_shape = ?, outputs = ?, output_hash = ?, status = ?, error = ?, duration_ns = ?, recorded_at = ?, mac = ?
 		WHERE kp = ? AND key = ? AND status = 'failed'`,
-		vals[2], vals[3], hash, string(rec.Status), rec.Error, int64(rec.Duration), l.now().Unix(), mac, kpOf(kb), kb)
+		ra.vals[2], ra.vals[3], ra.hash, string(rec.Status), rec.Error, int64(rec.Duration), l.now().Unix(), ra.mac, ra.kp, ra.key)
 	if err != nil {
 		return fmt.Errorf("update node: %w", err)
 	}
@@ -872,30 +882,13 @@ func (l *Ledger) quarantine(ctx context.Context, tx *qtx, run pipeline.RunID, id
 		SELECT id, key, params_shape, params, outputs_shape, outputs, output_hash, ?, ?, ? FROM node_rows WHERE id = ?`, problem, string(run), now, id); err != nil {
 		return fmt.Errorf("quarantine node %s: %w", rec.Key, err)
 	}
-	hash, err := outputHashArg(rec)
+	ra, err := l.rowArgsOf(ctx, tx, rec, text, true)
 	if err != nil {
 		return err
 	}
-	tool, err := describedTool(rec.Description)
-	if err != nil {
-		return fmt.Errorf("%w: description: %v", ErrIntegrity, err)
-	}
-	var mac any
-	if m := l.macOf(rec.Key, rec.Status, rec.OutputHash); m != nil {
-		mac = m
-	}
-	kind, err := l.kindID(ctx, tx, nodeKind{tool, rec.Stage, rec.Version})
-	if err != nil {
-		return err
-	}
-	vals, err := l.storedValues(ctx, tx, rec, text)
-	if err != nil {
-		return err
-	}
-	kb := keyArg(rec.Key)
 	if _, err := tx.ExecContext(ctx, `UPDATE node_rows SET kp = ?, key = ?, kind = ?, params_shape = ?, params = ?, description = NULL, outputs_shape = ?, outputs = ?, output_hash = ?,
 		status = 'ok', error = '', recorded_at = ?, mac = ? WHERE id = ?`,
-		kpOf(kb), kb, kind, vals[0], vals[1], vals[2], vals[3], hash, l.now().Unix(), mac, id); err != nil {
+		ra.kp, ra.key, ra.kind, ra.vals[0], ra.vals[1], ra.vals[2], ra.vals[3], ra.hash, l.now().Unix(), ra.mac, id); err != nil {
 		return fmt.Errorf("rewrite node %s: %w", rec.Key, err)
 	}
 	// Its inputs as the computation named them.
