@@ -72,32 +72,12 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 		return nil, Usage(fmt.Errorf("%s: %w", s.File, err))
 	}
 	graphs = append(graphs, first)
-	l, err := e.OpenLedger(g)
+	l, info, closeRun, err := e.openRun(ctx, g, s, o)
 	if err != nil {
 		return nil, err
 	}
-	defer l.Close()
-	start := e.Now()
-	id, err := e.NewRunID(start)
-	if err != nil {
-		return nil, err
-	}
-	info := pipeline.RunInfo{
-		ID: id, Started: start, ToolVersion: Version,
-		ConfigPath: s.File, ConfigText: string(s.Text), ConfigHash: s.Hash(), Owner: e.Owner(),
-		DerivedFrom: o.DerivedFrom, Parts: o.Parts,
-	}
-	if err := e.closeAbandoned(ctx, l); err != nil {
-		return nil, err
-	}
-	// The run's lock, held until this process ends or the run is
-	// finished: a later run or runs --close-stale sees it held while the
-	// run lives and free once it died, whatever became of its pid.
-	lock, err := l.HoldRunLock(id)
-	if err != nil {
-		return nil, err
-	}
-	defer lock.Release() // after sess.Finish: deferred calls run last
+	defer closeRun() // after sess.Finish: deferred calls run last
+	id := info.ID
 	if jobs < 1 {
 		jobs = e.CPUs
 	}
@@ -344,6 +324,40 @@ func LoadRun(ctx context.Context, l *ledger.Ledger, ref string) (ledger.RunDetai
 	}
 	results, err := RecordedResults(ctx, l, id)
 	return run, results, err
+}
+
+// openRun opens the ledger for a new run of study s: its id and
+// RunInfo, the runs of dead processes closed, and the run's lock held
+// (until this process ends or the run is finished: a later run or runs
+// --close-stale sees it held while the run lives and free once it died,
+// whatever became of its pid). The returned function frees the lock and
+// closes the ledger.
+func (e *Env) openRun(ctx context.Context, g *Globals, s *study.Study, o ExecOptions) (*ledger.Ledger, pipeline.RunInfo, func(), error) {
+	l, err := e.OpenLedger(g)
+	if err != nil {
+		return nil, pipeline.RunInfo{}, nil, err
+	}
+	start := e.Now()
+	id, err := e.NewRunID(start)
+	if err != nil {
+		l.Close()
+		return nil, pipeline.RunInfo{}, nil, err
+	}
+	info := pipeline.RunInfo{
+		ID: id, Started: start, ToolVersion: Version,
+		ConfigPath: s.File, ConfigText: string(s.Text), ConfigHash: s.Hash(), Owner: e.Owner(),
+		DerivedFrom: o.DerivedFrom, Parts: o.Parts,
+	}
+	if err := e.closeAbandoned(ctx, l); err != nil {
+		l.Close()
+		return nil, pipeline.RunInfo{}, nil, err
+	}
+	lock, err := l.HoldRunLock(id)
+	if err != nil {
+		l.Close()
+		return nil, pipeline.RunInfo{}, nil, err
+	}
+	return l, info, func() { lock.Release(); l.Close() }, nil
 }
 
 // closeAbandoned closes the runs left running by processes that are gone

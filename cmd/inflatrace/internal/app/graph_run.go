@@ -23,26 +23,12 @@ type GraphOutcome struct {
 // carry a whole computation (the study's inferences), with no chunks or
 // works. A node recorded before is reused, so a re-run computes nothing.
 func (e *Env) ExecuteGraph(ctx context.Context, g *Globals, s *study.Study, graph *pipeline.Graph, jobs int) (*GraphOutcome, error) {
-	l, err := e.OpenLedger(g)
+	l, info, closeRun, err := e.openRun(ctx, g, s, ExecOptions{})
 	if err != nil {
 		return nil, err
 	}
-	defer l.Close()
-	start := e.Now()
-	id, err := e.NewRunID(start)
-	if err != nil {
-		return nil, err
-	}
-	info := pipeline.RunInfo{ID: id, Started: start, ToolVersion: Version,
-		ConfigPath: s.File, ConfigText: string(s.Text), ConfigHash: s.Hash(), Owner: e.Owner()}
-	if err := e.closeAbandoned(ctx, l); err != nil {
-		return nil, err
-	}
-	lock, err := l.HoldRunLock(id)
-	if err != nil {
-		return nil, err
-	}
-	defer lock.Release()
+	defer closeRun()
+	id := info.ID
 	if jobs < 1 {
 		jobs = e.CPUs
 	}
