@@ -105,11 +105,7 @@ func InferParams(s InferSpec) (pipeline.Values, error) {
 	}
 	vs[keyFamily] = pipeline.String(s.Family)
 	vs["A_s"] = f(s.As, pipeline.UnitNone)
-	vs["k_pivot"] = f(s.History.PivotPerMpc, pipeline.UnitPerMpc)
-	vs["T_0"] = f(s.History.T0K, pipeline.UnitKelvin)
-	vs["g_s0"] = f(s.History.GS0, pipeline.UnitNone)
-	vs["g_reh"] = f(s.History.GReh, pipeline.UnitNone)
-	vs["g_s_reh"] = f(s.History.GSReh, pipeline.UnitNone)
+	putThermal(vs, s.History)
 	vs["T_reh_min"] = f(s.TLoGeV, pipeline.UnitGeV)
 	vs["tolerance"] = f(s.Tol, pipeline.UnitNone)
 	extra := []infer.Prior{s.W}
@@ -170,12 +166,14 @@ func inferFrom(params pipeline.Values) (InferSpec, error) {
 		g, _ := GaussianFrom(params)
 		s.Constraint = g
 	}
-	v, err := need(params, "inference", "A_s", "k_pivot", "T_0", "g_s0", "g_reh", "g_s_reh", "T_reh_min", "tolerance")
+	if s.History, err = thermalFrom(params, "inference"); err != nil {
+		return s, err
+	}
+	v, err := need(params, "inference", "A_s", "T_reh_min", "tolerance")
 	if err != nil {
 		return s, err
 	}
-	s.As, s.TLoGeV, s.Tol = v[0], v[6], v[7]
-	s.History = reheat.History{PivotPerMpc: v[1], T0K: v[2], GS0: v[3], GReh: v[4], GSReh: v[5]}
+	s.As, s.TLoGeV, s.Tol = v[0], v[1], v[2]
 	priors := map[string]*infer.Prior{}
 	also := map[string]*compare.Gaussian{}
 	get := func(name string) *infer.Prior {

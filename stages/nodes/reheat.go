@@ -90,11 +90,7 @@ func ReheatParams(h HistoryParams, As float64) pipeline.Values {
 		vs["N_star"] = f(h.N, pipeline.UnitNone)
 		return vs
 	}
-	vs["k_pivot"] = f(h.Thermal.PivotPerMpc, pipeline.UnitPerMpc)
-	vs["T_0"] = f(h.Thermal.T0K, pipeline.UnitKelvin)
-	vs["g_s0"] = f(h.Thermal.GS0, pipeline.UnitNone)
-	vs["g_reh"] = f(h.Thermal.GReh, pipeline.UnitNone)
-	vs["g_s_reh"] = f(h.Thermal.GSReh, pipeline.UnitNone)
+	putThermal(vs, h.Thermal)
 	vs["T_bbn"] = f(h.TBBNGeV, pipeline.UnitGeV)
 	switch h.Kind {
 	case HistoryTemperature:
@@ -123,13 +119,35 @@ func need(params pipeline.Values, history string, names ...string) ([]float64, e
 	return out, nil
 }
 
+// putThermal records the thermal history's parameters (k_pivot, T_0,
+// g_s0, g_reh, g_s_reh), which thermalFrom reads back.
+func putThermal(vs pipeline.Values, h reheat.History) {
+	vs["k_pivot"] = pipeline.Float(h.PivotPerMpc, pipeline.UnitPerMpc)
+	vs["T_0"] = pipeline.Float(h.T0K, pipeline.UnitKelvin)
+	vs["g_s0"] = pipeline.Float(h.GS0, pipeline.UnitNone)
+	vs["g_reh"] = pipeline.Float(h.GReh, pipeline.UnitNone)
+	vs["g_s_reh"] = pipeline.Float(h.GSReh, pipeline.UnitNone)
+}
+
+// thermalFrom reads the parameters putThermal records.
+func thermalFrom(params pipeline.Values, history string) (reheat.History, error) {
+	v, err := need(params, history, "k_pivot", "T_0", "g_s0", "g_reh", "g_s_reh")
+	if err != nil {
+		return reheat.History{}, err
+	}
+	return reheat.History{PivotPerMpc: v[0], T0K: v[1], GS0: v[2], GReh: v[3], GSReh: v[4]}, nil
+}
+
 func thermal(params pipeline.Values, history string) (reheat.History, float64, error) {
-	v, err := need(params, history, "k_pivot", "T_0", "g_s0", "g_reh", "g_s_reh", "T_bbn")
+	h, err := thermalFrom(params, history)
 	if err != nil {
 		return reheat.History{}, 0, err
 	}
-	h := reheat.History{PivotPerMpc: v[0], T0K: v[1], GS0: v[2], GReh: v[3], GSReh: v[4]}
-	return h, v[5], h.Check()
+	v, err := need(params, history, "T_bbn")
+	if err != nil {
+		return reheat.History{}, 0, err
+	}
+	return h, v[0], h.Check()
 }
 
 // Run matches the solution to the reheating history. A band reports its
