@@ -82,21 +82,7 @@ func TestInferProductOfSets(t *testing.T) {
 	narrow := s
 	narrow.Constraint.SigmaNs /= math.Sqrt2
 	narrow.Constraint.SigmaR /= math.Sqrt2
-	run := func(sp InferSpec) pipeline.Values {
-		vs, err := InferParams(sp)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if back, err := inferFrom(vs); err != nil || !reflect.DeepEqual(back, sp) {
-			t.Fatalf("round trip: %v\n got %+v\nwant %+v", err, back, sp)
-		}
-		out, err := Infer{}.Run(context.Background(), vs, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return out
-	}
-	a, b := run(twice), run(narrow)
+	a, b := runInferSpec(t, twice), runInferSpec(t, narrow)
 	if d := math.Abs(a["ln_Z"].Float - b["ln_Z"].Float); d > 1e-9 {
 		t.Errorf("ln Z of the product %.10f, of the narrower set %.10f", a["ln_Z"].Float, b["ln_Z"].Float)
 	}
@@ -113,23 +99,9 @@ func TestInferEfoldPriors(t *testing.T) {
 	base := inferBench(false)
 	base.Params = []infer.Prior{{Name: "alpha", Kind: infer.Fixed, Value: 1}, {Name: "n", Kind: infer.Fixed, Value: 1}}
 	base.Forecasts = nil
-	run := func(sp InferSpec) pipeline.Values {
-		vs, err := InferParams(sp)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if back, err := inferFrom(vs); err != nil || !reflect.DeepEqual(back, sp) {
-			t.Fatalf("round trip: %v\n got %+v\nwant %+v", err, back, sp)
-		}
-		out, err := Infer{}.Run(context.Background(), vs, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return out
-	}
 	ns := base
 	ns.NStar = &infer.Prior{Name: "N_star", Kind: infer.Uniform, Lo: 50, Hi: 60}
-	out := run(ns)
+	out := runInferSpec(t, ns)
 	if lo, hi := out["n_s:lo95"].Float, out["n_s:hi95"].Float; lo < 1-2.0/50-0.002 || hi > 1-2.0/60+0.002 {
 		t.Errorf("n_s 95%% interval [%.5f, %.5f] for N* in [50, 60]", lo, hi)
 	}
@@ -139,8 +111,26 @@ func TestInferEfoldPriors(t *testing.T) {
 	nr := base
 	nr.W = infer.Prior{Name: "w_reh", Kind: infer.Fixed, Value: 1.0 / 3}
 	nr.NReh = &infer.Prior{Name: "N_reh", Kind: infer.Uniform, Lo: 0, Hi: 10}
-	out = run(nr)
+	out = runInferSpec(t, nr)
 	if lo, hi := out["N_star:lo95"].Float, out["N_star:hi95"].Float; hi-lo > 1e-6 {
 		t.Errorf("N* 95%% interval [%.6f, %.6f] at w_reh = 1/3: reheating then changes nothing", lo, hi)
 	}
+}
+
+// runInferSpec runs an inference node of sp, checking first that its
+// parameters decode to sp.
+func runInferSpec(t *testing.T, sp InferSpec) pipeline.Values {
+	t.Helper()
+	vs, err := InferParams(sp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back, err := inferFrom(vs); err != nil || !reflect.DeepEqual(back, sp) {
+		t.Fatalf("round trip: %v\n got %+v\nwant %+v", err, back, sp)
+	}
+	out, err := Infer{}.Run(context.Background(), vs, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
 }
