@@ -78,14 +78,7 @@ func Densities(spec DensitySpec) (*Figure, error) {
 	if !ext.ok() {
 		return nil, fmt.Errorf("figures: no density to draw")
 	}
-	if spec.XScale == Log {
-		p.X.Min, p.X.Max = ext.x0/1.2, ext.x1*1.2
-		p.X.Scale = plot.LogScale{}
-		p.X.Tick.Marker = decadeTicks{}
-	} else {
-		pad := 0.03 * math.Max(ext.x1-ext.x0, 1e-12)
-		p.X.Min, p.X.Max = ext.x0-pad, ext.x1+pad
-	}
+	fitX(p, ext, spec.XScale, 1.2, 0.03)
 	p.Y.Min, p.Y.Max = 0, 1.08
 	f.Key = capKey(f.Key)
 	return f, nil
@@ -105,4 +98,18 @@ func (v *vline) Plot(c draw.Canvas, plt *plot.Plot) {
 	tx, _ := plt.Transforms(&c)
 	x := tx(v.x)
 	c.StrokeLine2(v.line, x, c.Min.Y, x, c.Max.Y)
+}
+
+// fitX sets a posterior figure's x range to the extent of its content: on
+// a log axis (decade ticks) a factor beyond each end, on a linear one a
+// fraction of the span.
+func fitX(p *plot.Plot, ext extent, scale Scale, factor, fraction float64) {
+	if scale == Log {
+		p.X.Min, p.X.Max = ext.x0/factor, ext.x1*factor
+		p.X.Scale = plot.LogScale{}
+		p.X.Tick.Marker = decadeTicks{}
+		return
+	}
+	pad := fraction * math.Max(ext.x1-ext.x0, 1e-12)
+	p.X.Min, p.X.Max = ext.x0-pad, ext.x1+pad
 }

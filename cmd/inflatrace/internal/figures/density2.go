@@ -5,7 +5,6 @@ import (
 	"math"
 	"sort"
 
-	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/vg/draw"
 )
 
@@ -90,14 +89,7 @@ func Densities2(spec Density2Spec) (*Figure, error) {
 	f.Key = append(f.Key,
 		KeyEntry{`68% of the posterior`, Swatch{Kind: SwatchLine, Line: draw.LineStyle{Color: forecastColor, Width: curveWidth}}},
 		KeyEntry{`95% of the posterior`, Swatch{Kind: SwatchLine, Line: draw.LineStyle{Color: forecastColor, Width: contourWidth, Dashes: dash95}}})
-	if spec.XScale == Log {
-		p.X.Min, p.X.Max = ext.x0/1.3, ext.x1*1.3
-		p.X.Scale = plot.LogScale{}
-		p.X.Tick.Marker = decadeTicks{}
-	} else {
-		pad := 0.05 * math.Max(ext.x1-ext.x0, 1e-12)
-		p.X.Min, p.X.Max = ext.x0-pad, ext.x1+pad
-	}
+	fitX(p, ext, spec.XScale, 1.3, 0.05)
 	pad := 0.05 * math.Max(ext.y1-ext.y0, 1e-12)
 	p.Y.Min, p.Y.Max = ext.y0-pad, ext.y1+pad
 	f.Key = capKey(f.Key)
