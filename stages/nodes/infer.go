@@ -334,12 +334,17 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 	}
 	base := len(free)
 	derived := infer.Derived // w_reh, log10 T, N_reh, N*, n_s, r
+	// Each derived quantity's 0.1% and 99.9% quantiles, taken with the
+	// others (one sort), span its density below.
+	spans := make([][2]float64, len(derived))
 	for j, name := range derived {
 		if (name == "w_reh" && (s.W.Kind == infer.Fixed || s.NStar != nil)) || !finiteAt(res, base+j) {
 			continue
 		}
 		g := func(i int) float64 { return res.Derived[i][base+j] }
-		put(name, res.Quantiles(g, qs...))
+		q := res.Quantiles(g, append(slices.Clone(qs), 0.001, 0.999)...)
+		put(name, q[:len(qs)])
+		spans[j] = [2]float64{q[len(qs)].Value, q[len(qs)+1].Value}
 		if err := putProfile(out, name, res, g); err != nil {
 			return nil, err
 		}
@@ -349,10 +354,7 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 	// log-uniform prior), and smooth densities of the derived quantities
 	// between their 0.1% and 99.9% quantiles (r as log10 r).
 	for k, p := range free {
-		us := make([]float64, pdfPoints)
-		for j := range us {
-			us[j] = float64(j) / float64(pdfPoints-1)
-		}
+		us := grid(0, 1, pdfPoints)
 		ys, err := res.MarginalDensity(k, us)
 		if err != nil {
 			return nil, err
@@ -372,30 +374,28 @@ func (Infer) Run(ctx context.Context, params pipeline.Values, _ []pipeline.Value
 			continue
 		}
 		g := func(i int) float64 { return res.Derived[i][base+j] }
+		lo, hi := spans[j][0], spans[j][1]
 		if name == "r" {
+			// log10 r's own quantiles (interpolated between nodes in
+			// log10 r, not in r).
 			name = "log10_r"
 			g = func(i int) float64 { return math.Log10(res.Derived[i][base+j]) }
+			q := res.Quantiles(g, 0.001, 0.999)
+			lo, hi = q[0].Value, q[1].Value
 		}
-		q := res.Quantiles(g, 0.001, 0.999)
-		lo, hi := q[0].Value, q[1].Value
 		if !(hi > lo) {
 			continue
 		}
 		// A tenth of the range more on each side, for the kernels' tails.
 		pad := float64(0.1 * (hi - lo))
-		lo, hi = lo-pad, hi+pad
-		xs := make([]float64, pdfPoints)
-		for i := range xs {
-			xs[i] = lo + float64(i)*(hi-lo)/float64(pdfPoints-1)
-		}
+		xs := grid(lo-pad, hi+pad, pdfPoints)
 		putPDF(out, name, xs, res.Density(g, xs))
 	}
 	// Joint densities with log10 T_reh, on pdf2Points x pdf2Points: each
 	// free parameter's (on its prior coordinate, recorded as its values)
 	// and w_reh's when it is free.
 	tIndex := base + slices.Index(derived, "log10_T_reh_GeV")
-	tq := res.Quantiles(func(i int) float64 { return res.Derived[i][tIndex] }, 0.001, 0.999)
-	if tlo, thi := tq[0].Value, tq[1].Value; finiteAt(res, tIndex) && thi > tlo {
+	if tlo, thi := spans[tIndex-base][0], spans[tIndex-base][1]; finiteAt(res, tIndex) && thi > tlo {
 		pad := float64(0.1 * (thi - tlo))
 		ys := grid(tlo-pad, thi+pad, pdf2Points)
 		us := grid(0, 1, pdf2Points)
