@@ -26,6 +26,8 @@ type Options struct {
 	Format  string
 	Digits  int
 	Jobs    int
+	// OneOff, when its Family is set, replaces the study file.
+	OneOff OneOff
 }
 
 // NewCmd returns the infer command; run, when not nil, replaces Run (for
@@ -36,14 +38,15 @@ func NewCmd(env *app.Env, g *app.Globals, run func(context.Context, *Options) er
 		run = Run
 	}
 	cmd := &cobra.Command{
-		Use:   "infer STUDY",
+		Use:   "infer (STUDY | --family NAME [--prior name=SPEC]... [reheating flags] [--constraint NAME]... [--forecast NAME]...)",
 		Short: "Infer each [[inference]] of a study against its constraint sets: evidences, Bayes factors, intervals, predictive r, detection odds",
 		Long: `infer evaluates the [[inference]] tables of a study: for each model family,
 with a prior on each parameter (a value, {uniform = [lo, hi]} or
 {log_uniform = [lo, hi]}) and on reheating (w_reh a value or
 {uniform = [lo, hi]}; T_reh log-uniform between T_reh_min_GeV, the BBN
 bound by default, and the point's instantaneous maximum), against each
-Gaussian constraint set it names (every one by default). The integrals are
+constraint set it names, Gaussian or sample-based (every one by default),
+or their product with independent = true. The integrals are
 taken by a deterministic adaptive cubature to ln Z within "tolerance"
 (0.01 by default), so a re-run gives the same bits; each inference is a
 node of the ledger, reused when nothing it depends on changed.
@@ -53,18 +56,55 @@ numerical error; ln B against the model marked reference = true, with its
 grade on Jeffreys' scale; each free parameter's median and 68% credible
 interval; N* and log10 T_reh/GeV (median, 68%); the 95% predictive range of
 r; and for each [[forecast]] the probability of a 3 sigma detection of r.
-JSON carries every recorded number with its error estimate.`,
+JSON carries every recorded number with its error estimate.
+
+Without a STUDY file, --family infers one model from flags: each
+--prior is name=VALUE (a ratio such as 1/3 is fine), name=uniform:lo,hi
+or name=log_uniform:lo,hi, and a parameter not given takes the family's
+default; --w-reh, --N-reh and --efolds (N*) take VALUE or uniform:lo,hi.
+The study the flags describe is recorded with the run (inflatrace show
+RUN prints it, ready to be kept as a file).`,
+		Example: `  inflatrace infer paper.toml --format latex
+  inflatrace infer --family e-model --prior alpha=log_uniform:0.01,100 --constraint planck2018-bk18 --forecast litebird
+  inflatrace infer --family starobinsky --w-reh uniform:0,1 --constraint act-dr6-bk18-2025`,
 		Args: func(_ *cobra.Command, args []string) error {
-			if len(args) != 1 {
-				return app.Usage(fmt.Errorf("give one STUDY file"))
+			switch {
+			case len(args) == 1 && o.OneOff.Family != "":
+				return app.Usage(fmt.Errorf("give a STUDY file or --family, not both"))
+			case len(args) > 1 || (len(args) == 0 && o.OneOff.Family == ""):
+				return app.Usage(fmt.Errorf("give one STUDY file, or --family NAME for a one-off inference"))
 			}
 			return nil
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
-			o.Config = args[0]
+			if len(args) == 1 {
+				o.Config = args[0]
+			} else if err := oneOffFlagsOnly(cmd); err != nil {
+				return err
+			}
+			if o.Config != "" {
+				if err := studyFlagsOnly(cmd); err != nil {
+					return err
+				}
+			}
 			return run(cmd.Context(), o)
 		},
 	}
+	f := cmd.Flags()
+	oo := &o.OneOff
+	f.StringVar(&oo.Family, "family", "", "one-off inference: the model family (see inflatrace models)")
+	f.StringArrayVar(&oo.Params, "prior", nil, "one-off: a parameter's prior, name=VALUE, name=uniform:lo,hi or name=log_uniform:lo,hi (repeatable)")
+	f.StringVar(&oo.WReh, "w-reh", "", "one-off: w_reh as VALUE or uniform:lo,hi (default 0)")
+	f.StringVar(&oo.NReh, "N-reh", "", "one-off: a prior on the e-folds of reheating instead of T_reh, VALUE or uniform:lo,hi")
+	f.StringVar(&oo.NStar, "efolds", "", "one-off: a prior on N* itself (no reheating history), VALUE or uniform:lo,hi")
+	f.StringVar(&oo.TMinGeV, "T-reh-min-GeV", "", "one-off: lowest T_reh of its log-uniform prior [GeV] (default: the BBN bound)")
+	f.StringArrayVar(&oo.Constraints, "constraint", nil, "one-off: shipped constraint set (repeatable; default cmb-combined-2025)")
+	f.StringArrayVar(&oo.CFiles, "constraint-file", nil, "one-off: constraint file, Gaussian or samples (repeatable)")
+	f.StringArrayVar(&oo.Forecasts, "forecast", nil, "one-off: shipped forecast (repeatable)")
+	f.StringArrayVar(&oo.FFiles, "forecast-file", nil, "one-off: forecast file (repeatable)")
+	f.BoolVar(&oo.Independent, "independent", false, "one-off: the constraint sets are independent; infer against their product")
+	f.StringVar(&oo.Tolerance, "tolerance", "", "one-off: target error of ln Z (default 0.01)")
+	f.StringVar(&oo.Label, "label", "", "one-off: the inference's label (default: the family's name)")
 	cmd.Flags().StringVar(&o.Format, "format", "text", "output format: text, markdown, csv, json or latex")
 	cmd.Flags().IntVar(&o.Digits, "digits", 3, "significant digits in text, markdown and latex")
 	cmd.Flags().IntVarP(&o.Jobs, "jobs", "j", 0, "inferences evaluated at once (default: one per CPU)")
@@ -84,7 +124,15 @@ func Run(ctx context.Context, o *Options) error {
 	if o.Jobs < 0 {
 		return app.Usage(errors.New("--jobs must be at least 1"))
 	}
-	s, err := study.Load(o.Config)
+	var s *study.Study
+	var err error
+	name := o.Config
+	if o.OneOff.Family != "" {
+		s, err = o.OneOff.Study()
+		name = oneOffFile
+	} else {
+		s, err = study.Load(o.Config)
+	}
 	if err != nil {
 		return app.Usage(err)
 	}
@@ -93,7 +141,7 @@ func Run(ctx context.Context, o *Options) error {
 	}
 	graph, err := s.InferenceGraph()
 	if err != nil {
-		return app.Usage(fmt.Errorf("%s: %w", o.Config, err))
+		return app.Usage(fmt.Errorf("%s: %w", name, err))
 	}
 	out, err := o.Env.ExecuteGraph(ctx, o.Globals, s, graph, o.Jobs)
 	var failed *app.RunFailedError
@@ -105,4 +153,27 @@ func Run(ctx context.Context, o *Options) error {
 		return werr
 	}
 	return err
+}
+
+// oneOffNames are the flags that describe a one-off inference.
+var oneOffNames = []string{"prior", "w-reh", "N-reh", "efolds", "T-reh-min-GeV", "constraint", "constraint-file", "forecast", "forecast-file", "independent", "tolerance", "label"}
+
+// studyFlagsOnly refuses one-off flags beside a study file, which holds
+// all of them itself.
+func studyFlagsOnly(cmd *cobra.Command) error {
+	for _, n := range append([]string{"family"}, oneOffNames...) {
+		if cmd.Flags().Changed(n) {
+			return app.Usage(fmt.Errorf("--%s describes a one-off inference: with a STUDY file, write it in the file's [[inference]] table", n))
+		}
+	}
+	return nil
+}
+
+// oneOffFlagsOnly is the one-off's check of its flags (none yet beyond
+// what the study's parser checks).
+func oneOffFlagsOnly(cmd *cobra.Command) error {
+	if cmd.Flags().Changed("N-reh") && cmd.Flags().Changed("efolds") {
+		return app.Usage(errors.New("--N-reh and --efolds: give one (a prior on N_reh or on N* itself)"))
+	}
+	return nil
 }

@@ -6,8 +6,8 @@ import (
 	"os"
 	"path/filepath"
 	"runtime/debug"
-	"testing"
 	"syscall"
+	"testing"
 	"time"
 )
 
