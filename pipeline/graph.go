@@ -49,7 +49,7 @@ func (g *Graph) Add(st Stage, params Values, label string, inputs ...int) (int, 
 		}
 	}
 	// The node's signature: stage, version, canonical parameters, inputs.
-	var arr [24]namedValue
+	var arr [valuesOnStack]namedValue
 	entries, size := sortedValues(params, arr[:], "")
 	sig := make([]byte, 0, size+len(spec.Name)+16+8*len(inputs))
 	sig = append(sig, spec.Name...)

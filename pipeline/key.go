@@ -101,7 +101,7 @@ func Describe(tool string, stage string, version int, params Values, inputs []In
 // describe is Describe, also returning the key when withKey is set (hashed
 // from the bytes before they become the string, saving a copy).
 func describe(tool string, stage string, version int, params Values, inputs []InputRef, withKey bool) (string, KeyID, error) {
-	var arr [24]namedValue
+	var arr [valuesOnStack]namedValue
 	entries, size := sortedValues(params, arr[:], "param ")
 	size += 96 + 4*len(tool) + len(stage)
 	for _, in := range inputs {

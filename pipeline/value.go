@@ -125,6 +125,11 @@ func appendLine(b []byte, name string, v Value) ([]byte, error) {
 	return b, fmt.Errorf("value %q has no kind", name)
 }
 
+// valuesOnStack is the size of the arrays encoders sort values in without
+// allocating: a compare node's outputs (about 30 values with a forecast
+// and the BBN flag) fit.
+const valuesOnStack = 48
+
 // namedValue is one entry of a Values, for encoding in name order.
 type namedValue struct {
 	name string
@@ -165,7 +170,7 @@ func appendValues(b []byte, entries []namedValue, prefix string) ([]byte, error)
 // name, each ending in a newline. It fails on non-finite floats, so a NaN
 // can never become a recorded result.
 func (vs Values) Encode() ([]byte, error) {
-	var arr [24]namedValue
+	var arr [valuesOnStack]namedValue
 	entries, size := sortedValues(vs, arr[:], "")
 	b, err := appendValues(make([]byte, 0, size), entries, "")
 	if err != nil {

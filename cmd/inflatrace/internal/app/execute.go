@@ -123,7 +123,14 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 	// points, settings, stage versions and tool) is linked and its
 	// recorded results reported, without building its graph; otherwise its
 	// graph is evaluated (reusing recorded nodes), recorded and let go.
-	for _, ch := range chunks {
+	// While a chunk computes, the next chunk's graph is built on the side
+	// (building one is serial work, a tenth of a chunk's): a cold scan
+	// then never waits for it. It is built only after a chunk that was
+	// computed, so a warm run, whose chunks are all found, builds none.
+	var ahead chan builtGraph
+	for i, ch := range chunks {
+		pre := ahead
+		ahead = nil
 		key, err := ch.WorkKey(ToolIdentity)
 		if err != nil {
 			runErr = fmt.Errorf("%s: %w", s.File, err)
@@ -155,10 +162,19 @@ func (e *Env) ExecuteWith(ctx context.Context, g *Globals, s *study.Study, o Exe
 		}
 		graph := first
 		if graph == nil {
-			if graph, err = ch.Graph(); err != nil {
+			if pre != nil {
+				b := <-pre
+				graph, err = b.graph, b.err
+			} else {
+				graph, err = ch.Graph()
+			}
+			if err != nil {
 				runErr = err
 				break
 			}
+		}
+		if i+1 < len(chunks) {
+			ahead = buildAhead(chunks[i+1])
 		}
 		var rs []study.Result
 		rep, err := sess.ExecuteWork(ctx, graph, key, func(rep *pipeline.Report) ([]byte, error) {
@@ -398,4 +414,22 @@ func startHeartbeat(ctx context.Context, l *ledger.Ledger, id pipeline.RunID) (s
 			beat = nil
 		}
 	}
+}
+
+// builtGraph is a chunk's graph built ahead of its turn, or the error of
+// building it.
+type builtGraph struct {
+	graph *pipeline.Graph
+	err   error
+}
+
+// buildAhead builds ch's graph on a goroutine of its own and delivers it
+// on the channel returned (buffered: a graph nobody takes is let go).
+func buildAhead(ch *study.Study) chan builtGraph {
+	c := make(chan builtGraph, 1)
+	go func() {
+		g, err := ch.Graph()
+		c <- builtGraph{g, err}
+	}()
+	return c
 }
