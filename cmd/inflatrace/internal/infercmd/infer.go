@@ -77,15 +77,12 @@ RUN prints it, ready to be kept as a file).`,
 			return nil
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
+			check := oneOffFlagsOnly
 			if len(args) == 1 {
-				o.Config = args[0]
-			} else if err := oneOffFlagsOnly(cmd); err != nil {
-				return err
+				o.Config, check = args[0], studyFlagsOnly
 			}
-			if o.Config != "" {
-				if err := studyFlagsOnly(cmd); err != nil {
-					return err
-				}
+			if err := check(cmd); err != nil {
+				return err
 			}
 			return run(cmd.Context(), o)
 		},
@@ -169,8 +166,9 @@ func studyFlagsOnly(cmd *cobra.Command) error {
 	return nil
 }
 
-// oneOffFlagsOnly is the one-off's check of its flags (none yet beyond
-// what the study's parser checks).
+// oneOffFlagsOnly checks the one-off's flags against each other before
+// they become a study: --N-reh and --efolds are two priors on the same
+// e-folds, and one of them must go.
 func oneOffFlagsOnly(cmd *cobra.Command) error {
 	if cmd.Flags().Changed("N-reh") && cmd.Flags().Changed("efolds") {
 		return app.Usage(errors.New("--N-reh and --efolds: give one (a prior on N_reh or on N* itself)"))

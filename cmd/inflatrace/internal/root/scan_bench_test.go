@@ -37,20 +37,26 @@ func scanHarness(b *testing.B, points int) (*harness, string) {
 // cores, under 300 bytes of ledger per node. Reports seconds per scan,
 // points per second and bytes per node.
 func BenchmarkScanCold(b *testing.B) {
+	coldScans(b, scanPoints)
+	b.ReportMetric(float64(b.N*scanPoints)/b.Elapsed().Seconds(), "points/s")
+}
+
+// coldScans runs b.N cold scans of points points, each in a new ledger,
+// timing the runs alone, and reports seconds per scan and the bytes on
+// disk per node of the last scan's ledger (5 nodes a point).
+func coldScans(b *testing.B, points int) {
 	for i := 0; i < b.N; i++ {
 		b.StopTimer()
-		h, p := scanHarness(b, scanPoints)
+		h, p := scanHarness(b, points)
 		lastLedger = h.ledger
 		b.StartTimer()
 		if _, errs, code := h.run("run", p); code != 0 {
 			b.Fatal(errs)
 		}
 	}
-	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/scan")
-	b.ReportMetric(float64(b.N*scanPoints)/b.Elapsed().Seconds(), "points/s")
 	b.StopTimer()
-	// Bytes on disk per node of the last scan's ledger (5 nodes a point).
-	b.ReportMetric(float64(ledgerBytes(b, lastLedger))/float64(5*scanPoints), "bytes/node")
+	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/scan")
+	b.ReportMetric(float64(ledgerBytes(b, lastLedger))/float64(5*points), "bytes/node")
 }
 
 // lastLedger is the ledger of the last cold scan.
@@ -165,18 +171,7 @@ func BenchmarkScanCold1e6(b *testing.B) {
 	const points = 1000000
 	// The command's Go heap limit (cmd/inflatrace/main.go, memoryLimit).
 	defer debug.SetMemoryLimit(debug.SetMemoryLimit(320 << 20))
-	for i := 0; i < b.N; i++ {
-		b.StopTimer()
-		h, p := scanHarness(b, points)
-		lastLedger = h.ledger
-		b.StartTimer()
-		if _, errs, code := h.run("run", p); code != 0 {
-			b.Fatal(errs)
-		}
-	}
-	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/scan")
-	b.StopTimer()
-	b.ReportMetric(float64(ledgerBytes(b, lastLedger))/float64(5*points), "bytes/node")
+	coldScans(b, points)
 	var ru syscall.Rusage
 	if err := syscall.Getrusage(syscall.RUSAGE_SELF, &ru); err == nil {
 		b.ReportMetric(float64(ru.Maxrss)/1024, "peak-RSS-MB") // Linux: kilobytes
