@@ -5,9 +5,11 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
+	"hash/maphash"
 	"runtime"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 )
@@ -55,11 +57,11 @@ func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch 
 		if bs.ordinal, err = nextOrdinal(ctx, tx, run); err != nil {
 			return err
 		}
-		var top sql.NullInt64
-		if err := tx.QueryRowContext(ctx, "SELECT max(id) FROM node_rows").Scan(&top); err != nil {
+		top, err := l.nodeTop(ctx, tx)
+		if err != nil {
 			return err
 		}
-		bs.nextID = top.Int64 + 1
+		bs.nextID = top + 1
 		if used, err = l.prefetch(ctx, tx, batch, bs, missing); err != nil {
 			return err
 		}
@@ -89,6 +91,7 @@ func (l *Ledger) recordBatchWith(ctx context.Context, run pipeline.RunID, batch 
 				return err
 			}
 		}
+		tx.wroteNodes(&l.marks, bs.nextID-1, bs.wrote...)
 		committed = bs
 		return nil
 	})
@@ -173,7 +176,8 @@ func insertRows(ctx context.Context, tx *qtx, head, tail string, cols int, rows 
 // not stored (l.missing), and used reports whether any was.
 func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorded, bs *batchState, missing bool) (used bool, err error) {
 	seen := map[pipeline.KeyID]bool{}
-	fresh := map[pipeline.KeyID]bool{} // new nodes of this batch
+	fresh := map[pipeline.KeyID]bool{}  // new nodes of this batch
+	check := map[pipeline.KeyID]int64{} // keys taken as absent, with the snapshot that found them so
 	var keys []pipeline.KeyID
 	add := func(k pipeline.KeyID) {
 		if !seen[k] {
@@ -188,10 +192,17 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 				bs.known[b.Node.Key] = st
 				continue
 			}
-		case missing && (b.New || l.taken(b.Node.Key)):
+		case missing && b.New:
+			snap, err := l.marks.unheldSince(b.Node)
+			if err != nil {
+				return used, err
+			}
 			seen[b.Node.Key], bs.absent[b.Node.Key], used = true, true, true
-			if b.New {
-				fresh[b.Node.Key] = true
+			fresh[b.Node.Key], check[b.Node.Key] = true, snap
+		case missing:
+			if snap, ok := l.missing.take(b.Node.Key); ok {
+				seen[b.Node.Key], bs.absent[b.Node.Key], used = true, true, true
+				check[b.Node.Key] = snap
 			}
 		}
 		add(b.Node.Key)
@@ -210,14 +221,19 @@ func (l *Ledger) prefetch(ctx context.Context, tx *qtx, batch []pipeline.Recorde
 			}
 		}
 	}
-	// The keys taken as absent are checked in one pass of the prefix
+	// The keys taken as absent that could have been written since they
+	// were found absent (writeMarks) are checked in one pass of the prefix
 	// index (node_rows has no unique key index to refuse a second row): a
-	// key another writer recorded meanwhile fails the batch, which is then
-	// recorded again reading every key.
+	// key recorded meanwhile fails the batch, which is then recorded again
+	// reading every key. In a scan that is the only writer of its ledger,
+	// the filter's false positives alone are checked.
 	var taken [][]byte
-	for k := range bs.absent {
-		taken = append(taken, keyArg(k))
+	for k, snap := range check {
+		if !l.marks.unchanged(k, snap) {
+			taken = append(taken, keyArg(k))
+		}
 	}
+	l.marks.checked.Add(int64(len(taken)))
 	for len(taken) > 0 {
 		n := min(len(taken), 500)
 		cond, args := keyMatch("", taken[:n])
@@ -313,6 +329,10 @@ const lookupSplit = 64
 func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]storedRow, error) {
 	var out []storedRow
 	err := l.inReadTx(ctx, func(tx *qtx) error {
+		var snapshot sql.NullInt64
+		if err := tx.QueryRowContext(ctx, "SELECT max(id) FROM node_rows").Scan(&snapshot); err != nil {
+			return err
+		}
 		for len(keys) > 0 {
 			n := min(len(keys), 500)
 			args := make([]any, n)
@@ -321,7 +341,7 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 			}
 			part := keys[:n]
 			keys = keys[n:]
-			ids, err := l.existing(ctx, tx, part, args)
+			ids, err := l.existing(ctx, tx, part, args, snapshot.Int64)
 			if err != nil {
 				return err
 			}
@@ -386,16 +406,11 @@ func (l *Ledger) lookupRows(ctx context.Context, keys []pipeline.KeyID) ([]store
 // marks is n comma-separated placeholders.
 func marks(n int) string { return strings.TrimSuffix(strings.Repeat("?, ", n), ", ") }
 
-// taken says whether l.missing held k, and forgets it.
-func (l *Ledger) taken(k pipeline.KeyID) bool {
-	_, ok := l.missing.take(k)
-	return ok
-}
-
 // existing returns the ids of the stored rows among keys (args are the
 // keys as query arguments), from the key index alone, and remembers the
-// keys not stored at all (l.missing) for recording them a moment later.
-func (l *Ledger) existing(ctx context.Context, tx *qtx, keys []pipeline.KeyID, args []any) ([]any, error) {
+// keys not stored at all (l.missing), with snapshot, the largest node id
+// tx sees, for recording them a moment later.
+func (l *Ledger) existing(ctx context.Context, tx *qtx, keys []pipeline.KeyID, args []any, snapshot int64) ([]any, error) {
 	kbs := make([][]byte, len(args))
 	for i, a := range args {
 		kbs[i] = a.([]byte)
@@ -422,7 +437,7 @@ func (l *Ledger) existing(ctx context.Context, tx *qtx, keys []pipeline.KeyID, a
 	}
 	for _, k := range keys {
 		if !stored[k] {
-			l.missing.put(k, struct{}{})
+			l.missing.put(k, snapshot)
 		}
 	}
 	return ids, nil
@@ -469,13 +484,197 @@ func (km *keyMemo[V]) take(k pipeline.KeyID) (V, bool) {
 
 // HoldsStage says whether the ledger holds any node of the stage version
 // described with tool (pipeline.StageHolder), from node_kinds.
+// A kind found not held is remembered with the largest node id of the
+// same snapshot (writeMarks.unheldSince).
 func (l *Ledger) HoldsStage(ctx context.Context, tool, stage string, version int) (bool, error) {
 	var n int
-	err := l.rdb.QueryRowContext(ctx, "SELECT count(*) FROM kinds WHERE tool = ? AND stage = ? AND stage_version = ?", tool, stage, version).Scan(&n)
+	var top sql.NullInt64
+	err := l.inReadTx(ctx, func(tx *qtx) error {
+		if err := tx.QueryRowContext(ctx, "SELECT count(*) FROM kinds WHERE tool = ? AND stage = ? AND stage_version = ?", tool, stage, version).Scan(&n); err != nil {
+			return err
+		}
+		return tx.QueryRowContext(ctx, "SELECT max(id) FROM node_rows").Scan(&top)
+	})
 	if err != nil {
 		return false, fmt.Errorf("ledger: node kinds: %w", err)
+	}
+	if n == 0 {
+		l.marks.unheld(nodeKind{tool, stage, version}, top.Int64)
 	}
 	return n > 0, nil
 }
 
 var _ pipeline.StageHolder = (*Ledger)(nil)
+
+// writeMarks lets a batch tell whether a key it takes as absent could
+// have been written since the snapshot that found it absent (a look-up of
+// the key, or HoldsStage finding no node of its kind), without reading
+// the key again. Node ids only grow and a row is never deleted nor given a
+// key it did not have, so a row written after a snapshot has an id above
+// the snapshot's largest. Every node row this Ledger writes is noted with
+// its key (written, a Bloom filter); every row above own that a write
+// transaction meets (which no other connection can interleave) was
+// written by another connection, and foreign is the largest id such rows
+// can have. A key found absent at a snapshot at or above foreign, and not
+// in written, is still absent; any other is read again (prefetch).
+type writeMarks struct {
+	mu      sync.Mutex
+	own     int64 // every node id up to own has been attributed
+	foreign int64 // no row above it was written by another connection
+	written bloomSet
+	kinds   map[nodeKind]int64 // kinds found not held, with the snapshot's largest node id
+	checked atomic.Int64       // keys taken as absent and read again (for tests)
+}
+
+// start reads the largest node id at Open: the rows up to it count as
+// another connection's.
+func (m *writeMarks) start(ctx context.Context, db *sql.DB) error {
+	var top sql.NullInt64
+	if err := db.QueryRowContext(ctx, "SELECT max(id) FROM node_rows").Scan(&top); err != nil {
+		return fmt.Errorf("read the largest node id: %w", err)
+	}
+	m.mu.Lock()
+	m.own, m.foreign = top.Int64, top.Int64
+	m.mu.Unlock()
+	return nil
+}
+
+// observe is told the largest node id read inside a write transaction:
+// the rows above own were written by another connection.
+func (m *writeMarks) observe(top int64) {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if top > m.own {
+		m.own, m.foreign = top, top
+	}
+}
+
+// wrote notes rows up to top written by this Ledger with keys.
+func (m *writeMarks) wrote(top int64, keys []pipeline.KeyID) {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	for _, k := range keys {
+		m.written.add(k)
+	}
+	m.own = max(m.own, top)
+}
+
+// unchanged says whether key k, found absent by a snapshot whose largest
+// node id was snapshot, can only be absent still.
+func (m *writeMarks) unchanged(k pipeline.KeyID, snapshot int64) bool {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	return snapshot >= m.foreign && !m.written.has(k)
+}
+
+// unheld notes that a snapshot whose largest node id was top held no node
+// of kind k (HoldsStage).
+func (m *writeMarks) unheld(k nodeKind, top int64) {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if m.kinds == nil {
+		m.kinds = map[nodeKind]int64{}
+	}
+	if old, ok := m.kinds[k]; !ok || top > old {
+		m.kinds[k] = top
+	}
+}
+
+// unheldSince returns the largest node id of the latest snapshot found to
+// hold no node of rec's kind (-1 when none was: never unchanged).
+func (m *writeMarks) unheldSince(rec pipeline.NodeRecord) (int64, error) {
+	tool, err := describedTool(rec.Description)
+	if err != nil {
+		return 0, fmt.Errorf("%w: node %s: description: %v", ErrIntegrity, rec.Key, err)
+	}
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if top, ok := m.kinds[nodeKind{tool, rec.Stage, rec.Version}]; ok {
+		return top, nil
+	}
+	return -1, nil
+}
+
+// nodeTop returns the largest node id inside write transaction tx (read
+// once, before tx writes a node row), attributing the rows above what this
+// Ledger has seen to another connection.
+func (l *Ledger) nodeTop(ctx context.Context, tx *qtx) (int64, error) {
+	if !tx.topRead {
+		var t sql.NullInt64
+		if err := tx.QueryRowContext(ctx, "SELECT max(id) FROM node_rows").Scan(&t); err != nil {
+			return 0, err
+		}
+		tx.topRead, tx.nodeTop = true, t.Int64
+		l.marks.observe(t.Int64)
+	}
+	return tx.nodeTop, nil
+}
+
+// wroteNodes notes that tx wrote node rows with keys, up to id; they are
+// noted in m once tx commits. nodeTop must have been called in tx first.
+func (tx *qtx) wroteNodes(m *writeMarks, id int64, keys ...pipeline.KeyID) {
+	if !tx.topRead || len(keys) == 0 {
+		return
+	}
+	tx.onCommit = append(tx.onCommit, func() { m.wrote(id, keys) })
+}
+
+// bloomSet is a growing Bloom filter of keys: a chain of filters of
+// doubling capacity, about 1% false positives each.
+type bloomSet struct {
+	filters []bloom
+}
+
+// bloom is one filter of bloomSet.
+type bloom struct {
+	bits        []uint64
+	n, capacity int
+}
+
+const (
+	bloomFirst  = 1 << 16 // capacity of the first filter
+	bloomBits   = 10      // bits per key
+	bloomHashes = 7
+)
+
+var bloomSeed = maphash.MakeSeed()
+
+func bloomHash(k pipeline.KeyID) (uint64, uint64) {
+	h := maphash.String(bloomSeed, string(k))
+	return h, h>>32 | h<<32 | 1
+}
+
+func (s *bloomSet) add(k pipeline.KeyID) {
+	if len(s.filters) == 0 || s.filters[len(s.filters)-1].n >= s.filters[len(s.filters)-1].capacity {
+		c := bloomFirst << len(s.filters)
+		s.filters = append(s.filters, bloom{bits: make([]uint64, (c*bloomBits+63)/64), capacity: c})
+	}
+	f := &s.filters[len(s.filters)-1]
+	h1, h2 := bloomHash(k)
+	m := uint64(len(f.bits) * 64)
+	for i := range uint64(bloomHashes) {
+		b := (h1 + i*h2) % m
+		f.bits[b/64] |= 1 << (b % 64)
+	}
+	f.n++
+}
+
+func (s *bloomSet) has(k pipeline.KeyID) bool {
+	h1, h2 := bloomHash(k)
+	for fi := range s.filters {
+		f := &s.filters[fi]
+		m := uint64(len(f.bits) * 64)
+		in := true
+		for i := range uint64(bloomHashes) {
+			b := (h1 + i*h2) % m
+			if f.bits[b/64]&(1<<(b%64)) == 0 {
+				in = false
+				break
+			}
+		}
+		if in {
+			return true
+		}
+	}
+	return false
+}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"database/sql"
 	"errors"
+	"fmt"
 	"path/filepath"
 	"reflect"
 	"strings"
@@ -321,5 +322,93 @@ func TestPackedLayoutMigration(t *testing.T) {
 	}
 	if probs, err := l.Audit(ctx); err != nil || len(probs) != 0 {
 		t.Errorf("Audit after a new run: %+v, %v", probs, err)
+	}
+}
+
+// TestAbsentKeysReadAgainOnlyWhenWritten: a scan alone on its ledger takes
+// the keys of a stage the ledger held none of as absent without reading
+// them again; the same key met in a later batch of the run (its flight
+// forgotten) is read again and linked, not written twice; and a key of an
+// unheld stage that another process wrote after the stage was found
+// unheld is read again, found, and linked.
+func TestAbsentKeysReadAgainOnlyWhenWritten(t *testing.T) {
+	l, path := openTest(t)
+	if held, err := l.HoldsStage(ctx, testTool, "model", 3); err != nil || held {
+		t.Fatalf("an empty ledger holds stage model/3: %v %v", held, err)
+	}
+	run := beginRun(t, l, "r1", testClock)
+	a := mkNode(t, "model", pipeline.Values{"x": num(1)}, pipeline.Values{"y": num(2)})
+	b := mkNode(t, "model", pipeline.Values{"x": num(2)}, pipeline.Values{"y": num(3)})
+	if err := l.RecordNodes(ctx, run, []pipeline.Recorded{{Node: a, Action: pipeline.Computed, New: true}, {Node: b, Action: pipeline.Computed, New: true}}); err != nil {
+		t.Fatal(err)
+	}
+	if n := l.marks.checked.Load(); n != 0 {
+		t.Errorf("%d keys read again in the first batch of a ledger's only writer, want 0", n)
+	}
+	before := rowCounts(t, l)
+	if err := l.RecordNodes(ctx, run, []pipeline.Recorded{{Node: a, Action: pipeline.Computed, New: true}}); err != nil {
+		t.Fatalf("a New node the run already recorded: %v", err)
+	}
+	if n := l.marks.checked.Load(); n < 1 {
+		t.Errorf("a key this ledger wrote was taken as absent without being read again")
+	}
+	if after := rowCounts(t, l); after["nodes"] != before["nodes"] {
+		t.Errorf("%d node rows written for a node the run already recorded", after["nodes"]-before["nodes"])
+	}
+
+	// Another process writes a node of a stage this ledger found unheld.
+	other, err := Open(path, WithClock(fixedClock))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer other.Close()
+	if held, err := l.HoldsStage(ctx, testTool, "canonical", 3); err != nil || held {
+		t.Fatalf("stage canonical/3 held: %v %v", held, err)
+	}
+	c := mkNode(t, "canonical", pipeline.Values{"k": num(0.05)}, pipeline.Values{"y": num(3)}, a)
+	otherRun := beginRun(t, other, "r2", testClock)
+	record(t, other, otherRun, a, pipeline.Reused)
+	record(t, other, otherRun, c, pipeline.Computed)
+	before = rowCounts(t, l)
+	checked := l.marks.checked.Load()
+	if err := l.RecordNodes(ctx, run, []pipeline.Recorded{{Node: c, Action: pipeline.Computed, New: true}}); err != nil {
+		t.Fatalf("a New node another process recorded meanwhile: %v", err)
+	}
+	if l.marks.checked.Load() == checked {
+		t.Error("a key another process may have written was taken as absent without being read again")
+	}
+	after := rowCounts(t, l)
+	if after["nodes"] != before["nodes"] || after["run_nodes"] != before["run_nodes"]+1 {
+		t.Errorf("rows before %v, after %v: want one more link and no new node", before, after)
+	}
+}
+
+// TestBloomSet: a key added is always found (a false negative would let a
+// written key be taken as absent), across the growth of the chain; keys
+// not added are found rarely (about 1% a filter at 10 bits and 7 hashes:
+// Bloom 1970, false-positive rate (1-e^(-kn/m))^k, common practice).
+func TestBloomSet(t *testing.T) {
+	var s bloomSet
+	const n = 300000
+	key := func(i int) pipeline.KeyID { return pipeline.KeyID(fmt.Sprintf("sha256:%064x", i)) }
+	for i := range n {
+		s.add(key(i))
+	}
+	if len(s.filters) < 3 {
+		t.Errorf("%d filters for %d keys: the chain did not grow", len(s.filters), n)
+	}
+	for i := range n {
+		if !s.has(key(i)) {
+			t.Fatalf("key %d added but not found", i)
+		}
+	}
+	fp := 0
+	for i := n; i < 2*n; i++ {
+		if s.has(key(i)) {
+			fp++
+		}
+	}
+	if rate := float64(fp) / n; rate > 0.04 {
+		t.Errorf("false-positive rate %.4f over %d filters, want about 0.01 each", rate, len(s.filters))
 	}
 }

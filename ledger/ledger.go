@@ -40,11 +40,11 @@ type Ledger struct {
 	// What LookupMany just found, for the writer a moment later: rows
 	// (their ids, statuses and output hashes; ids never change and ok rows
 	// never change, so an entry cannot go stale) and keys not stored at
-	// all (an entry can go stale when another process writes the key; the
-	// batch then fails on the key's uniqueness and is recorded again
-	// reading every key).
+	// all, with the largest node id of the snapshot that found them so (an
+	// entry can go stale when another writer records the key; the batch
+	// then finds the key stored and is recorded again reading every key).
 	seen    keyMemo[storedNode]
-	missing keyMemo[struct{}]
+	missing keyMemo[int64]
 	// recent holds the rows recent batches wrote or read (committed): the
 	// inputs of the next batches' nodes and the nodes of their works.
 	recent keyMemo[storedNode]
@@ -52,6 +52,8 @@ type Ledger struct {
 	// problem: taken as missing, computed again, and rewritten (the row as
 	// found kept in quarantine) when the computation is recorded.
 	suspect keyMemo[string]
+	// marks tells a key taken as absent that nobody wrote since (writeMarks).
+	marks writeMarks
 	// sealSigner, when set, signs every seal the ledger writes.
 	sealSigner func(msg []byte) ([]byte, error)
 	// macKey, when set, authenticates nodes (WithNodeKey).
@@ -126,6 +128,10 @@ func Open(path string, opts ...Option) (*Ledger, error) {
 	// Checkpoint the WAL into the database every ~40 MB rather than every
 	// ~4 MB: each checkpoint syncs the file, and a large scan writes a lot.
 	if _, err := db.ExecContext(ctx, "PRAGMA wal_autocheckpoint = 10000"); err != nil {
+		db.Close()
+		return nil, fmt.Errorf("open ledger %s: %w", path, err)
+	}
+	if err := l.marks.start(ctx, db); err != nil {
 		db.Close()
 		return nil, fmt.Errorf("open ledger %s: %w", path, err)
 	}
@@ -351,6 +357,10 @@ type qtx struct {
 	newShapes map[string]int64
 	newKinds  map[nodeKind]int64
 	onCommit  []func()
+	// nodeTop is the largest node id before the transaction wrote any,
+	// once topRead (Ledger.nodeTop).
+	nodeTop int64
+	topRead bool
 }
 
 func (q *qtx) stmt(ctx context.Context, query string) (*sql.Stmt, error) {

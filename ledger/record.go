@@ -221,6 +221,7 @@ type batchState struct {
 	noLink  bool                    // the node being recorded belongs to a work: no link of its own
 	healed  []pipeline.KeyID        // suspect rows rewritten in this batch
 	absent  map[pipeline.KeyID]bool // keys known not to be stored
+	wrote   []pipeline.KeyID        // keys of the node rows queued
 	// Rows to insert at the end of the batch, many per statement.
 	nodeRows, inputRows, linkRows [][]any
 }
@@ -483,7 +484,11 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 		}
 		bs.known[rec.Key] = storedNode{id: id, status: rec.Status, outputHash: rec.OutputHash, stage: rec.Stage, tool: ra.tool, version: rec.Version, params: text.params}
 		delete(bs.absent, rec.Key)
+		bs.wrote = append(bs.wrote, rec.Key)
 		return id, nil
+	}
+	if _, err := l.nodeTop(ctx, tx); err != nil {
+		return 0, err
 	}
 	res, err := tx.ExecContext(ctx, "INSERT INTO node_rows ("+nodeInsertColumns+") VALUES ("+marks(nodeInsertCount)+")", row...)
 	if err != nil {
@@ -492,6 +497,7 @@ func (l *Ledger) insertNodeInAs(ctx context.Context, tx *qtx, rec pipeline.NodeR
 	if id, err = res.LastInsertId(); err != nil {
 		return 0, fmt.Errorf("insert node: %w", err)
 	}
+	tx.wroteNodes(&l.marks, id, rec.Key)
 	for i := range ups {
 		if _, err := tx.ExecContext(ctx, "INSERT INTO node_inputs (node, position, input) VALUES (?, ?, ?)", id, i, ups[i]); err != nil {
 			return 0, fmt.Errorf("insert input %d: %w", i, err)
