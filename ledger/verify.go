@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"unique"
 
 	"github.com/inflatrace/inflatrace/pipeline"
 )
@@ -181,7 +182,9 @@ var keyFormatHeader = func() string {
 }()
 
 // describedTool extracts the tool identity from a description's
-// "tool <quoted>" line.
+// "tool <quoted>" line, interned: the unquoted text can share the
+// description's bytes, and a tool kept with a node (storedNode) must not
+// keep its whole description alive.
 func describedTool(desc string) (string, error) {
 	for rest := desc; rest != ""; {
 		var l string
@@ -191,7 +194,7 @@ func describedTool(desc string) (string, error) {
 			if err != nil {
 				return "", fmt.Errorf("tool line %q: %v", l, err)
 			}
-			return tool, nil
+			return unique.Make(tool).Value(), nil
 		}
 	}
 	return "", errors.New("no tool line")
