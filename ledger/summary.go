@@ -57,12 +57,29 @@ func (c summaryColumn) Scan(v any) error {
 		*c.dst = append([]byte(nil), raw...)
 		return nil
 	}
-	r := flate.NewReader(bytes.NewReader(raw[1:]))
-	defer r.Close()
-	s, err := io.ReadAll(r)
-	if err != nil {
+	src := bytes.NewReader(raw[1:])
+	r, _ := inflaters.Get().(io.ReadCloser)
+	if r == nil {
+		r = flate.NewReader(src)
+	} else if err := r.(flate.Resetter).Reset(src, nil); err != nil {
 		return fmt.Errorf("%w: a work's stored summary does not inflate: %v", ErrIntegrity, err)
 	}
-	*c.dst = s
+	defer inflaters.Put(r)
+	// Sized for a summary's usual ratio, so that a warm run's hundreds of
+	// summaries are not grown and copied many times each.
+	b := bytes.NewBuffer(make([]byte, 0, summaryRatio*len(raw)+2*bytes.MinRead))
+	if _, err := b.ReadFrom(r); err != nil {
+		return fmt.Errorf("%w: a work's stored summary does not inflate: %v", ErrIntegrity, err)
+	}
+	*c.dst = b.Bytes()
 	return nil
 }
+
+// inflaters keeps decompressors for reuse (each holds tens of kilobytes of
+// tables and window).
+var inflaters sync.Pool
+
+// summaryRatio bounds how many times larger a summary usually is than its
+// deflated form (measured 1.87 for chunks of 1000 first-order results of
+// the e-model scan; a larger summary only grows the buffer).
+const summaryRatio = 2

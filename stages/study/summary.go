@@ -2,6 +2,7 @@ package study
 
 import (
 	"encoding/binary"
+	"encoding/hex"
 	"errors"
 	"fmt"
 	"math"
@@ -134,7 +135,10 @@ func DecodeResults(data []byte) ([]Result, error) {
 		switch n := d.byte(); n {
 		case 0:
 		case 32:
-			r.Key = pipeline.HashPrefix + fmt.Sprintf("%x", d.bytes(32))
+			var hx [len(pipeline.HashPrefix) + 64]byte
+			copy(hx[:], pipeline.HashPrefix)
+			hex.Encode(hx[len(pipeline.HashPrefix):], d.bytes(32))
+			r.Key = string(hx[:])
 		default:
 			d.fail()
 		}

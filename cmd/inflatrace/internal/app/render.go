@@ -88,15 +88,16 @@ func (n *ResultNumbering) Rows(rs []study.Result) [][]string {
 	rows := make([][]string, 0, len(rs))
 	for _, r := range rs {
 		history := r.Reheating
-		if parts := strings.Split(r.Label, " | "); len(parts) >= 2 {
-			history = parts[1] // the history as described, e.g. "w=0 T_reh=1e+09 GeV"
+		if _, rest, ok := strings.Cut(r.Label, " | "); ok {
+			history, _, _ = strings.Cut(rest, " | ") // the history as described, e.g. "w=0 T_reh=1e+09 GeV"
 		}
 		no := "-"
 		if r.Error == "" {
 			n.last++
 			no = strconv.Itoa(n.last)
 		}
-		row := []string{no, tables.ModelLabel(r), r.Model, FormatParams(r.Params), history}
+		row := make([]string, 0, 15)
+		row = append(row, no, tables.ModelLabel(r), r.Model, FormatParams(r.Params), history)
 		if r.Error != "" {
 			row = append(row, "failed: "+r.Error)
 			rows = append(rows, row)
@@ -109,26 +110,37 @@ func (n *ResultNumbering) Rows(rs []study.Result) [][]string {
 			continue
 		}
 		row = append(row,
-			fmt.Sprintf("%.2f", r.NStar), fmt.Sprintf("%.5f", r.Ns), fmt.Sprintf("%.4g", r.R),
-			fmt.Sprintf("%.3g", r.AlphaS), fmt.Sprintf("%.3g", r.Nt),
-			optG(r.EnergyScaleGeV, "%.4g"), optG(r.HStarGeV, "%.4g"),
-			r.Constraint, optG(r.DeltaChi2, "%.2f"), optG(r.NSigma, "%.2f"))
+			fixed(r.NStar, 2), fixed(r.Ns, 5), general(r.R, 4),
+			general(r.AlphaS, 3), general(r.Nt, 3),
+			optNum(r.EnergyScaleGeV, 'g', 4), optNum(r.HStarGeV, 'g', 4),
+			r.Constraint, optNum(r.DeltaChi2, 'f', 2), optNum(r.NSigma, 'f', 2))
 		rows = append(rows, row)
 	}
 	return rows
 }
 
-func optG(x *float64, format string) string {
+// fixed and general print x as fmt's %.{prec}f and %.{prec}g do (the same
+// text: TestNumberFormats), without fmt's cost, which a warm re-run of a
+// large scan printing its table would feel.
+func fixed(x float64, prec int) string   { return strconv.FormatFloat(x, 'f', prec, 64) }
+func general(x float64, prec int) string { return strconv.FormatFloat(x, 'g', prec, 64) }
+
+func optNum(x *float64, format byte, prec int) string {
 	if x == nil {
 		return "-"
 	}
-	return fmt.Sprintf(format, *x)
+	return strconv.FormatFloat(*x, format, prec, 64)
 }
 
 // FormatParams writes parameters as "alpha=0.3333 n=1", sorted.
 func FormatParams(p map[string]float64) string {
 	if len(p) == 0 {
 		return "-"
+	}
+	if len(p) == 1 {
+		for n, x := range p {
+			return n + "=" + general(x, 6)
+		}
 	}
 	names := make([]string, 0, len(p))
 	for n := range p {
@@ -137,7 +149,7 @@ func FormatParams(p map[string]float64) string {
 	sort.Strings(names)
 	parts := make([]string, len(names))
 	for i, n := range names {
-		parts[i] = fmt.Sprintf("%s=%.6g", n, p[n])
+		parts[i] = n + "=" + general(p[n], 6)
 	}
 	return strings.Join(parts, " ")
 }
