@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"io"
 	"math/rand"
 	"os"
 	"path/filepath"
@@ -27,6 +28,10 @@ type harness struct {
 	// the command runs without authentication codes and signed seals, as
 	// it does, with a warning, for a user without a writable home.
 	noKey bool
+	// stdout, when set, receives the command's output instead of the
+	// returned string (a large scan's table goes to a file, as from a
+	// shell, rather than into the test's memory).
+	stdout io.Writer
 }
 
 func newHarness(t *testing.T) *harness {
@@ -37,8 +42,12 @@ func newHarness(t *testing.T) *harness {
 func (h *harness) run(args ...string) (stdout, stderr string, code int) {
 	h.t.Helper()
 	var out, errb bytes.Buffer
+	var w io.Writer = &out
+	if h.stdout != nil {
+		w = h.stdout
+	}
 	env := &app.Env{
-		Stdout: &out, Stderr: &errb,
+		Stdout: w, Stderr: &errb,
 		Getenv: func(k string) string {
 			if k == app.LedgerEnv {
 				return h.ledger
